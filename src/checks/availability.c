@@ -1,0 +1,474 @@
+/* availability.c - the timeline rules on columns (SPEC §4.2): after-moment,
+ * maybe-after-moment, unordered-event, window-overruns, as-of-after-moment,
+ * known-before-inputs, inherits-late-input and built-from-target.  Reads
+ * the ranges the solved timeline computed for every column and pushes one
+ * diagnostic per finding into the sink, at the value at fault, with the
+ * chain of constraints (or derivations) that proves it in notes. */
+#include <stdint.h>
+#include <string.h>
+
+#include "checks.h"
+
+typedef struct cx {
+    kn_ctx *ctx;
+    const kn_schema *s;
+    const kn_timeline *t;
+    const char *moment;
+} cx;
+
+static const kn_pos *at(const kn_column *c, const kn_node *n)
+{
+    if (n) {
+        return &n->pos;
+    }
+    return c->key ? &c->key->pos : NULL;
+}
+
+static char *words(const cx *x, kn_interval r)
+{
+    return kn_timeline_range_words(x->ctx->arena, r, x->moment);
+}
+
+/* A "maybe" finding of a rule whose default is error is a warning
+ * (SPEC §4.2: inherits-late-input, window-overruns). */
+static void at_most_warning(kn_diag *d)
+{
+    if (d->severity > KN_SEV_WARNING) {
+        d->severity = KN_SEV_WARNING;
+    }
+}
+
+static bool late_or_maybe(kn_verdict v)
+{
+    return v == KN_VERDICT_LATE || v == KN_VERDICT_MAYBE_LATE;
+}
+
+static const char *dur(int64_t us, char *buf)
+{
+    return kn_duration_format(us, buf, 48);
+}
+
+/* A lag in words: "2h", "between 1h and 2h", "at least 1h". */
+static char *lag_words(kn_arena *a, int64_t lo, int64_t hi)
+{
+    char b1[48], b2[48];
+    if (lo == hi) {
+        return kn_printf(a, "%s", dur(lo, b1));
+    }
+    if (hi >= KN_TIME_INF) {
+        return kn_printf(a, "at least %s", dur(lo, b1));
+    }
+    return kn_printf(a, "between %s and %s", dur(lo, b1), dur(hi, b2));
+}
+
+/* An offset from the moment in words. */
+static char *offset_words(const cx *x, int64_t v)
+{
+    char b[48];
+    if (v == 0) {
+        return kn_printf(x->ctx->arena, "at the moment '%s'", x->moment);
+    }
+    return kn_printf(x->ctx->arena, "%s %s the moment '%s'",
+                     dur(v < 0 ? kn_time_neg(v) : v, b), v < 0 ? "before" : "after", x->moment);
+}
+
+static const kn_node *ref_node_to(const kn_column *c, const kn_column *input)
+{
+    for (size_t i = 0; i < c->n_derived; i++) {
+        if (KN_REF_COLUMN(c->derived_from[i]) == input) {
+            return c->derived_from[i].node;
+        }
+    }
+    return c->derived_node;
+}
+
+/* --- notes that explain a column's own range ----------------------------- */
+
+static void note_delay(const cx *x, kn_diag *d, const kn_column *c)
+{
+    if (c->delay.present) {
+        kn_diag_note(x->ctx->sink, d, at(c, c->delay.node),
+                     "'%s' is recorded %s after that (columns.%s.delay)", c->name,
+                     lag_words(x->ctx->arena, c->delay.lo, c->delay.hi), c->name);
+    }
+}
+
+static void note_wait(const cx *x, kn_diag *d, const kn_column *c)
+{
+    const kn_source *src = KN_REF_SOURCE(c->source);
+    char b[48];
+    if (!src) {
+        return;
+    }
+    if (src->latency.present && (src->latency.lo || src->latency.hi)) {
+        kn_diag_note(x->ctx->sink, d,
+                     src->latency.node ? &src->latency.node->pos : at(c, c->source.node),
+                     "source '%s' makes a record queryable %s after its event (sources.%s.latency)",
+                     src->name, lag_words(x->ctx->arena, src->latency.lo, src->latency.hi),
+                     src->name);
+    }
+    if (src->has_refresh && src->refresh > 0) {
+        const kn_node *n = src->field[KN_SF_REFRESH];
+        kn_diag_note(x->ctx->sink, d, n ? &n->pos : at(c, c->source.node),
+                     "source '%s' is refreshed every %s, which adds up to %s of waiting "
+                     "(sources.%s.refresh)",
+                     src->name, dur(src->refresh, b), dur(src->refresh, b), src->name);
+    }
+}
+
+static void explain_event_part(const cx *x, kn_diag *d, const kn_column *c, kn_timing_part p,
+                               bool upper)
+{
+    const kn_column_timing *T = kn_timeline_column_timing(x->t, c);
+    kn_sink *sink = x->ctx->sink;
+    char b[48];
+    const kn_event *e = NULL;
+    if (p == KN_PART_KNOWN) {
+        e = KN_REF_EVENT(c->known);
+        kn_diag_note(sink, d, at(c, c->known.node), "'%s' is known at '%s', which comes %s (columns.%s.known)",
+                     c->name, e->name, words(x, T->event[p]), c->name);
+    } else if (p == KN_PART_WINDOW) {
+        e = KN_REF_EVENT(c->window.anchor);
+        kn_diag_note(sink, d, at(c, c->window.anchor.node),
+                     "the window of '%s' is anchored at '%s', which comes %s (columns.%s.window.anchor)",
+                     c->name, e->name, words(x, T->event[p]), c->name);
+    } else {
+        e = KN_REF_EVENT(c->join.as_of);
+        kn_diag_note(sink, d, at(c, c->join.as_of.node),
+                     "'%s' is joined as of '%s', which comes %s (columns.%s.join.as_of)", c->name,
+                     e->name, words(x, T->event[p]), c->name);
+    }
+    kn_timeline_note_chain(x->t, sink, d, e, upper);
+    if (p == KN_PART_KNOWN) {
+        note_delay(x, d, c);
+        note_wait(x, d, c);
+    } else if (p == KN_PART_WINDOW) {
+        int64_t v = upper ? c->window.to.hi : c->window.to.lo;
+        kn_diag_note(sink, d, at(c, c->window.to_node),
+                     "the window ends %s %s its anchor (columns.%s.window.to)",
+                     dur(v < 0 ? kn_time_neg(v) : v, b), v < 0 ? "before" : "after", c->name);
+        note_wait(x, d, c);
+    }
+}
+
+/* The part that sets the chosen end of a column's range, preferring the
+ * column's own timing over its inputs on a tie. */
+static kn_timing_part dominant_part(const kn_column_timing *T, bool upper)
+{
+    static const kn_timing_part order[] = {KN_PART_KNOWN, KN_PART_WINDOW, KN_PART_AS_OF,
+                                           KN_PART_INPUTS};
+    kn_timing_part best = KN_PART_COUNT;
+    int64_t best_v = 0;
+    for (size_t i = 0; i < sizeof order / sizeof order[0]; i++) {
+        kn_timing_part p = order[i];
+        if (!T->has[p]) {
+            continue;
+        }
+        int64_t v = upper ? T->part[p].hi : T->part[p].lo;
+        if (best == KN_PART_COUNT || v > best_v) {
+            best = p;
+            best_v = v;
+        }
+    }
+    return best;
+}
+
+/* Explains the chosen end of c's range: through derivations down to the
+ * column whose own timing sets it.  With via_inputs, the first step goes
+ * through the inputs whatever part dominates. */
+static void explain_column(const cx *x, kn_diag *d, const kn_column *c, bool upper, bool via_inputs)
+{
+    for (size_t guard = 0; c && guard <= x->s->n_columns; guard++) {
+        const kn_column_timing *T = kn_timeline_column_timing(x->t, c);
+        if (!T || !T->computed) {
+            return;
+        }
+        kn_timing_part p = via_inputs ? KN_PART_INPUTS : dominant_part(T, upper);
+        via_inputs = false;
+        if (p == KN_PART_COUNT) {
+            return;
+        }
+        if (p != KN_PART_INPUTS) {
+            explain_event_part(x, d, c, p, upper);
+            return;
+        }
+        const kn_column *in = upper ? T->latest_hi : T->latest_lo;
+        const kn_column_timing *I = kn_timeline_column_timing(x->t, in);
+        if (!in || !I) {
+            return;
+        }
+        kn_diag_note(x->ctx->sink, d, at(c, ref_node_to(c, in)),
+                     "'%s' is derived from '%s', which is available %s (columns.%s.derived_from)",
+                     c->name, in->name, words(x, I->range), c->name);
+        note_delay(x, d, c);
+        c = in;
+    }
+}
+
+/* --- the rules ------------------------------------------------------------- */
+
+static void check_known(const cx *x, const kn_column *c, const kn_column_timing *T)
+{
+    kn_verdict v = T->part_verdict[KN_PART_KNOWN];
+    const kn_event *e = KN_REF_EVENT(c->known);
+    kn_sink *sink = x->ctx->sink;
+    kn_diag *d;
+    if (v == KN_VERDICT_LATE) {
+        d = kn_diag_push(sink, KN_R_AFTER_MOMENT, at(c, c->known.node), c->name,
+                         "column '%s' (known at '%s') is available only after the moment: %s",
+                         c->name, e->name, words(x, T->part[KN_PART_KNOWN]));
+        explain_event_part(x, d, c, KN_PART_KNOWN, false);
+    } else if (v == KN_VERDICT_MAYBE_LATE) {
+        d = kn_diag_push(sink, KN_R_MAYBE_AFTER_MOMENT, at(c, c->known.node), c->name,
+                         "column '%s' (known at '%s') may be available after the moment: %s",
+                         c->name, e->name, words(x, T->part[KN_PART_KNOWN]));
+        explain_event_part(x, d, c, KN_PART_KNOWN, true);
+    } else if (v == KN_VERDICT_UNORDERED) {
+        d = kn_diag_push(sink, KN_R_UNORDERED_EVENT, at(c, c->known.node), c->name,
+                         "column '%s' is known at '%s', which no chain of constraints bounds from "
+                         "above relative to the moment '%s' (it comes %s), so its availability "
+                         "cannot be proven",
+                         c->name, e->name, x->moment, words(x, T->event[KN_PART_KNOWN]));
+        if (e->key) {
+            kn_diag_note(sink, d, &e->key->pos, "'%s' is declared here; add `after` or `before` "
+                         "with a maximum lag that ties it to the moment", e->name);
+        }
+        kn_timeline_note_chain(x->t, sink, d, e, false);
+    }
+}
+
+static void check_window(const cx *x, const kn_column *c, const kn_column_timing *T)
+{
+    kn_verdict v = T->part_verdict[KN_PART_WINDOW];
+    const kn_event *e = KN_REF_EVENT(c->window.anchor);
+    kn_sink *sink = x->ctx->sink;
+    kn_arena *a = x->ctx->arena;
+    if (v == KN_VERDICT_UNORDERED) {
+        kn_diag *d = kn_diag_push(
+            sink, KN_R_UNORDERED_EVENT, at(c, c->window.anchor.node), c->name,
+            "the window of column '%s' is anchored at '%s', which no chain of constraints bounds "
+            "from above relative to the moment '%s' (it comes %s), so its availability cannot be "
+            "proven",
+            c->name, e->name, x->moment, words(x, T->event[KN_PART_WINDOW]));
+        if (e->key) {
+            kn_diag_note(sink, d, &e->key->pos, "'%s' is declared here", e->name);
+        }
+        return;
+    }
+    if (!late_or_maybe(v)) {
+        return;
+    }
+    kn_verdict end = kn_timeline_classify(x->t, T->window_end);
+    const char *first;
+    if (end == KN_VERDICT_LATE) {
+        first = kn_printf(a, "the window of column '%s' ends after the moment: its end is %s",
+                          c->name, words(x, T->window_end));
+    } else if (end == KN_VERDICT_MAYBE_LATE) {
+        first = kn_printf(a, "the window of column '%s' may end after the moment: its end is %s",
+                          c->name, words(x, T->window_end));
+    } else {
+        first = kn_printf(a, "the window of column '%s' ends %s, after the newest record that "
+                          "can have landed by then",
+                          c->name, words(x, T->window_end));
+    }
+    const kn_source *src = KN_REF_SOURCE(c->source);
+    const char *second = "";
+    if (src && (T->part[KN_PART_WINDOW].lo != T->window_end.lo ||
+                T->part[KN_PART_WINDOW].hi != T->window_end.hi)) {
+        second = kn_printf(a, "; with the latency and refresh of source '%s' its records are "
+                           "queryable %s",
+                           src->name, words(x, T->part[KN_PART_WINDOW]));
+    }
+    kn_diag *d = kn_diag_push(sink, KN_R_WINDOW_OVERRUNS,
+                              at(c, c->window.to_node ? c->window.to_node : c->window.node),
+                              c->name, "%s%s", first, second);
+    if (v == KN_VERDICT_MAYBE_LATE) {
+        at_most_warning(d);
+    }
+    explain_event_part(x, d, c, KN_PART_WINDOW, v == KN_VERDICT_MAYBE_LATE);
+}
+
+static void check_as_of(const cx *x, const kn_column *c, const kn_column_timing *T)
+{
+    kn_verdict v = T->part_verdict[KN_PART_AS_OF];
+    const kn_event *e = KN_REF_EVENT(c->join.as_of);
+    kn_sink *sink = x->ctx->sink;
+    kn_diag *d;
+    if (v == KN_VERDICT_UNORDERED) {
+        d = kn_diag_push(sink, KN_R_UNORDERED_EVENT, at(c, c->join.as_of.node), c->name,
+                         "column '%s' is joined as of '%s', which no chain of constraints bounds "
+                         "from above relative to the moment '%s' (it comes %s)",
+                         c->name, e->name, x->moment, words(x, T->event[KN_PART_AS_OF]));
+        return;
+    }
+    if (!late_or_maybe(v)) {
+        return;
+    }
+    d = kn_diag_push(sink, KN_R_AS_OF_AFTER_MOMENT, at(c, c->join.as_of.node), c->name,
+                     "column '%s' is joined as of '%s', which %s after the moment: %s", c->name,
+                     e->name, v == KN_VERDICT_LATE ? "comes" : "may come",
+                     words(x, T->part[KN_PART_AS_OF]));
+    if (v == KN_VERDICT_MAYBE_LATE) {
+        at_most_warning(d);
+    }
+    kn_timeline_note_chain(x->t, sink, d, e, v == KN_VERDICT_MAYBE_LATE);
+}
+
+/* Reports built-from-target; returns whether it did. */
+static bool check_target(const cx *x, const kn_column *c, const kn_column_timing *T)
+{
+    if (!T->from_target || !T->target_via) {
+        return false;
+    }
+    kn_arena *a = x->ctx->arena;
+    /* Walk to the target first, for the message. */
+    const char *through = "";
+    const kn_column *cur = T->target_via, *root = cur;
+    size_t hops = 0;
+    for (size_t guard = 0; cur && guard <= x->s->n_columns; guard++) {
+        const kn_column_timing *C = kn_timeline_column_timing(x->t, cur);
+        root = cur;
+        if (!C || !C->target_via) {
+            break;
+        }
+        through = kn_printf(a, "%s%s'%s'", through, hops ? ", " : "", cur->name);
+        hops++;
+        cur = C->target_via;
+    }
+    kn_diag *d;
+    if (hops) {
+        d = kn_diag_push(x->ctx->sink, KN_R_BUILT_FROM_TARGET, at(c, ref_node_to(c, T->target_via)),
+                         c->name, "feature '%s' is derived from the target '%s' through %s",
+                         c->name, root->name, through);
+    } else {
+        d = kn_diag_push(x->ctx->sink, KN_R_BUILT_FROM_TARGET, at(c, ref_node_to(c, root)),
+                         c->name, "feature '%s' is derived from the target '%s'", c->name,
+                         root->name);
+    }
+    cur = c;
+    for (size_t guard = 0; cur && guard <= x->s->n_columns; guard++) {
+        const kn_column_timing *C = kn_timeline_column_timing(x->t, cur);
+        if (!C || !C->target_via) {
+            break;
+        }
+        kn_diag_note(x->ctx->sink, d, at(cur, ref_node_to(cur, C->target_via)),
+                     "'%s' is derived from '%s' (columns.%s.derived_from)", cur->name,
+                     C->target_via->name, cur->name);
+        cur = C->target_via;
+    }
+    if (root == KN_REF_COLUMN(x->s->prediction.target) && x->s->prediction.target.node) {
+        kn_diag_note(x->ctx->sink, d, &x->s->prediction.target.node->pos,
+                     "'%s' is the target (prediction.target)", root->name);
+    } else if (root->role_node) {
+        kn_diag_note(x->ctx->sink, d, &root->role_node->pos,
+                     "'%s' has role target (columns.%s.role)", root->name, root->name);
+    }
+    return true;
+}
+
+static void check_inputs(const cx *x, const kn_column *c, const kn_column_timing *T)
+{
+    kn_sink *sink = x->ctx->sink;
+    const kn_column *unordered = NULL;
+    for (size_t i = 0; i < c->n_derived && !unordered; i++) {
+        const kn_column *in = KN_REF_COLUMN(c->derived_from[i]);
+        if (kn_timeline_column_verdict(x->t, in) == KN_VERDICT_UNORDERED) {
+            unordered = in;
+        }
+    }
+    kn_verdict v = kn_timeline_classify(x->t, T->inputs_latest);
+    if (v != KN_VERDICT_LATE && unordered) {
+        kn_diag *d = kn_diag_push(sink, KN_R_UNORDERED_EVENT, at(c, ref_node_to(c, unordered)),
+                                  c->name,
+                                  "column '%s' is derived from '%s', whose availability no chain "
+                                  "of constraints bounds from above relative to the moment '%s'",
+                                  c->name, unordered->name, x->moment);
+        (void)d;
+        return;
+    }
+    if (late_or_maybe(v)) {
+        bool late = v == KN_VERDICT_LATE;
+        const kn_column *in = late ? T->latest_lo : T->latest_hi;
+        const kn_column_timing *I = kn_timeline_column_timing(x->t, in);
+        kn_diag *d = kn_diag_push(sink, KN_R_INHERITS_LATE_INPUT, at(c, ref_node_to(c, in)),
+                                  c->name, "column '%s' is derived from '%s', which %s: %s",
+                                  c->name, in->name,
+                                  late ? "is available only after the moment"
+                                       : "may be available after the moment",
+                                  words(x, I->range));
+        if (!late) {
+            at_most_warning(d);
+        }
+        explain_column(x, d, c, !late, true);
+        return;
+    }
+    kn_verdict vd = T->part_verdict[KN_PART_INPUTS];
+    if (late_or_maybe(vd)) {
+        kn_diag *d = kn_diag_push(
+            sink, vd == KN_VERDICT_LATE ? KN_R_AFTER_MOMENT : KN_R_MAYBE_AFTER_MOMENT,
+            at(c, c->delay.node ? c->delay.node : c->derived_node), c->name,
+            "column '%s' is derived from inputs available %s, but with its delay it %s after the "
+            "moment: %s",
+            c->name, words(x, T->inputs_latest),
+            vd == KN_VERDICT_LATE ? "is available only" : "may be available",
+            words(x, T->part[KN_PART_INPUTS]));
+        note_delay(x, d, c);
+    }
+}
+
+static void check_known_before_inputs(const cx *x, const kn_column *c, const kn_column_timing *T)
+{
+    if (!T->has[KN_PART_KNOWN] || !T->has[KN_PART_INPUTS] || !T->latest_lo) {
+        return;
+    }
+    kn_interval k = T->part[KN_PART_KNOWN], in = T->part[KN_PART_INPUTS];
+    if (k.lo <= -KN_TIME_INF || in.lo <= -KN_TIME_INF || k.lo >= in.lo) {
+        return;
+    }
+    const kn_event *e = KN_REF_EVENT(c->known);
+    kn_diag *d = kn_diag_push(
+        x->ctx->sink, KN_R_KNOWN_BEFORE_INPUTS, at(c, c->known.node), c->name,
+        "column '%s' is declared known at '%s', as early as %s, but its inputs are available no "
+        "earlier than %s (input '%s')",
+        c->name, e->name, offset_words(x, k.lo), offset_words(x, in.lo), T->latest_lo->name);
+    explain_event_part(x, d, c, KN_PART_KNOWN, false);
+    explain_column(x, d, c, false, true);
+}
+
+void kn_check_availability(kn_ctx *ctx, const kn_schema *s, const kn_timeline *t)
+{
+    const kn_event *m = kn_timeline_moment(t);
+    if (!t || !m || kn_timeline_contradictory(t)) {
+        return;
+    }
+    cx x = {ctx, s, t, m->name};
+    for (size_t i = 0; i < s->n_columns; i++) {
+        const kn_column *c = s->columns[i];
+        const kn_column_timing *T = kn_timeline_column_timing(t, c);
+        if (!T || !T->ordered) {
+            continue;
+        }
+        /* The target is never a feature, whatever its role says. */
+        bool feature = c->role == KN_ROLE_FEATURE && KN_REF_COLUMN(s->prediction.target) != c;
+        bool from_target = feature && check_target(&x, c, T);
+        if (!T->computed) {
+            continue;
+        }
+        check_known_before_inputs(&x, c, T);
+        if (!feature) {
+            continue;
+        }
+        if (T->has[KN_PART_KNOWN]) {
+            check_known(&x, c, T);
+        }
+        if (T->has[KN_PART_WINDOW]) {
+            check_window(&x, c, T);
+        }
+        if (T->has[KN_PART_INPUTS] && !from_target) {
+            check_inputs(&x, c, T);
+        }
+        if (T->has[KN_PART_AS_OF]) {
+            check_as_of(&x, c, T);
+        }
+    }
+}

@@ -1,0 +1,957 @@
+/* timeline.c - the timeline as a Simple Temporal Network (Dechter, Meiri &
+ * Pearl, 1991).  Every event is a time point; every constraint
+ * t(later) - t(earlier) in [lo, hi] is an edge earlier->later of weight hi
+ * and an edge later->earlier of weight -lo.  Queue-based Bellman-Ford finds
+ * every negative cycle (a contradiction) and, when there is none, the
+ * shortest paths from and to the moment, which bound t(X) - t(moment) for
+ * every event X.  Column availability (SPEC §3.5) is then computed in
+ * derivation order.  Hands on a kn_timeline read by the availability checks
+ * and the timeline document. */
+#include "timeline.h"
+
+#include <stdint.h>
+#include <string.h>
+
+#define NONE SIZE_MAX
+/* Contradictions reported before the search stops: each costs one full
+ * search, and a hostile file could hold thousands. */
+#define MAX_CONTRADICTIONS 100
+
+/* Path sums need more than 64 bits: a path of n edges of up to 10,000
+ * years each overflows int64 after about 30 edges, and the negative-cycle
+ * search must never saturate (a saturated value stops decreasing, which
+ * would hide the cycle). */
+#ifdef __SIZEOF_INT128__
+__extension__ typedef __int128 wide;
+static wide wide_add(wide a, int64_t b)
+{
+    return a + b;
+}
+#else
+typedef int64_t wide;
+static wide wide_add(wide a, int64_t b)
+{
+    return kn_time_add(a, b);
+}
+#endif
+
+typedef struct edge {
+    size_t from, to;
+    int64_t w;
+    kn_chain_step step;
+    bool off; /* set aside after a contradiction was reported on it */
+} edge;
+
+struct kn_timeline {
+    kn_arena *arena;
+    const kn_schema *schema;
+    const kn_event *moment;
+    size_t moment_index;
+    bool strict;
+
+    size_t n_ev;
+    edge *edges;
+    size_t n_edges;
+    size_t *out_off, *out_e; /* edges leaving each event (CSR) */
+    size_t *in_off, *in_e;   /* edges entering each event */
+
+    int64_t *up, *down;         /* bounds of t(X) - t(moment) */
+    size_t *pred_up, *pred_down; /* edge behind each bound, NONE at the ends */
+
+    kn_contradiction *cyc;
+    size_t n_cyc;
+    bool contradictory;
+
+    kn_column_timing *col;
+    size_t n_col;
+};
+
+/* Scratch space for one Bellman-Ford run. */
+typedef struct scratch {
+    wide *d;
+    size_t *pred, *cnt, *queue, *stamp;
+    bool *inq, *seen;
+    size_t token;
+} scratch;
+
+static size_t ev_index(const kn_timeline *t, const kn_event *e)
+{
+    if (e && e->index < t->n_ev && t->schema->events[e->index] == e) {
+        return e->index;
+    }
+    return NONE;
+}
+
+static const kn_event *decl_event(const kn_constraint *c)
+{
+    return c->before ? c->earlier : c->later;
+}
+
+static const kn_pos *constraint_pos(const kn_constraint *c)
+{
+    if (c->lag.node) {
+        return &c->lag.node->pos;
+    }
+    if (c->ref.node) {
+        return &c->ref.node->pos;
+    }
+    const kn_event *d = decl_event(c);
+    return d && d->key ? &d->key->pos : NULL;
+}
+
+static size_t sat_mul(size_t a, size_t b)
+{
+    if (a && b > SIZE_MAX / a) {
+        return SIZE_MAX;
+    }
+    return a * b;
+}
+
+/* --- building the network ------------------------------------------------ */
+
+static void add_edge(kn_timeline *t, size_t from, size_t to, int64_t w,
+                     const kn_constraint *c, bool upper)
+{
+    edge *e = &t->edges[t->n_edges++];
+    e->from = from;
+    e->to = to;
+    e->w = w;
+    e->step.con = c;
+    e->step.upper = upper;
+    e->off = false;
+}
+
+static void build_csr(kn_timeline *t, bool incoming, size_t **off_out, size_t **idx_out)
+{
+    size_t n = t->n_ev;
+    size_t *off = kn_alloc_array(t->arena, n + 1, sizeof *off);
+    size_t *idx = kn_alloc_array(t->arena, t->n_edges ? t->n_edges : 1, sizeof *idx);
+    for (size_t i = 0; i < t->n_edges; i++) {
+        off[(incoming ? t->edges[i].to : t->edges[i].from) + 1]++;
+    }
+    for (size_t i = 0; i < n; i++) {
+        off[i + 1] += off[i];
+    }
+    size_t *fill = kn_alloc_array(t->arena, n + 1, sizeof *fill);
+    memcpy(fill, off, (n + 1) * sizeof *fill);
+    for (size_t i = 0; i < t->n_edges; i++) {
+        size_t v = incoming ? t->edges[i].to : t->edges[i].from;
+        idx[fill[v]++] = i;
+    }
+    *off_out = off;
+    *idx_out = idx;
+}
+
+static void build_network(kn_timeline *t)
+{
+    const kn_schema *s = t->schema;
+    size_t n_cons = 0;
+    for (size_t i = 0; i < s->n_events; i++) {
+        n_cons += s->events[i]->n_cons;
+    }
+    t->edges = kn_alloc_array(t->arena, sat_mul(n_cons, 2) + 1, sizeof *t->edges);
+    for (size_t i = 0; i < s->n_events; i++) {
+        const kn_event *ev = s->events[i];
+        for (size_t k = 0; k < ev->n_cons; k++) {
+            const kn_constraint *c = &ev->cons[k];
+            size_t a = ev_index(t, c->earlier), b = ev_index(t, c->later);
+            /* Unresolved names and MIN > MAX were reported by the loader. */
+            if (a == NONE || b == NONE || c->lag.lo > c->lag.hi) {
+                continue;
+            }
+            if (c->lag.hi < KN_TIME_INF) {
+                add_edge(t, a, b, c->lag.hi, c, true);
+            }
+            if (c->lag.lo > -KN_TIME_INF) {
+                add_edge(t, b, a, kn_time_neg(c->lag.lo), c, false);
+            }
+        }
+    }
+    build_csr(t, false, &t->out_off, &t->out_e);
+    build_csr(t, true, &t->in_off, &t->in_e);
+}
+
+static scratch *scratch_new(kn_timeline *t)
+{
+    size_t n = t->n_ev ? t->n_ev : 1;
+    scratch *sc = kn_alloc(t->arena, sizeof *sc);
+    sc->d = kn_alloc_array(t->arena, n, sizeof *sc->d);
+    sc->pred = kn_alloc_array(t->arena, n, sizeof *sc->pred);
+    sc->cnt = kn_alloc_array(t->arena, n, sizeof *sc->cnt);
+    sc->queue = kn_alloc_array(t->arena, n, sizeof *sc->queue);
+    sc->stamp = kn_alloc_array(t->arena, n, sizeof *sc->stamp);
+    sc->inq = kn_alloc_array(t->arena, n, sizeof *sc->inq);
+    sc->seen = kn_alloc_array(t->arena, n, sizeof *sc->seen);
+    return sc;
+}
+
+/* --- negative cycles ----------------------------------------------------- */
+
+/* The cycle of the predecessor graph through x, in path order.  Any cycle
+ * of a Bellman-Ford predecessor graph has negative weight; the sum is
+ * checked anyway.  Returns false when the cycle is not negative. */
+static bool extract_cycle(kn_timeline *t, scratch *sc, size_t x, kn_contradiction *out,
+                          size_t **edge_ids)
+{
+    size_t n = 0, y = x;
+    do {
+        n++;
+        y = t->edges[sc->pred[y]].from;
+    } while (y != x && n <= t->n_ev);
+    if (y != x) {
+        return false;
+    }
+    size_t *ids = kn_alloc_array(t->arena, n, sizeof *ids);
+    y = x;
+    for (size_t i = n; i-- > 0;) {
+        ids[i] = sc->pred[y];
+        y = t->edges[sc->pred[y]].from;
+    }
+    wide sum = 0;
+    for (size_t i = 0; i < n; i++) {
+        sum = wide_add(sum, t->edges[ids[i]].w);
+    }
+    if (sum >= 0) {
+        return false;
+    }
+    kn_chain_step *steps = kn_alloc_array(t->arena, n, sizeof *steps);
+    for (size_t i = 0; i < n; i++) {
+        steps[i] = t->edges[ids[i]].step;
+    }
+    out->steps = steps;
+    out->n_steps = n;
+    out->weight = sum <= -KN_TIME_INF ? -KN_TIME_INF : (int64_t)sum;
+    *edge_ids = ids;
+    return true;
+}
+
+/* Walks the predecessors from v looking for a cycle. */
+static bool pred_cycle_from(kn_timeline *t, scratch *sc, size_t v, kn_contradiction *out,
+                            size_t **ids)
+{
+    size_t token = ++sc->token, x = v;
+    for (size_t i = 0; i <= t->n_ev; i++) {
+        if (sc->stamp[x] == token) {
+            return extract_cycle(t, sc, x, out, ids);
+        }
+        sc->stamp[x] = token;
+        if (sc->pred[x] == NONE) {
+            return false;
+        }
+        x = t->edges[sc->pred[x]].from;
+    }
+    return false;
+}
+
+/* Looks for any cycle in the whole predecessor graph, O(V). */
+static bool pred_cycle_any(kn_timeline *t, scratch *sc, kn_contradiction *out, size_t **ids)
+{
+    memset(sc->seen, 0, t->n_ev * sizeof *sc->seen);
+    for (size_t s = 0; s < t->n_ev; s++) {
+        size_t token = ++sc->token, x = s;
+        while (!sc->seen[x]) {
+            sc->seen[x] = true;
+            sc->stamp[x] = token;
+            if (sc->pred[x] == NONE) {
+                break;
+            }
+            x = t->edges[sc->pred[x]].from;
+        }
+        if (sc->stamp[x] == token && sc->pred[x] != NONE &&
+            extract_cycle(t, sc, x, out, ids)) {
+            return true;
+        }
+    }
+    return false;
+}
+
+typedef enum cycle_result { NO_CYCLE, CYCLE, CYCLE_UNLOCATED } cycle_result;
+
+/* Bellman-Ford from a virtual source joined to every event by a 0 edge, so
+ * that cycles anywhere are found, not only those reachable from the moment.
+ * A relaxation chain of n edges proves a negative cycle; the cycle is then
+ * read off the predecessor graph. */
+static cycle_result find_cycle(kn_timeline *t, scratch *sc, kn_contradiction *out, size_t **ids)
+{
+    size_t n = t->n_ev;
+    for (size_t v = 0; v < n; v++) {
+        sc->d[v] = 0;
+        sc->pred[v] = NONE;
+        sc->cnt[v] = 0;
+        sc->inq[v] = true;
+        sc->queue[v] = v;
+    }
+    size_t head = 0, len = n;
+    /* Without a negative cycle the queue empties within n * m relaxations;
+     * twice that proves a cycle even if none was isolated yet. */
+    size_t budget = sat_mul(sat_mul(n + 1, t->n_edges + 1), 2);
+    while (len) {
+        size_t u = sc->queue[head];
+        head = head + 1 == n ? 0 : head + 1;
+        len--;
+        sc->inq[u] = false;
+        for (size_t k = t->out_off[u]; k < t->out_off[u + 1]; k++) {
+            size_t ei = t->out_e[k];
+            const edge *e = &t->edges[ei];
+            if (e->off) {
+                continue;
+            }
+            wide nd = wide_add(sc->d[u], e->w);
+            if (nd < sc->d[e->to]) {
+                size_t v = e->to;
+                sc->d[v] = nd;
+                sc->pred[v] = ei;
+                sc->cnt[v] = sc->cnt[u] + 1;
+                if (sc->cnt[v] >= n) {
+                    sc->cnt[v] = 0;
+                    if (pred_cycle_from(t, sc, v, out, ids) || pred_cycle_any(t, sc, out, ids)) {
+                        return CYCLE;
+                    }
+                }
+                if (!sc->inq[v]) {
+                    sc->inq[v] = true;
+                    sc->queue[(head + len) % n] = v;
+                    len++;
+                }
+            }
+            if (--budget == 0) {
+                return pred_cycle_any(t, sc, out, ids) ? CYCLE : CYCLE_UNLOCATED;
+            }
+        }
+    }
+    return NO_CYCLE;
+}
+
+/* The step a contradiction points at: the constraint declared last. */
+static size_t latest_step(const kn_contradiction *c)
+{
+    size_t best = 0, best_ev = 0, best_k = 0;
+    for (size_t i = 0; i < c->n_steps; i++) {
+        const kn_constraint *con = c->steps[i].con;
+        const kn_event *d = decl_event(con);
+        size_t ev = d->index;
+        size_t k = (size_t)(con - d->cons);
+        if (i == 0 || ev > best_ev || (ev == best_ev && k > best_k)) {
+            best = i;
+            best_ev = ev;
+            best_k = k;
+        }
+    }
+    return best;
+}
+
+static void find_contradictions(kn_timeline *t, scratch *sc)
+{
+    t->cyc = kn_alloc_array(t->arena, MAX_CONTRADICTIONS + 1, sizeof *t->cyc);
+    while (t->n_cyc < MAX_CONTRADICTIONS) {
+        kn_contradiction c = {0};
+        size_t *ids = NULL;
+        cycle_result r = find_cycle(t, sc, &c, &ids);
+        if (r == NO_CYCLE) {
+            break;
+        }
+        t->contradictory = true;
+        if (r == CYCLE_UNLOCATED) {
+            t->cyc[t->n_cyc++] = c;
+            break;
+        }
+        c.at = latest_step(&c);
+        t->edges[ids[c.at]].off = true;
+        t->cyc[t->n_cyc++] = c;
+    }
+}
+
+/* --- words ------------------------------------------------------------- */
+
+static const char *fmt_dur(int64_t us, char *buf)
+{
+    return kn_duration_format(us, buf, 48);
+}
+
+/* One bound of a constraint, said from the declaring event's side. */
+static char *step_words(kn_arena *a, const kn_chain_step *st)
+{
+    const kn_constraint *c = st->con;
+    const kn_event *self = decl_event(c);
+    const kn_event *other = c->before ? c->later : c->earlier;
+    char b[48];
+    const char *x = self->name, *y = other ? other->name : "?";
+    const char *where = c->before ? "before" : "after";
+    /* For `after`, the declared value is t(self) - t(other); for `before`,
+     * t(other) - t(self).  Either way the words use the declared direction. */
+    const char *same = c->before ? "before" : "after";
+    const char *opposite = c->before ? "after" : "before";
+    char *text;
+    if (st->upper) {
+        int64_t v = c->lag.hi;
+        if (v >= 0) {
+            text = kn_printf(a, "'%s' is at most %s %s '%s'", x, fmt_dur(v, b), same, y);
+        } else {
+            text = kn_printf(a, "'%s' is at least %s %s '%s'", x, fmt_dur(kn_time_neg(v), b),
+                             opposite, y);
+        }
+    } else {
+        int64_t v = c->lag.lo;
+        if (v > 0) {
+            text = kn_printf(a, "'%s' is at least %s %s '%s'", x, fmt_dur(v, b), same, y);
+        } else if (v == 0) {
+            text = kn_printf(a, "'%s' is not %s '%s'", x, opposite, y);
+        } else {
+            text = kn_printf(a, "'%s' is at most %s %s '%s'", x, fmt_dur(kn_time_neg(v), b),
+                             opposite, y);
+        }
+    }
+    return kn_printf(a, "%s (events.%s.%s)", text, x, where);
+}
+
+void kn_timeline_note_step(kn_sink *sink, kn_diag *d, const kn_chain_step *st)
+{
+    kn_arena *a = kn_sink_arena(sink);
+    kn_diag_note(sink, d, constraint_pos(st->con), "%s", step_words(a, st));
+}
+
+char *kn_timeline_range_words(kn_arena *a, kn_interval r, const char *m)
+{
+    char b1[48], b2[48];
+    int64_t lo = r.lo, hi = r.hi;
+    if (lo <= -KN_TIME_INF && hi >= KN_TIME_INF) {
+        return kn_printf(a, "at a time no constraint bounds relative to the moment '%s'", m);
+    }
+    if (hi >= KN_TIME_INF) {
+        if (lo < 0) {
+            return kn_printf(a, "from %s before the moment '%s' on, with no upper bound",
+                             fmt_dur(kn_time_neg(lo), b1), m);
+        }
+        if (lo == 0) {
+            return kn_printf(a, "from the moment '%s' on, with no upper bound", m);
+        }
+        return kn_printf(a, "from %s after the moment '%s' on, with no upper bound",
+                         fmt_dur(lo, b1), m);
+    }
+    if (lo <= -KN_TIME_INF) {
+        if (hi < 0) {
+            return kn_printf(a, "at the latest %s before the moment '%s', with no lower bound",
+                             fmt_dur(kn_time_neg(hi), b1), m);
+        }
+        if (hi == 0) {
+            return kn_printf(a, "at the latest at the moment '%s', with no lower bound", m);
+        }
+        return kn_printf(a, "at the latest %s after the moment '%s', with no lower bound",
+                         fmt_dur(hi, b1), m);
+    }
+    if (lo == hi) {
+        if (lo == 0) {
+            return kn_printf(a, "exactly at the moment '%s'", m);
+        }
+        return kn_printf(a, "exactly %s %s the moment '%s'",
+                         fmt_dur(lo < 0 ? kn_time_neg(lo) : lo, b1),
+                         lo < 0 ? "before" : "after", m);
+    }
+    if (lo >= 0) {
+        if (lo == 0) {
+            return kn_printf(a, "between the moment '%s' and %s after it", m, fmt_dur(hi, b1));
+        }
+        return kn_printf(a, "between %s and %s after the moment '%s'", fmt_dur(lo, b1),
+                         fmt_dur(hi, b2), m);
+    }
+    if (hi <= 0) {
+        if (hi == 0) {
+            return kn_printf(a, "between %s before the moment '%s' and the moment itself",
+                             fmt_dur(kn_time_neg(lo), b1), m);
+        }
+        return kn_printf(a, "between %s and %s before the moment '%s'",
+                         fmt_dur(kn_time_neg(lo), b1), fmt_dur(kn_time_neg(hi), b2), m);
+    }
+    return kn_printf(a, "between %s before and %s after the moment '%s'",
+                     fmt_dur(kn_time_neg(lo), b1), fmt_dur(hi, b2), m);
+}
+
+static void push_contradiction(kn_timeline *t, kn_sink *sink, const kn_contradiction *c)
+{
+    kn_arena *a = t->arena;
+    if (c->n_steps == 0) {
+        const kn_pos *pos = t->moment && t->moment->key ? &t->moment->key->pos : NULL;
+        kn_diag_push(sink, KN_R_TIMELINE_CONTRADICTION, pos, t->moment ? t->moment->name : "",
+                     "the event constraints cannot all hold (a negative cycle exists; "
+                     "it could not be isolated within the work limit)");
+        return;
+    }
+    const kn_chain_step *at = &c->steps[c->at];
+    const kn_event *self = decl_event(at->con);
+    /* Name the events in the order the loop visits them, starting at the
+     * constraint the diagnostic points at. */
+    size_t shown = c->n_steps < 6 ? c->n_steps : 5;
+    const char *names = "";
+    for (size_t i = 0; i < shown; i++) {
+        const kn_chain_step *st = &c->steps[(c->at + i) % c->n_steps];
+        const kn_constraint *con = st->con;
+        const kn_event *from = st->upper ? con->earlier : con->later;
+        names = kn_printf(a, "%s%s'%s'", names,
+                          i == 0 ? "" : (i + 1 == shown && shown == c->n_steps ? " and " : ", "),
+                          from->name);
+    }
+    if (shown < c->n_steps) {
+        names = kn_printf(a, "%s and %zu more", names, c->n_steps - shown);
+    }
+    const kn_constraint *first = c->steps[c->at].con;
+    const kn_event *start = c->steps[c->at].upper ? first->earlier : first->later;
+    char b[48];
+    kn_diag *d = kn_diag_push(
+        sink, KN_R_TIMELINE_CONTRADICTION, constraint_pos(at->con), self->name,
+        "the constraints between %s cannot all hold: followed round the loop they put '%s' "
+        "at least %s before itself",
+        c->n_steps == 1 ? kn_printf(a, "'%s' and itself", start->name) : names, start->name,
+        fmt_dur(kn_time_neg(c->weight), b));
+    for (size_t i = 0; i < c->n_steps; i++) {
+        kn_timeline_note_step(sink, d, &c->steps[(c->at + i) % c->n_steps]);
+    }
+}
+
+/* --- shortest paths from and to the moment ------------------------------ */
+
+/* Queue-based Bellman-Ford from the moment, forward (reverse = false: the
+ * distance moment->X, an upper bound of t(X) - t(moment)) or on the reversed
+ * graph (the distance X->moment, minus a lower bound).  Runs only on a
+ * network without negative cycles, where it stops within n * m steps. */
+static void solve_from_moment(kn_timeline *t, scratch *sc, bool reverse, int64_t *bound,
+                              size_t *pred)
+{
+    size_t n = t->n_ev, m0 = t->moment_index;
+    for (size_t v = 0; v < n; v++) {
+        sc->seen[v] = false;
+        sc->inq[v] = false;
+        pred[v] = NONE;
+    }
+    sc->d[m0] = 0;
+    sc->seen[m0] = true;
+    sc->inq[m0] = true;
+    sc->queue[0] = m0;
+    size_t head = 0, len = 1;
+    size_t budget = sat_mul(n + 1, t->n_edges + 1);
+    const size_t *off = reverse ? t->in_off : t->out_off;
+    const size_t *idx = reverse ? t->in_e : t->out_e;
+    while (len && budget) {
+        size_t u = sc->queue[head];
+        head = head + 1 == n ? 0 : head + 1;
+        len--;
+        sc->inq[u] = false;
+        for (size_t k = off[u]; k < off[u + 1] && budget; k++, budget--) {
+            size_t ei = idx[k];
+            const edge *e = &t->edges[ei];
+            size_t v = reverse ? e->from : e->to;
+            wide nd = wide_add(sc->d[u], e->w);
+            if (!sc->seen[v] || nd < sc->d[v]) {
+                sc->seen[v] = true;
+                sc->d[v] = nd;
+                pred[v] = ei;
+                if (!sc->inq[v]) {
+                    sc->inq[v] = true;
+                    sc->queue[(head + len) % n] = v;
+                    len++;
+                }
+            }
+        }
+    }
+    for (size_t v = 0; v < n; v++) {
+        wide d = sc->d[v];
+        int64_t b;
+        if (!sc->seen[v] || d >= KN_TIME_INF) {
+            b = KN_TIME_INF; /* no chain, or beyond any representable bound */
+        } else if (d <= -KN_TIME_INF) {
+            b = -KN_TIME_INF + 1;
+        } else {
+            b = (int64_t)d;
+        }
+        if (reverse) {
+            /* t(X) - t(moment) >= -d(X -> moment) */
+            bound[v] = b >= KN_TIME_INF ? -KN_TIME_INF : kn_time_neg(b);
+        } else {
+            bound[v] = b;
+        }
+    }
+}
+
+/* --- columns ------------------------------------------------------------- */
+
+static kn_interval iv(int64_t lo, int64_t hi)
+{
+    kn_interval r = {lo, hi};
+    return r;
+}
+
+static kn_interval iv_max(kn_interval a, kn_interval b)
+{
+    return iv(a.lo > b.lo ? a.lo : b.lo, a.hi > b.hi ? a.hi : b.hi);
+}
+
+kn_verdict kn_timeline_classify(const kn_timeline *t, kn_interval r)
+{
+    bool strict = t && t->strict;
+    if (strict ? r.lo >= 0 : r.lo > 0) {
+        return KN_VERDICT_LATE;
+    }
+    if (strict ? r.hi < 0 : r.hi <= 0) {
+        return KN_VERDICT_AVAILABLE;
+    }
+    return KN_VERDICT_MAYBE_LATE;
+}
+
+static bool event_iv(const kn_timeline *t, const kn_event *e, kn_interval *out)
+{
+    size_t i = ev_index(t, e);
+    if (i == NONE || t->contradictory) {
+        return false;
+    }
+    *out = iv(t->down[i], t->up[i]);
+    return true;
+}
+
+static size_t col_index(const kn_timeline *t, const kn_column *c)
+{
+    if (c && c->index < t->n_col && t->schema->columns[c->index] == c) {
+        return c->index;
+    }
+    return NONE;
+}
+
+/* t(event) + lag, where a lag whose MIN exceeds its MAX (reported by the
+ * loader) makes the part unknown. */
+static bool lag_iv(const kn_lag *l, kn_interval *out)
+{
+    if (!l->present) {
+        *out = iv(0, 0);
+        return true;
+    }
+    if (l->lo > l->hi) {
+        return false;
+    }
+    *out = iv(l->lo, l->hi);
+    return true;
+}
+
+static bool source_wait(const kn_column *c, kn_interval *out)
+{
+    *out = iv(0, 0);
+    if (!c->source.node && !c->source.target) {
+        return true;
+    }
+    const kn_source *src = KN_REF_SOURCE(c->source);
+    if (!src) {
+        return false;
+    }
+    if (!lag_iv(&src->latency, out)) {
+        return false;
+    }
+    if (src->has_refresh) {
+        if (src->refresh < 0) {
+            return false;
+        }
+        out->hi = kn_time_add(out->hi, src->refresh);
+    }
+    return true;
+}
+
+static bool is_target(const kn_schema *s, const kn_column *c)
+{
+    return c->role == KN_ROLE_TARGET || KN_REF_COLUMN(s->prediction.target) == c;
+}
+
+static void compute_column(kn_timeline *t, size_t ci)
+{
+    const kn_column *c = t->schema->columns[ci];
+    kn_column_timing *T = &t->col[ci];
+    T->ordered = true;
+
+    if (is_target(t->schema, c)) {
+        T->from_target = true;
+    }
+    for (size_t i = 0; i < c->n_derived && !T->from_target; i++) {
+        size_t j = col_index(t, KN_REF_COLUMN(c->derived_from[i]));
+        if (j != NONE && t->col[j].from_target) {
+            T->from_target = true;
+            T->target_via = t->schema->columns[j];
+        }
+    }
+
+    bool ok = !t->contradictory;
+    kn_interval delay, wait;
+    ok = lag_iv(&c->delay, &delay) && ok;
+    ok = source_wait(c, &wait) && ok;
+
+    if (c->known.node || c->known.target) {
+        T->has[KN_PART_KNOWN] = true;
+        kn_interval e;
+        if (ok && event_iv(t, KN_REF_EVENT(c->known), &e)) {
+            T->event[KN_PART_KNOWN] = e;
+            T->part[KN_PART_KNOWN] = kn_interval_add(kn_interval_add(e, delay), wait);
+        } else {
+            ok = false;
+        }
+    }
+    if (c->window.present) {
+        T->has[KN_PART_WINDOW] = true;
+        kn_interval e;
+        if (ok && c->window.to.lo <= c->window.to.hi &&
+            event_iv(t, KN_REF_EVENT(c->window.anchor), &e)) {
+            T->event[KN_PART_WINDOW] = e;
+            T->window_end = kn_interval_add(e, c->window.to);
+            T->part[KN_PART_WINDOW] = kn_interval_add(T->window_end, wait);
+        } else {
+            ok = false;
+        }
+    }
+    if (c->n_derived) {
+        T->has[KN_PART_INPUTS] = true;
+        kn_interval latest = iv(-KN_TIME_INF, -KN_TIME_INF);
+        bool any_unordered = false;
+        for (size_t i = 0; i < c->n_derived && ok; i++) {
+            size_t j = col_index(t, KN_REF_COLUMN(c->derived_from[i]));
+            if (j == NONE || !t->col[j].computed) {
+                ok = false;
+                break;
+            }
+            const kn_column_timing *in = &t->col[j];
+            if (!T->latest_hi || in->range.hi > latest.hi) {
+                T->latest_hi = t->schema->columns[j];
+            }
+            if (!T->latest_lo || in->range.lo > latest.lo) {
+                T->latest_lo = t->schema->columns[j];
+            }
+            latest = iv_max(latest, in->range);
+            any_unordered = any_unordered || in->verdict == KN_VERDICT_UNORDERED;
+        }
+        if (ok) {
+            T->inputs_latest = latest;
+            T->part[KN_PART_INPUTS] = kn_interval_add(latest, delay);
+            kn_verdict v = kn_timeline_classify(t, T->part[KN_PART_INPUTS]);
+            T->part_verdict[KN_PART_INPUTS] =
+                v != KN_VERDICT_LATE && any_unordered ? KN_VERDICT_UNORDERED : v;
+        }
+    }
+    if (c->join.present && (c->join.as_of.node || c->join.as_of.target)) {
+        T->has[KN_PART_AS_OF] = true;
+        kn_interval e;
+        if (ok && event_iv(t, KN_REF_EVENT(c->join.as_of), &e)) {
+            T->event[KN_PART_AS_OF] = e;
+            T->part[KN_PART_AS_OF] = e;
+        } else {
+            ok = false;
+        }
+    }
+
+    bool any = false;
+    for (int p = 0; p < KN_PART_COUNT; p++) {
+        any = any || T->has[p];
+    }
+    if (!ok || !any) {
+        T->computed = false;
+        T->verdict = KN_VERDICT_UNKNOWN;
+        return;
+    }
+    T->computed = true;
+    kn_interval total = iv(-KN_TIME_INF, -KN_TIME_INF);
+    bool unordered = false;
+    for (int p = 0; p < KN_PART_COUNT; p++) {
+        if (!T->has[p]) {
+            continue;
+        }
+        total = iv_max(total, T->part[p]);
+        if (p != KN_PART_INPUTS) {
+            kn_verdict v = kn_timeline_classify(t, T->part[p]);
+            if (v != KN_VERDICT_LATE && T->event[p].hi >= KN_TIME_INF) {
+                v = KN_VERDICT_UNORDERED;
+            }
+            T->part_verdict[p] = v;
+        }
+        unordered = unordered || T->part_verdict[p] == KN_VERDICT_UNORDERED;
+    }
+    T->range = total;
+    kn_verdict v = kn_timeline_classify(t, total);
+    T->verdict = v != KN_VERDICT_LATE && unordered ? KN_VERDICT_UNORDERED : v;
+}
+
+/* Kahn's algorithm over derived_from: each column after all its inputs, so
+ * the results do not depend on the order of columns in the file.  Columns
+ * on a derivation cycle (reported by the loader) or behind one are never
+ * reached and stay uncomputed. */
+static void compute_columns(kn_timeline *t)
+{
+    const kn_schema *s = t->schema;
+    size_t n = t->n_col, n_refs = 0;
+    for (size_t i = 0; i < n; i++) {
+        n_refs += s->columns[i]->n_derived;
+    }
+    size_t *indeg = kn_alloc_array(t->arena, n + 1, sizeof *indeg);
+    size_t *off = kn_alloc_array(t->arena, n + 1, sizeof *off);
+    size_t *users = kn_alloc_array(t->arena, n_refs + 1, sizeof *users);
+    size_t *queue = kn_alloc_array(t->arena, n + 1, sizeof *queue);
+    for (size_t i = 0; i < n; i++) {
+        const kn_column *c = s->columns[i];
+        for (size_t k = 0; k < c->n_derived; k++) {
+            size_t j = col_index(t, KN_REF_COLUMN(c->derived_from[k]));
+            if (j != NONE) {
+                indeg[i]++;
+                off[j + 1]++;
+            }
+        }
+    }
+    for (size_t i = 0; i < n; i++) {
+        off[i + 1] += off[i];
+    }
+    size_t *fill = kn_alloc_array(t->arena, n + 1, sizeof *fill);
+    memcpy(fill, off, (n + 1) * sizeof *fill);
+    for (size_t i = 0; i < n; i++) {
+        const kn_column *c = s->columns[i];
+        for (size_t k = 0; k < c->n_derived; k++) {
+            size_t j = col_index(t, KN_REF_COLUMN(c->derived_from[k]));
+            if (j != NONE) {
+                users[fill[j]++] = i;
+            }
+        }
+    }
+    size_t head = 0, tail = 0;
+    for (size_t i = 0; i < n; i++) {
+        if (indeg[i] == 0) {
+            queue[tail++] = i;
+        }
+    }
+    while (head < tail) {
+        size_t i = queue[head++];
+        compute_column(t, i);
+        for (size_t k = off[i]; k < off[i + 1]; k++) {
+            if (--indeg[users[k]] == 0) {
+                queue[tail++] = users[k];
+            }
+        }
+    }
+}
+
+/* --- public ---------------------------------------------------------------- */
+
+kn_timeline *kn_timeline_solve(kn_arena *a, kn_sink *sink, const kn_schema *s,
+                               bool strict_moment)
+{
+    const kn_event *moment = KN_REF_EVENT(s->prediction.moment);
+    if (!moment || moment->index >= s->n_events || s->events[moment->index] != moment) {
+        return NULL;
+    }
+    kn_timeline *t = kn_alloc(a, sizeof *t);
+    t->arena = a;
+    t->schema = s;
+    t->moment = moment;
+    t->moment_index = moment->index;
+    t->strict = strict_moment;
+    t->n_ev = s->n_events;
+    t->n_col = s->n_columns;
+    t->col = kn_alloc_array(a, t->n_col + 1, sizeof *t->col);
+    t->up = kn_alloc_array(a, t->n_ev, sizeof *t->up);
+    t->down = kn_alloc_array(a, t->n_ev, sizeof *t->down);
+    t->pred_up = kn_alloc_array(a, t->n_ev, sizeof *t->pred_up);
+    t->pred_down = kn_alloc_array(a, t->n_ev, sizeof *t->pred_down);
+
+    build_network(t);
+    scratch *sc = scratch_new(t);
+    find_contradictions(t, sc);
+    if (sink) {
+        for (size_t i = 0; i < t->n_cyc; i++) {
+            push_contradiction(t, sink, &t->cyc[i]);
+        }
+    }
+    if (!t->contradictory) {
+        solve_from_moment(t, sc, false, t->up, t->pred_up);
+        solve_from_moment(t, sc, true, t->down, t->pred_down);
+    }
+    compute_columns(t);
+    return t;
+}
+
+bool kn_timeline_event_range(const kn_timeline *t, const kn_event *e, kn_interval *out)
+{
+    return t && event_iv(t, e, out);
+}
+
+bool kn_timeline_column_range(const kn_timeline *t, const kn_column *c, kn_interval *out)
+{
+    const kn_column_timing *T = kn_timeline_column_timing(t, c);
+    if (!T || !T->computed) {
+        return false;
+    }
+    *out = T->range;
+    return true;
+}
+
+kn_verdict kn_timeline_column_verdict(const kn_timeline *t, const kn_column *c)
+{
+    const kn_column_timing *T = kn_timeline_column_timing(t, c);
+    return T ? T->verdict : KN_VERDICT_UNKNOWN;
+}
+
+const kn_column_timing *kn_timeline_column_timing(const kn_timeline *t, const kn_column *c)
+{
+    if (!t) {
+        return NULL;
+    }
+    size_t i = col_index(t, c);
+    return i == NONE ? NULL : &t->col[i];
+}
+
+bool kn_timeline_contradictory(const kn_timeline *t)
+{
+    return t && t->contradictory;
+}
+
+size_t kn_timeline_contradictions(const kn_timeline *t, const kn_contradiction **out)
+{
+    *out = t ? t->cyc : NULL;
+    return t ? t->n_cyc : 0;
+}
+
+const kn_event *kn_timeline_moment(const kn_timeline *t)
+{
+    return t ? t->moment : NULL;
+}
+
+bool kn_timeline_strict(const kn_timeline *t)
+{
+    return t && t->strict;
+}
+
+size_t kn_timeline_chain(const kn_timeline *t, const kn_event *e, bool upper,
+                         const kn_chain_step **out)
+{
+    *out = NULL;
+    size_t i = ev_index(t, e);
+    if (!t || i == NONE || t->contradictory) {
+        return 0;
+    }
+    const size_t *pred = upper ? t->pred_up : t->pred_down;
+    size_t n = 0;
+    for (size_t x = i; pred[x] != NONE && n < t->n_ev; n++) {
+        const edge *ed = &t->edges[pred[x]];
+        x = upper ? ed->from : ed->to;
+    }
+    if (n == 0) {
+        return 0;
+    }
+    kn_chain_step *steps = kn_alloc_array(t->arena, n, sizeof *steps);
+    size_t x = i;
+    for (size_t k = 0; k < n; k++) {
+        const edge *ed = &t->edges[pred[x]];
+        /* The upper chain is found walking back from e; store it from the
+         * moment outwards. */
+        steps[upper ? n - 1 - k : k] = ed->step;
+        x = upper ? ed->from : ed->to;
+    }
+    *out = steps;
+    return n;
+}
+
+void kn_timeline_note_chain(const kn_timeline *t, kn_sink *sink, kn_diag *d,
+                            const kn_event *e, bool upper)
+{
+    const kn_chain_step *steps;
+    size_t n = kn_timeline_chain(t, e, upper, &steps);
+    for (size_t i = 0; i < n; i++) {
+        kn_timeline_note_step(sink, d, &steps[i]);
+    }
+}
