@@ -1,0 +1,117 @@
+/* knowable.h - the public API of libknowable.
+ *
+ * knowable reads a YAML schema that declares, for every column of a machine
+ * learning training table, when its value becomes known, where it comes from
+ * and how it was joined, and reports whether each column is available at the
+ * prediction moment, with compiler-style diagnostics.
+ *
+ * Ownership rule for the whole API: every function that writes output writes
+ * to a FILE * the caller owns; nothing returned by the library needs freeing
+ * by the caller except a kn_options filled by the caller itself (it holds only
+ * borrowed pointers).  Strings passed in are borrowed for the duration of the
+ * call.  Every run function allocates in one arena of its own and frees it
+ * before it returns, also on failure.
+ *
+ * Exit statuses are those of the command line (SPEC §5). */
+#ifndef KNOWABLE_KNOWABLE_H
+#define KNOWABLE_KNOWABLE_H
+
+#include <stdbool.h>
+#include <stddef.h>
+#include <stdint.h>
+#include <stdio.h>
+
+#ifdef __cplusplus
+extern "C" {
+#endif
+
+#define KN_VERSION_STRING "0.1.0"
+
+typedef enum kn_status {
+    KN_EXIT_OK = 0,       /* nothing at or above --fail-on */
+    KN_EXIT_FINDINGS = 1, /* a diagnostic at or above --fail-on */
+    KN_EXIT_FAILED = 2,   /* the check could not be done */
+} kn_status;
+
+typedef enum kn_format {
+    KN_FORMAT_TEXT,
+    KN_FORMAT_JSON,
+    KN_FORMAT_SARIF,
+    KN_FORMAT_MARKDOWN, /* `sources` only */
+} kn_format;
+
+typedef enum kn_fail_on {
+    KN_FAIL_ON_NOTE = 1,
+    KN_FAIL_ON_WARNING = 2,
+    KN_FAIL_ON_ERROR = 3,
+    KN_FAIL_ON_NEVER = 4,
+} kn_fail_on;
+
+#define KN_MAX_RULEBOOKS 16
+
+typedef struct kn_options {
+    kn_format format;
+    kn_fail_on fail_on;
+    const char *rulebooks[KN_MAX_RULEBOOKS]; /* --rulebook, in order */
+    size_t n_rulebooks;
+    const char *data;           /* --data CSV, or NULL */
+    long long max_rows;         /* --max-rows; 0: default (1,000,000) */
+    uint64_t seed;              /* reservoir sampling seed */
+    const char *baseline;       /* --baseline */
+    const char *write_baseline; /* --write-baseline */
+    const char *root;           /* --root, or NULL */
+    const char *today;          /* YYYY-MM-DD for waiver expiry; NULL: the clock
+                                   (or the KNOWABLE_TODAY environment variable) */
+    bool show_waived;
+    bool color;
+    bool quiet; /* -q: diagnostics only, no notes and no summary line */
+} kn_options;
+
+/* Fills defaults: text, fail on error, no colour. */
+void kn_options_init(kn_options *o);
+
+/* `knowable check`: loads the rulebook(s) and each schema, runs every
+ * analysis (and the data checks with o->data), renders the diagnostics in
+ * o->format to out, and returns the exit status.  Problems that stop the
+ * run before any diagnostic can be rendered (out of memory, unreadable
+ * rulebook) are written to err. */
+kn_status kn_check(const kn_options *o, const char *const *schemas, size_t n,
+                   FILE *out, FILE *err);
+
+/* `knowable explain RULE` (text).  Returns KN_EXIT_FAILED for an unknown id
+ * after writing a suggestion to err. */
+kn_status kn_explain(const char *rule, FILE *out, FILE *err);
+
+/* `knowable rules`: every rule with its effective severity. */
+kn_status kn_rules(const kn_options *o, FILE *out, FILE *err);
+
+/* `knowable sources`: the register of sources (markdown or json). */
+kn_status kn_sources(const kn_options *o, const char *const *schemas, size_t n,
+                     FILE *out, FILE *err);
+
+/* `knowable timeline`: text to out; an SVG picture to svg when non-NULL. */
+kn_status kn_timeline_report(const kn_options *o, const char *schema, FILE *out,
+                      FILE *svg, FILE *err);
+
+/* `knowable init`: a draft schema from a CSV sample. */
+kn_status kn_init(const kn_options *o, const char *csv, FILE *out, FILE *err);
+
+/* `knowable json-schema`: a JSON Schema (draft-07) of the schema format. */
+kn_status kn_json_schema(FILE *out, FILE *err);
+
+/* Output files are written to a temporary file in the same folder and
+ * renamed into place; a path naming one of the inputs is refused.
+ * kn_output_open returns NULL (and writes why to err) on failure. */
+typedef struct kn_output kn_output;
+kn_output *kn_output_open(const char *path, const char *const *inputs,
+                          size_t n_inputs, FILE *err);
+FILE *kn_output_file(kn_output *o);
+/* Flushes, closes and renames into place when ok; otherwise removes the
+ * temporary file.  Frees o.  Returns false (and writes why) on failure. */
+bool kn_output_close(kn_output *o, bool ok, FILE *err);
+
+#ifdef __cplusplus
+}
+#endif
+
+#endif

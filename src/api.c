@@ -1,0 +1,193 @@
+/* api.c - the public entry points (include/knowable/knowable.h).  Each one
+ * makes an arena, installs the out-of-memory jump target, runs the stages
+ * of the pipeline in order and frees the arena on every path. */
+#include <knowable/knowable.h>
+
+#include <setjmp.h>
+#include <stdlib.h>
+#include <string.h>
+#include <time.h>
+
+#include "checks/checks.h"
+#include "report/diag.h"
+#include "report/render.h"
+#include "rulebook/rulebook.h"
+#include "schema/schema.h"
+#include "util/arena.h"
+#include "util/text.h"
+
+void kn_options_init(kn_options *o)
+{
+    memset(o, 0, sizeof *o);
+    o->format = KN_FORMAT_TEXT;
+    o->fail_on = KN_FAIL_ON_ERROR;
+    o->seed = 20261201;
+}
+
+static const char *today(kn_arena *a, const kn_options *o)
+{
+    if (o->today) {
+        return o->today;
+    }
+    const char *env = getenv("KNOWABLE_TODAY");
+    if (env && *env) {
+        return env;
+    }
+    time_t now = time(NULL);
+    struct tm tm;
+    gmtime_r(&now, &tm);
+    return kn_printf(a, "%04d-%02d-%02d", tm.tm_year + 1900, tm.tm_mon + 1, tm.tm_mday);
+}
+
+/* Loads the built-in rulebook and then the user's (or the discovered one). */
+static kn_rulebook *load_rulebook(kn_arena *a, kn_sink *sink, const kn_options *o, const char *first_schema)
+{
+    kn_rulebook *rb = kn_rulebook_new(a);
+    if (!kn_rulebook_load_default(rb, a, sink)) {
+        return rb;
+    }
+    if (o->n_rulebooks) {
+        for (size_t i = 0; i < o->n_rulebooks; i++) {
+            kn_rulebook_load(rb, a, sink, o->rulebooks[i]);
+        }
+    } else if (first_schema) {
+        char *found = kn_rulebook_discover(a, first_schema);
+        if (found) {
+            kn_rulebook_load(rb, a, sink, found);
+        }
+    }
+    return rb;
+}
+
+static void render(FILE *out, kn_sink *sink, const kn_options *o, size_t n_schemas)
+{
+    kn_render_opts ro = {o->color, o->quiet, o->show_waived, n_schemas};
+    switch (o->format) {
+    case KN_FORMAT_TEXT:
+    case KN_FORMAT_MARKDOWN:
+        kn_render_text(out, sink, &ro);
+        break;
+    case KN_FORMAT_JSON:
+    case KN_FORMAT_SARIF:
+        /* Rendered by render_json.c / render_sarif.c once they land. */
+        kn_render_text(out, sink, &ro);
+        break;
+    }
+}
+
+kn_status kn_check(const kn_options *o, const char *const *schemas, size_t n, FILE *out, FILE *err)
+{
+    kn_arena *a = kn_arena_new();
+    if (!a) {
+        fputs("knowable: out of memory\n", err);
+        return KN_EXIT_FAILED;
+    }
+    jmp_buf oom;
+    if (setjmp(oom)) {
+        kn_arena_free(a);
+        fputs("knowable: out of memory\n", err);
+        return KN_EXIT_FAILED;
+    }
+    kn_arena_set_oom(a, &oom);
+
+    kn_sink *sink = kn_sink_new(a);
+    kn_rulebook *rb = load_rulebook(a, sink, o, n ? schemas[0] : NULL);
+    kn_status status = KN_EXIT_OK;
+    if (kn_sink_fatal(sink)) {
+        kn_sink_finish(sink);
+        render(out, sink, o, 0);
+        kn_arena_free(a);
+        return KN_EXIT_FAILED;
+    }
+    kn_rulebook_apply(rb, sink);
+    kn_ctx ctx = {a, sink, rb, today(a, o)};
+    (void)ctx;
+
+    kn_load_options lo = {0};
+    lo.root = o->root;
+    kn_yaml_limits_default(&lo.limits);
+    lo.rulebook = rb;
+    for (size_t i = 0; i < n; i++) {
+        kn_schema *s = kn_schema_load(a, sink, schemas[i], &lo);
+        (void)s;
+    }
+    kn_sink_finish(sink);
+    render(out, sink, o, n);
+    if (kn_sink_fatal(sink)) {
+        status = KN_EXIT_FAILED;
+    } else if (o->fail_on != KN_FAIL_ON_NEVER && kn_sink_has(sink, (kn_severity)o->fail_on)) {
+        status = KN_EXIT_FINDINGS;
+    }
+    kn_arena_free(a);
+    return status;
+}
+
+kn_status kn_explain(const char *rule, FILE *out, FILE *err)
+{
+    kn_rule r;
+    if (!kn_rule_find(rule, strlen(rule), &r)) {
+        const char *ids[KN_RULE_COUNT];
+        for (size_t i = 0; i < KN_RULE_COUNT; i++) {
+            ids[i] = kn_rule_get((kn_rule)i)->id;
+        }
+        const char *near = kn_suggest(rule, ids, KN_RULE_COUNT);
+        fputs("knowable: no rule '", err);
+        kn_fput_term(err, rule, strlen(rule));
+        if (near) {
+            fprintf(err, "'; did you mean '%s'?\n", near);
+        } else {
+            fputs("'; `knowable rules` lists them all\n", err);
+        }
+        return KN_EXIT_FAILED;
+    }
+    const kn_rule_info *info = kn_rule_get(r);
+    const kn_explain_text *t = kn_rule_explain(r);
+    fprintf(out, "%s (%s, default %s)\n\n%s.\n\n", info->id, info->family, kn_severity_name(info->severity),
+            info->summary);
+    fprintf(out, "What it finds\n  %s\n\nWhy it matters\n  %s\n\nExample\n", t->finds, t->why);
+    const char *p = t->example;
+    while (*p) {
+        const char *nl = strchr(p, '\n');
+        size_t len = nl ? (size_t)(nl - p) : strlen(p);
+        fprintf(out, "    %.*s\n", (int)len, p);
+        p += len + (nl ? 1 : 0);
+    }
+    fprintf(out, "\nHow to fix it\n  %s\n", t->fix);
+    return KN_EXIT_OK;
+}
+
+kn_status kn_rules(const kn_options *o, FILE *out, FILE *err)
+{
+    kn_arena *a = kn_arena_new();
+    if (!a) {
+        fputs("knowable: out of memory\n", err);
+        return KN_EXIT_FAILED;
+    }
+    jmp_buf oom;
+    if (setjmp(oom)) {
+        kn_arena_free(a);
+        fputs("knowable: out of memory\n", err);
+        return KN_EXIT_FAILED;
+    }
+    kn_arena_set_oom(a, &oom);
+    kn_sink *sink = kn_sink_new(a);
+    kn_rulebook *rb = load_rulebook(a, sink, o, NULL);
+    if (kn_sink_fatal(sink)) {
+        kn_sink_finish(sink);
+        render(out, sink, o, 0);
+        kn_arena_free(a);
+        return KN_EXIT_FAILED;
+    }
+    const char *family = "";
+    for (size_t i = 0; i < KN_RULE_COUNT; i++) {
+        const kn_rule_info *info = kn_rule_get((kn_rule)i);
+        if (strcmp(family, info->family) != 0) {
+            family = info->family;
+            fprintf(out, "%s%s\n", i ? "\n" : "", family);
+        }
+        fprintf(out, "  %-30s %-8s %s\n", info->id, kn_severity_name(rb->severity[i]), info->summary);
+    }
+    fprintf(out, "\nseverities from %s; `knowable explain RULE` tells more\n", rb->origin);
+    kn_arena_free(a);
+    return KN_EXIT_OK;
+}

@@ -1,0 +1,42 @@
+/* checks.h - the analyses.  Each family of rules has one file; each reads
+ * the schema model (and the timeline) and pushes diagnostics into the sink
+ * held by the context.  Nothing here prints. */
+#ifndef KN_CHECKS_CHECKS_H
+#define KN_CHECKS_CHECKS_H
+
+#include "../report/diag.h"
+#include "../rulebook/rulebook.h"
+#include "../schema/schema.h"
+#include "../time/timeline.h"
+#include "../util/arena.h"
+
+typedef struct kn_ctx {
+    kn_arena *arena;
+    kn_sink *sink;
+    const kn_rulebook *rulebook;
+    const char *today; /* YYYY-MM-DD */
+} kn_ctx;
+
+/* availability.c: after-moment, maybe-after-moment, unordered-event,
+ * window-overruns, as-of-after-moment, known-before-inputs,
+ * inherits-late-input, built-from-target. */
+void kn_check_availability(kn_ctx *c, const kn_schema *s, const kn_timeline *t);
+
+/* provenance.c: external-without-provenance, join-latest-value,
+ * no-point-in-time-history, missing-source, missing-known, unused-source. */
+void kn_check_provenance(kn_ctx *c, const kn_schema *s);
+
+/* identity.c: identifier-structured, identifier-in-features,
+ * proxy-of-excluded, suspicious-name, reversible-anonymization. */
+void kn_check_identity(kn_ctx *c, const kn_schema *s, const kn_timeline *t);
+
+/* preparation.c: fit-before-split, resample-before-split,
+ * target-encoding-in-sample, random-split-temporal, split-gap-short,
+ * entity-straddles-split. */
+void kn_check_preparation(kn_ctx *c, const kn_schema *s, const kn_timeline *t);
+
+/* waivers.c: hides waived diagnostics (after kn_sink_finish) and reports
+ * waiver-without-reason, waiver-expired, waiver-unused. */
+void kn_check_waivers(kn_ctx *c, kn_schema *s);
+
+#endif

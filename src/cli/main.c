@@ -1,0 +1,404 @@
+/* main.c - the knowable command line: parses options, calls the public API
+ * (include/knowable/knowable.h) and nothing else, and leaves through one
+ * exit path that checks that standard output was written. */
+#include <knowable/knowable.h>
+
+#include <stdarg.h>
+#include <stdio.h>
+#include <stdlib.h>
+#include <string.h>
+#include <unistd.h>
+
+#define MAX_SCHEMAS 1024
+
+static const char usage_text[] =
+    "usage: knowable COMMAND [OPTIONS] ...\n"
+    "\n"
+    "Prove, from a YAML schema beside your code, that every column of a training\n"
+    "table is known at the prediction moment.\n"
+    "\n"
+    "commands:\n"
+    "  check [OPTIONS] SCHEMA...      lint schemas (the main job)\n"
+    "  explain RULE                   what a rule finds, why, how to fix it\n"
+    "  rules [--rulebook F]           every rule with its effective severity\n"
+    "  sources SCHEMA... [--format markdown|json] [-o FILE]\n"
+    "                                 register of feature sources and their provenance\n"
+    "  timeline SCHEMA [--svg FILE]   each event and column placed relative to the moment\n"
+    "  init DATA.csv [-o FILE]        draft a schema from a data sample\n"
+    "  json-schema                    a JSON Schema of the schema format, for editors\n"
+    "  help COMMAND                   help on one command\n"
+    "\n"
+    "  --help, --version\n";
+
+static const char check_help[] =
+    "usage: knowable check [OPTIONS] SCHEMA...\n"
+    "\n"
+    "options:\n"
+    "  --data FILE            cross-check one schema against a CSV sample\n"
+    "  --rulebook FILE        house rulebook (repeatable; later ones override)\n"
+    "  --format text|json|sarif\n"
+    "  -o, --output FILE      write the report to FILE\n"
+    "  --fail-on error|warning|note|never   exit 1 at this severity (default error)\n"
+    "  --baseline FILE        report only findings not in FILE\n"
+    "  --write-baseline FILE  record the current findings in FILE\n"
+    "  --show-waived          print waived findings as notes\n"
+    "  --color auto|always|never   (auto honours NO_COLOR and non-terminals)\n"
+    "  --root DIR             includes may not leave DIR (default: the schema's folder)\n"
+    "  --max-rows N           sample at most N data rows (reservoir sampling)\n"
+    "  -q, --quiet            diagnostics only: no notes, no summary\n"
+    "\n"
+    "exit status: 0 nothing at or above --fail-on, 1 findings, 2 the check could not be done\n";
+
+static const char explain_help[] = "usage: knowable explain RULE\n\nWhat RULE finds, why it matters, an example and how to fix it.\n";
+static const char rules_help[] = "usage: knowable rules [--rulebook FILE]...\n\nEvery rule with its effective severity.\n";
+static const char sources_help[] =
+    "usage: knowable sources SCHEMA... [--format markdown|json] [-o FILE] [--root DIR]\n\n"
+    "The register of feature sources: external sources first, with their provenance,\n"
+    "then which columns come from each source, by which key and as of which event.\n";
+static const char timeline_help[] =
+    "usage: knowable timeline SCHEMA [--svg FILE] [--rulebook FILE] [--root DIR]\n\n"
+    "Each event's range relative to the moment, then each column's availability and verdict.\n"
+    "--svg FILE also draws the picture.\n";
+static const char init_help[] =
+    "usage: knowable init DATA.csv [-o FILE]\n\n"
+    "A draft schema from a CSV sample's header and values, with placeholders to fill in.\n";
+static const char json_schema_help[] = "usage: knowable json-schema\n\nA JSON Schema (draft-07) of the schema file format.\n";
+
+typedef struct args {
+    kn_options opt;
+    const char *positional[MAX_SCHEMAS];
+    size_t n_positional;
+    const char *output;
+    const char *svg;
+    const char *color; /* auto|always|never */
+    bool help;
+} args;
+
+__attribute__((format(printf, 1, 2)))
+static int bad(const char *fmt, ...)
+{
+    fputs("knowable: ", stderr);
+    va_list ap;
+    va_start(ap, fmt);
+    vfprintf(stderr, fmt, ap);
+    va_end(ap);
+    fputs("\n(try 'knowable --help')\n", stderr);
+    return KN_EXIT_FAILED;
+}
+
+/* Takes the value of an option given as --opt VALUE or --opt=VALUE. */
+static const char *value_of(int argc, char **argv, int *i, const char *name)
+{
+    const char *a = argv[*i];
+    size_t n = strlen(name);
+    if (strncmp(a, name, n) == 0 && a[n] == '=') {
+        return a + n + 1;
+    }
+    if (strcmp(a, name) == 0) {
+        if (*i + 1 >= argc) {
+            return NULL;
+        }
+        return argv[++*i];
+    }
+    return NULL;
+}
+
+static bool is_opt(const char *a, const char *name)
+{
+    size_t n = strlen(name);
+    return strncmp(a, name, n) == 0 && (a[n] == '\0' || a[n] == '=');
+}
+
+static int parse(int argc, char **argv, int first, args *ar)
+{
+    kn_options_init(&ar->opt);
+    ar->color = "auto";
+    bool only_positional = false;
+    for (int i = first; i < argc; i++) {
+        const char *a = argv[i];
+        const char *v;
+        if (only_positional || a[0] != '-' || strcmp(a, "-") == 0) {
+            if (ar->n_positional == MAX_SCHEMAS) {
+                return bad("too many files (at most %s)", "1024");
+            }
+            ar->positional[ar->n_positional++] = a;
+            continue;
+        }
+        if (strcmp(a, "--") == 0) {
+            only_positional = true;
+        } else if (strcmp(a, "-h") == 0 || strcmp(a, "--help") == 0) {
+            ar->help = true;
+        } else if (strcmp(a, "-q") == 0 || strcmp(a, "--quiet") == 0) {
+            ar->opt.quiet = true;
+        } else if (strcmp(a, "--show-waived") == 0) {
+            ar->opt.show_waived = true;
+        } else if (is_opt(a, "--data")) {
+            if (!(v = value_of(argc, argv, &i, "--data"))) {
+                return bad("%s needs a file", "--data");
+            }
+            ar->opt.data = v;
+        } else if (is_opt(a, "--rulebook")) {
+            if (!(v = value_of(argc, argv, &i, "--rulebook"))) {
+                return bad("%s needs a file", "--rulebook");
+            }
+            if (ar->opt.n_rulebooks == KN_MAX_RULEBOOKS) {
+                return bad("at most %s rulebooks", "16");
+            }
+            ar->opt.rulebooks[ar->opt.n_rulebooks++] = v;
+        } else if (is_opt(a, "--format")) {
+            if (!(v = value_of(argc, argv, &i, "--format"))) {
+                return bad("%s needs text, json, sarif or markdown", "--format");
+            }
+            if (strcmp(v, "text") == 0) {
+                ar->opt.format = KN_FORMAT_TEXT;
+            } else if (strcmp(v, "json") == 0) {
+                ar->opt.format = KN_FORMAT_JSON;
+            } else if (strcmp(v, "sarif") == 0) {
+                ar->opt.format = KN_FORMAT_SARIF;
+            } else if (strcmp(v, "markdown") == 0) {
+                ar->opt.format = KN_FORMAT_MARKDOWN;
+            } else {
+                return bad("unknown format '%s' (text, json, sarif or markdown)", v);
+            }
+        } else if (strcmp(a, "-o") == 0 || is_opt(a, "--output")) {
+            v = strcmp(a, "-o") == 0 ? (i + 1 < argc ? argv[++i] : NULL) : value_of(argc, argv, &i, "--output");
+            if (!v) {
+                return bad("%s needs a file", "-o");
+            }
+            ar->output = v;
+        } else if (is_opt(a, "--fail-on")) {
+            if (!(v = value_of(argc, argv, &i, "--fail-on"))) {
+                return bad("%s needs error, warning, note or never", "--fail-on");
+            }
+            if (strcmp(v, "error") == 0) {
+                ar->opt.fail_on = KN_FAIL_ON_ERROR;
+            } else if (strcmp(v, "warning") == 0) {
+                ar->opt.fail_on = KN_FAIL_ON_WARNING;
+            } else if (strcmp(v, "note") == 0) {
+                ar->opt.fail_on = KN_FAIL_ON_NOTE;
+            } else if (strcmp(v, "never") == 0) {
+                ar->opt.fail_on = KN_FAIL_ON_NEVER;
+            } else {
+                return bad("--fail-on takes error, warning, note or never, not '%s'", v);
+            }
+        } else if (is_opt(a, "--baseline")) {
+            if (!(v = value_of(argc, argv, &i, "--baseline"))) {
+                return bad("%s needs a file", "--baseline");
+            }
+            ar->opt.baseline = v;
+        } else if (is_opt(a, "--write-baseline")) {
+            if (!(v = value_of(argc, argv, &i, "--write-baseline"))) {
+                return bad("%s needs a file", "--write-baseline");
+            }
+            ar->opt.write_baseline = v;
+        } else if (is_opt(a, "--color")) {
+            if (!(v = value_of(argc, argv, &i, "--color"))) {
+                return bad("%s needs auto, always or never", "--color");
+            }
+            if (strcmp(v, "auto") && strcmp(v, "always") && strcmp(v, "never")) {
+                return bad("--color takes auto, always or never, not '%s'", v);
+            }
+            ar->color = v;
+        } else if (is_opt(a, "--root")) {
+            if (!(v = value_of(argc, argv, &i, "--root"))) {
+                return bad("%s needs a folder", "--root");
+            }
+            ar->opt.root = v;
+        } else if (is_opt(a, "--max-rows")) {
+            if (!(v = value_of(argc, argv, &i, "--max-rows"))) {
+                return bad("%s needs a number", "--max-rows");
+            }
+            char *end;
+            long long n = strtoll(v, &end, 10);
+            if (*end || n < 1) {
+                return bad("--max-rows takes a positive number, not '%s'", v);
+            }
+            ar->opt.max_rows = n;
+        } else if (is_opt(a, "--svg")) {
+            if (!(v = value_of(argc, argv, &i, "--svg"))) {
+                return bad("%s needs a file", "--svg");
+            }
+            ar->svg = v;
+        } else if (is_opt(a, "--today")) {
+            /* For tests and reproducible reports: the date waivers expire against. */
+            if (!(v = value_of(argc, argv, &i, "--today"))) {
+                return bad("%s needs a date YYYY-MM-DD", "--today");
+            }
+            ar->opt.today = v;
+        } else {
+            return bad("unknown option '%s'", a);
+        }
+    }
+    if (strcmp(ar->color, "always") == 0) {
+        ar->opt.color = true;
+    } else if (strcmp(ar->color, "auto") == 0) {
+        const char *no = getenv("NO_COLOR");
+        ar->opt.color = !(no && *no) && !ar->output && isatty(STDOUT_FILENO);
+    }
+    return KN_EXIT_OK;
+}
+
+/* Runs fn writing to -o FILE (atomically) or to standard output. */
+typedef kn_status (*writer_fn)(args *ar, FILE *out);
+
+static kn_status with_output(args *ar, writer_fn fn)
+{
+    if (!ar->output) {
+        return fn(ar, stdout);
+    }
+    const char *inputs[MAX_SCHEMAS + KN_MAX_RULEBOOKS + 4];
+    size_t n = 0;
+    for (size_t i = 0; i < ar->n_positional; i++) {
+        inputs[n++] = ar->positional[i];
+    }
+    for (size_t i = 0; i < ar->opt.n_rulebooks; i++) {
+        inputs[n++] = ar->opt.rulebooks[i];
+    }
+    inputs[n++] = ar->opt.data;
+    inputs[n++] = ar->opt.baseline;
+    inputs[n++] = ar->svg;
+    kn_output *o = kn_output_open(ar->output, inputs, n, stderr);
+    if (!o) {
+        return KN_EXIT_FAILED;
+    }
+    kn_status st = fn(ar, kn_output_file(o));
+    if (!kn_output_close(o, st != KN_EXIT_FAILED, stderr)) {
+        return KN_EXIT_FAILED;
+    }
+    return st;
+}
+
+static kn_status run_check(args *ar, FILE *out)
+{
+    return kn_check(&ar->opt, ar->positional, ar->n_positional, out, stderr);
+}
+
+static kn_status run_sources(args *ar, FILE *out)
+{
+    return kn_sources(&ar->opt, ar->positional, ar->n_positional, out, stderr);
+}
+
+static kn_status run_init(args *ar, FILE *out)
+{
+    return kn_init(&ar->opt, ar->positional[0], out, stderr);
+}
+
+static kn_status run_timeline(args *ar, FILE *out)
+{
+    if (!ar->svg) {
+        return kn_timeline_report(&ar->opt, ar->positional[0], out, NULL, stderr);
+    }
+    const char *inputs[2] = {ar->positional[0], ar->output};
+    kn_output *svg = kn_output_open(ar->svg, inputs, 2, stderr);
+    if (!svg) {
+        return KN_EXIT_FAILED;
+    }
+    kn_status st = kn_timeline_report(&ar->opt, ar->positional[0], out, kn_output_file(svg), stderr);
+    if (!kn_output_close(svg, st != KN_EXIT_FAILED, stderr)) {
+        return KN_EXIT_FAILED;
+    }
+    return st;
+}
+
+static const char *help_for(const char *cmd)
+{
+    static const struct {
+        const char *name, *text;
+    } t[] = {{"check", check_help},       {"explain", explain_help},   {"rules", rules_help},
+             {"sources", sources_help},   {"timeline", timeline_help}, {"init", init_help},
+             {"json-schema", json_schema_help}};
+    for (size_t i = 0; i < sizeof t / sizeof *t; i++) {
+        if (strcmp(t[i].name, cmd) == 0) {
+            return t[i].text;
+        }
+    }
+    return NULL;
+}
+
+static int dispatch(int argc, char **argv)
+{
+    if (argc < 2 || strcmp(argv[1], "--help") == 0 || strcmp(argv[1], "-h") == 0) {
+        fputs(usage_text, argc < 2 ? stderr : stdout);
+        return argc < 2 ? KN_EXIT_FAILED : KN_EXIT_OK;
+    }
+    const char *cmd = argv[1];
+    if (strcmp(cmd, "--version") == 0) {
+        printf("knowable %s\n", KN_VERSION_STRING);
+        return KN_EXIT_OK;
+    }
+    if (strcmp(cmd, "help") == 0) {
+        if (argc < 3) {
+            fputs(usage_text, stdout);
+            return KN_EXIT_OK;
+        }
+        const char *h = help_for(argv[2]);
+        if (!h) {
+            return bad("no command '%s'", argv[2]);
+        }
+        fputs(h, stdout);
+        return KN_EXIT_OK;
+    }
+    const char *h = help_for(cmd);
+    if (!h) {
+        return bad("no command '%s'", cmd);
+    }
+    static args ar;
+    int rc = parse(argc, argv, 2, &ar);
+    if (rc != KN_EXIT_OK) {
+        return rc;
+    }
+    if (ar.help) {
+        fputs(h, stdout);
+        return KN_EXIT_OK;
+    }
+    if (strcmp(cmd, "check") == 0) {
+        if (!ar.n_positional) {
+            return bad("%s needs at least one schema file", "check");
+        }
+        if (ar.opt.data && ar.n_positional != 1) {
+            return bad("%s takes exactly one schema", "--data");
+        }
+        return with_output(&ar, run_check);
+    }
+    if (strcmp(cmd, "explain") == 0) {
+        if (ar.n_positional != 1) {
+            return bad("%s takes one rule id", "explain");
+        }
+        return kn_explain(ar.positional[0], stdout, stderr);
+    }
+    if (strcmp(cmd, "rules") == 0) {
+        return kn_rules(&ar.opt, stdout, stderr);
+    }
+    if (strcmp(cmd, "sources") == 0) {
+        if (!ar.n_positional) {
+            return bad("%s needs at least one schema file", "sources");
+        }
+        if (ar.opt.format == KN_FORMAT_TEXT) {
+            ar.opt.format = KN_FORMAT_MARKDOWN;
+        }
+        return with_output(&ar, run_sources);
+    }
+    if (strcmp(cmd, "timeline") == 0) {
+        if (ar.n_positional != 1) {
+            return bad("%s takes one schema file", "timeline");
+        }
+        return with_output(&ar, run_timeline);
+    }
+    if (strcmp(cmd, "init") == 0) {
+        if (ar.n_positional != 1) {
+            return bad("%s takes one CSV file", "init");
+        }
+        return with_output(&ar, run_init);
+    }
+    return kn_json_schema(stdout, stderr);
+}
+
+int main(int argc, char **argv)
+{
+    int rc = dispatch(argc, argv);
+    if (fflush(stdout) != 0 || ferror(stdout)) {
+        fputs("knowable: error writing standard output\n", stderr);
+        rc = KN_EXIT_FAILED;
+    }
+    return rc;
+}

@@ -1,0 +1,489 @@
+/* rulebook.c - reads house rulebooks (SPEC §6) over the built-in default:
+ * severities, required provenance fields, suspicious-name patterns, the
+ * identifier pattern, thresholds and strict_moment.  Every pattern is
+ * compiled once here (with JIT where available); errors point into the
+ * rulebook file and make the run fail with exit status 2. */
+#include "rulebook.h"
+
+#include <errno.h>
+#include <limits.h>
+#include <stdlib.h>
+#include <string.h>
+#include <sys/stat.h>
+
+#define PCRE2_CODE_UNIT_WIDTH 8
+#include <pcre2.h>
+
+#include "../util/text.h"
+
+extern const char kn_default_rulebook[];
+extern const size_t kn_default_rulebook_len;
+
+#define MAX_EXTENDS_DEPTH 8
+
+static const char *const top_keys[] = {"knowable_rulebook", "extends", "severity", "strict_moment",
+                                       "require", "names", "identifier_names", "thresholds"};
+static const char *const require_keys[] = {"external_source", "feature"};
+static const char *const name_keys[] = {"pattern", "applies_to", "why"};
+static const char *const threshold_keys[] = {"separation_auc", "uncertainty", "missingness_auc",
+                                             "segment_uncertainty", "min_group_size"};
+#define N(a) (sizeof(a) / sizeof((a)[0]))
+
+kn_rulebook *kn_rulebook_new(kn_arena *a)
+{
+    kn_rulebook *rb = kn_alloc(a, sizeof *rb);
+    for (size_t i = 0; i < KN_RULE_COUNT; i++) {
+        rb->severity[i] = kn_rule_get((kn_rule)i)->severity;
+    }
+    rb->thresholds.separation_auc = 0.95;
+    rb->thresholds.uncertainty = 0.8;
+    rb->thresholds.missingness_auc = 0.9;
+    rb->thresholds.segment_uncertainty = 0.5;
+    rb->thresholds.min_group_size = 5;
+    rb->origin = "(built-in)";
+    return rb;
+}
+
+typedef struct rb_ld {
+    kn_rulebook *rb;
+    kn_arena *a;
+    kn_sink *sink;
+    bool failed;
+} rb_ld;
+
+__attribute__((format(printf, 4, 5)))
+static kn_diag *fail(rb_ld *l, kn_rule r, const kn_node *at, const char *fmt, ...)
+{
+    va_list ap;
+    va_start(ap, fmt);
+    char *msg = kn_vprintf(l->a, fmt, ap);
+    va_end(ap);
+    l->failed = true;
+    kn_sink_mark_fatal(l->sink);
+    return kn_diag_push(l->sink, r, &at->pos, NULL, "%s", msg);
+}
+
+static bool known_key(rb_ld *l, const kn_node *k, const char *where, const char *const *keys, size_t n)
+{
+    const char *name = kn_node_str(k);
+    if (!name) {
+        fail(l, KN_R_SCHEMA_SHAPE, k, "a key of %s must be a plain word", where);
+        return false;
+    }
+    for (size_t i = 0; i < n; i++) {
+        if (strcmp(keys[i], name) == 0) {
+            return true;
+        }
+    }
+    const char *near = kn_suggest(name, keys, n);
+    char *esc = kn_escape_term(l->a, name, strlen(name));
+    if (near) {
+        fail(l, KN_R_SCHEMA_SHAPE, k, "unknown key '%s' in %s; did you mean '%s'?", esc, where, near);
+    } else {
+        fail(l, KN_R_SCHEMA_SHAPE, k, "unknown key '%s' in %s", esc, where);
+    }
+    return false;
+}
+
+static void free_code(void *p)
+{
+    pcre2_code_free(p);
+}
+
+/* Compiles a rulebook or schema pattern; NULL after a bad-pattern error. */
+static void *compile(rb_ld *l, const kn_node *v, const char *what)
+{
+    int code;
+    PCRE2_SIZE off;
+    kn_defer *d = kn_arena_defer(l->a, free_code, NULL);
+    pcre2_code *re = pcre2_compile((PCRE2_SPTR)v->u.scalar.text, v->u.scalar.len, PCRE2_UTF, &code, &off, NULL);
+    if (!re) {
+        if (code == PCRE2_ERROR_NOMEMORY) {
+            kn_arena_oom(l->a);
+        }
+        PCRE2_UCHAR msg[256];
+        pcre2_get_error_message(code, msg, sizeof msg);
+        kn_pos p = kn_node_char_pos(v, off);
+        l->failed = true;
+        kn_sink_mark_fatal(l->sink);
+        kn_diag *dg = kn_diag_push(l->sink, KN_R_BAD_PATTERN, &p, NULL, "%s is not a valid PCRE2 pattern: %s", what,
+                                   (char *)msg);
+        kn_diag_note(l->sink, dg, &v->pos, "the pattern starts here; the error is at character %zu", (size_t)off + 1);
+        return NULL;
+    }
+    d->ptr = re;
+    pcre2_jit_compile(re, PCRE2_JIT_COMPLETE);
+    return re;
+}
+
+static bool parse_severity(const char *s, kn_severity *out)
+{
+    static const struct {
+        const char *name;
+        kn_severity sev;
+    } t[] = {{"error", KN_SEV_ERROR}, {"warning", KN_SEV_WARNING}, {"note", KN_SEV_NOTE}, {"off", KN_SEV_OFF}};
+    for (size_t i = 0; i < N(t); i++) {
+        if (strcmp(t[i].name, s) == 0) {
+            *out = t[i].sev;
+            return true;
+        }
+    }
+    return false;
+}
+
+static void load_severity(rb_ld *l, const kn_node *v)
+{
+    if (v->kind != KN_NODE_MAP) {
+        fail(l, KN_R_SCHEMA_SHAPE, v, "'severity' must be a mapping of rule ids to error, warning, note or off");
+        return;
+    }
+    for (size_t i = 0; i < v->u.map.n; i++) {
+        const kn_node *k = v->u.map.pairs[i].key, *s = v->u.map.pairs[i].value;
+        const char *id = kn_node_str(k);
+        kn_rule r;
+        if (!id || !kn_rule_find(id, strlen(id), &r)) {
+            const char *ids[KN_RULE_COUNT];
+            for (size_t j = 0; j < KN_RULE_COUNT; j++) {
+                ids[j] = kn_rule_get((kn_rule)j)->id;
+            }
+            const char *near = id ? kn_suggest(id, ids, KN_RULE_COUNT) : NULL;
+            const char *esc = id ? kn_escape_term(l->a, id, strlen(id)) : "";
+            if (near) {
+                fail(l, KN_R_UNKNOWN_REFERENCE, k, "unknown rule id '%s'; did you mean '%s'?", esc, near);
+            } else {
+                fail(l, KN_R_UNKNOWN_REFERENCE, k, "unknown rule id '%s' (`knowable rules` lists them)", esc);
+            }
+            continue;
+        }
+        kn_severity sev;
+        const char *word = kn_node_str(s);
+        if (!word || !parse_severity(word, &sev)) {
+            fail(l, KN_R_SCHEMA_SHAPE, s, "the severity of '%s' must be error, warning, note or off", id);
+            continue;
+        }
+        l->rb->severity[r] = sev;
+    }
+}
+
+static void load_require(rb_ld *l, const kn_node *v)
+{
+    if (v->kind != KN_NODE_MAP) {
+        fail(l, KN_R_SCHEMA_SHAPE, v, "'require' must be a mapping with external_source and feature");
+        return;
+    }
+    for (size_t i = 0; i < v->u.map.n; i++) {
+        const kn_node *k = v->u.map.pairs[i].key, *list = v->u.map.pairs[i].value;
+        if (!known_key(l, k, "require", require_keys, N(require_keys))) {
+            continue;
+        }
+        bool ext = strcmp(k->u.scalar.text, "external_source") == 0;
+        if (list->kind != KN_NODE_SEQ) {
+            fail(l, KN_R_SCHEMA_SHAPE, list, "'require.%s' must be a list of field names", k->u.scalar.text);
+            continue;
+        }
+        if (ext) {
+            memset(l->rb->require_external, 0, sizeof l->rb->require_external);
+        } else {
+            l->rb->require_feature_known = l->rb->require_feature_source = false;
+        }
+        for (size_t j = 0; j < list->u.seq.n; j++) {
+            const kn_node *f = list->u.seq.items[j];
+            const char *name = kn_node_str(f);
+            if (ext) {
+                size_t idx = KN_SF_COUNT;
+                for (size_t m = 0; name && m < KN_SF_COUNT; m++) {
+                    if (strcmp(kn_source_field_names[m], name) == 0) {
+                        idx = m;
+                    }
+                }
+                if (idx == KN_SF_COUNT) {
+                    const char *near = name ? kn_suggest(name, kn_source_field_names, KN_SF_COUNT) : NULL;
+                    fail(l, KN_R_SCHEMA_SHAPE, f, "'%s' is not a field of a source%s%s%s",
+                         name ? kn_escape_term(l->a, name, strlen(name)) : "", near ? "; did you mean '" : "",
+                         near ? near : "", near ? "'?" : "");
+                    continue;
+                }
+                l->rb->require_external[idx] = true;
+            } else if (name && strcmp(name, "known") == 0) {
+                l->rb->require_feature_known = true;
+            } else if (name && strcmp(name, "source") == 0) {
+                l->rb->require_feature_source = true;
+            } else {
+                fail(l, KN_R_SCHEMA_SHAPE, f, "'require.feature' takes known and source");
+            }
+        }
+    }
+}
+
+static void load_names(rb_ld *l, const kn_node *v)
+{
+    if (v->kind != KN_NODE_SEQ) {
+        fail(l, KN_R_SCHEMA_SHAPE, v, "'names' must be a list of {pattern, applies_to, why}");
+        return;
+    }
+    kn_name_rule *rules = kn_alloc_array(l->a, l->rb->n_names + v->u.seq.n, sizeof *rules);
+    if (l->rb->n_names) {
+        memcpy(rules, l->rb->names, l->rb->n_names * sizeof *rules);
+    }
+    size_t n = l->rb->n_names;
+    for (size_t i = 0; i < v->u.seq.n; i++) {
+        const kn_node *item = v->u.seq.items[i];
+        if (item->kind != KN_NODE_MAP) {
+            fail(l, KN_R_SCHEMA_SHAPE, item, "each entry of 'names' must be a mapping {pattern, applies_to, why}");
+            continue;
+        }
+        kn_name_rule r = {0};
+        r.applies_to = KN_APPLIES_NAME;
+        const kn_node *pat = NULL;
+        bool ok = true;
+        for (size_t j = 0; j < item->u.map.n; j++) {
+            const kn_node *k = item->u.map.pairs[j].key, *x = item->u.map.pairs[j].value;
+            if (!known_key(l, k, "a names entry", name_keys, N(name_keys))) {
+                ok = false;
+                continue;
+            }
+            const char *key = k->u.scalar.text, *val = kn_node_str(x);
+            if (!val || kn_node_is_null(x)) {
+                fail(l, KN_R_SCHEMA_SHAPE, x, "'%s' of a names entry must be a string", key);
+                ok = false;
+            } else if (strcmp(key, "pattern") == 0) {
+                pat = x;
+            } else if (strcmp(key, "why") == 0) {
+                r.why = val;
+            } else if (strcmp(val, "name") == 0) {
+                r.applies_to = KN_APPLIES_NAME;
+            } else if (strcmp(val, "description") == 0) {
+                r.applies_to = KN_APPLIES_DESCRIPTION;
+            } else if (strcmp(val, "both") == 0) {
+                r.applies_to = KN_APPLIES_BOTH;
+            } else {
+                fail(l, KN_R_SCHEMA_SHAPE, x, "'applies_to' must be name, description or both");
+                ok = false;
+            }
+        }
+        if (!pat || !r.why) {
+            if (ok) {
+                fail(l, KN_R_SCHEMA_SHAPE, item, "a names entry needs both 'pattern' and 'why'");
+            }
+            continue;
+        }
+        r.pattern = pat->u.scalar.text;
+        r.pos = pat->pos;
+        r.code = compile(l, pat, "this suspicious-name pattern");
+        if (r.code && ok) {
+            rules[n++] = r;
+        }
+    }
+    l->rb->names = rules;
+    l->rb->n_names = n;
+}
+
+static void load_thresholds(rb_ld *l, const kn_node *v)
+{
+    if (v->kind != KN_NODE_MAP) {
+        fail(l, KN_R_SCHEMA_SHAPE, v, "'thresholds' must be a mapping");
+        return;
+    }
+    kn_thresholds *t = &l->rb->thresholds;
+    for (size_t i = 0; i < v->u.map.n; i++) {
+        const kn_node *k = v->u.map.pairs[i].key, *x = v->u.map.pairs[i].value;
+        if (!known_key(l, k, "thresholds", threshold_keys, N(threshold_keys))) {
+            continue;
+        }
+        const char *key = k->u.scalar.text;
+        if (strcmp(key, "min_group_size") == 0) {
+            long long n;
+            if (!kn_node_int(x, &n) || n < 1 || n > 1000000) {
+                fail(l, KN_R_SCHEMA_SHAPE, x, "'min_group_size' must be an integer between 1 and 1000000");
+                continue;
+            }
+            t->min_group_size = n;
+            continue;
+        }
+        double d;
+        double lo = strcmp(key, "uncertainty") == 0 || strcmp(key, "segment_uncertainty") == 0 ? 0.0 : 0.5;
+        if (!kn_node_number(x, &d) || d < lo || d > 1.0) {
+            fail(l, KN_R_SCHEMA_SHAPE, x, "'%s' must be a number between %g and 1", key, lo);
+            continue;
+        }
+        if (strcmp(key, "separation_auc") == 0) {
+            t->separation_auc = d;
+        } else if (strcmp(key, "uncertainty") == 0) {
+            t->uncertainty = d;
+        } else if (strcmp(key, "missingness_auc") == 0) {
+            t->missingness_auc = d;
+        } else {
+            t->segment_uncertainty = d;
+        }
+    }
+}
+
+static char *dir_of(kn_arena *a, const char *path)
+{
+    const char *slash = strrchr(path, '/');
+    return slash ? kn_strndup(a, path, (size_t)(slash - path)) : kn_strdup(a, ".");
+}
+
+static bool load_tree(rb_ld *l, const kn_node *root, const char *path, int depth);
+
+static void load_extends(rb_ld *l, const kn_node *v, const char *path, int depth)
+{
+    const kn_node *single[1] = {v};
+    const kn_node *const *items = single;
+    size_t n = 1;
+    if (v->kind == KN_NODE_SEQ) {
+        items = (const kn_node *const *)v->u.seq.items;
+        n = v->u.seq.n;
+    }
+    for (size_t i = 0; i < n; i++) {
+        const char *rel = kn_node_str(items[i]);
+        if (!rel || !*rel) {
+            fail(l, KN_R_SCHEMA_SHAPE, items[i], "'extends' takes relative paths of rulebook files");
+            continue;
+        }
+        if (rel[0] == '/') {
+            fail(l, KN_R_INCLUDE_REFUSED, items[i], "'extends' takes relative paths; '%s' is absolute",
+                 kn_escape_term(l->a, rel, strlen(rel)));
+            continue;
+        }
+        if (depth >= MAX_EXTENDS_DEPTH) {
+            fail(l, KN_R_INCLUDE_REFUSED, items[i], "rulebooks extend each other more than %d levels deep (a loop?)",
+                 MAX_EXTENDS_DEPTH);
+            continue;
+        }
+        char *dir = dir_of(l->a, path);
+        char *full = strcmp(dir, ".") == 0 ? kn_strdup(l->a, rel) : kn_printf(l->a, "%s/%s", dir, rel);
+        kn_yaml_limits lim;
+        kn_yaml_limits_default(&lim);
+        kn_node *root = kn_yaml_load_file(l->a, l->sink, full, full, &lim);
+        if (!root) {
+            l->failed = true;
+            continue;
+        }
+        load_tree(l, root, full, depth + 1);
+    }
+}
+
+static bool load_tree(rb_ld *l, const kn_node *root, const char *path, int depth)
+{
+    if (root->kind != KN_NODE_MAP) {
+        fail(l, KN_R_SCHEMA_SHAPE, root, "a rulebook must be a mapping that starts with knowable_rulebook: 1");
+        return false;
+    }
+    const kn_node *version = kn_map_get(root, "knowable_rulebook");
+    long long ver;
+    if (!version || !kn_node_int(version, &ver) || ver != 1) {
+        fail(l, KN_R_SCHEMA_SHAPE, version ? version : root, "a rulebook starts with knowable_rulebook: 1");
+    }
+    /* extends first, so this file's settings override the ones it extends. */
+    const kn_node *ext = kn_map_get(root, "extends");
+    if (ext) {
+        load_extends(l, ext, path, depth);
+    }
+    for (size_t i = 0; i < root->u.map.n; i++) {
+        const kn_node *k = root->u.map.pairs[i].key, *v = root->u.map.pairs[i].value;
+        if (!known_key(l, k, "the rulebook", top_keys, N(top_keys))) {
+            continue;
+        }
+        const char *key = k->u.scalar.text;
+        if (strcmp(key, "severity") == 0) {
+            load_severity(l, v);
+        } else if (strcmp(key, "strict_moment") == 0) {
+            bool b;
+            if (!kn_node_bool(v, &b)) {
+                fail(l, KN_R_SCHEMA_SHAPE, v, "'strict_moment' must be true or false");
+            } else {
+                l->rb->strict_moment = b;
+            }
+        } else if (strcmp(key, "require") == 0) {
+            load_require(l, v);
+        } else if (strcmp(key, "names") == 0) {
+            load_names(l, v);
+        } else if (strcmp(key, "identifier_names") == 0) {
+            if (v->kind != KN_NODE_SCALAR || kn_node_is_null(v)) {
+                fail(l, KN_R_SCHEMA_SHAPE, v, "'identifier_names' must be a pattern");
+            } else {
+                void *code = compile(l, v, "the identifier_names pattern");
+                if (code) {
+                    l->rb->identifier_names = v->u.scalar.text;
+                    l->rb->identifier_code = code;
+                }
+            }
+        } else if (strcmp(key, "thresholds") == 0) {
+            load_thresholds(l, v);
+        }
+    }
+    return !l->failed;
+}
+
+bool kn_rulebook_load_default(kn_rulebook *rb, kn_arena *a, kn_sink *sink)
+{
+    kn_yaml_limits lim;
+    kn_yaml_limits_default(&lim);
+    kn_node *root = kn_yaml_parse(a, sink, "(built-in rules/default.yaml)", kn_default_rulebook,
+                                  kn_default_rulebook_len, &lim);
+    if (!root) {
+        return false;
+    }
+    rb_ld l = {rb, a, sink, false};
+    bool ok = load_tree(&l, root, ".", 0);
+    rb->origin = "(built-in)";
+    return ok;
+}
+
+bool kn_rulebook_load(kn_rulebook *rb, kn_arena *a, kn_sink *sink, const char *path)
+{
+    kn_yaml_limits lim;
+    kn_yaml_limits_default(&lim);
+    kn_node *root = kn_yaml_load_file(a, sink, path, path, &lim);
+    if (!root) {
+        return false;
+    }
+    rb_ld l = {rb, a, sink, false};
+    bool ok = load_tree(&l, root, path, 0);
+    rb->origin = path;
+    return ok;
+}
+
+static bool exists(const char *path, bool dir)
+{
+    struct stat st;
+    return stat(path, &st) == 0 && (dir ? S_ISDIR(st.st_mode) : S_ISREG(st.st_mode));
+}
+
+char *kn_rulebook_discover(kn_arena *a, const char *schema_path)
+{
+    char *real = realpath(schema_path, NULL);
+    if (!real) {
+        return NULL;
+    }
+    char *dir = kn_strdup(a, real);
+    free(real);
+    char *slash = strrchr(dir, '/');
+    if (slash) {
+        *slash = '\0';
+    }
+    for (int guard = 0; guard < 256; guard++) {
+        char *cand = kn_printf(a, "%s/.knowable-rules.yaml", *dir ? dir : "");
+        if (exists(cand, false)) {
+            return cand;
+        }
+        if (exists(kn_printf(a, "%s/.git", *dir ? dir : ""), true) ||
+            exists(kn_printf(a, "%s/.git", *dir ? dir : ""), false)) {
+            return NULL;
+        }
+        slash = strrchr(dir, '/');
+        if (!slash || !*dir) {
+            return NULL;
+        }
+        *slash = '\0';
+    }
+    return NULL;
+}
+
+void kn_rulebook_apply(const kn_rulebook *rb, kn_sink *sink)
+{
+    for (size_t i = 0; i < KN_RULE_COUNT; i++) {
+        kn_sink_set_severity(sink, (kn_rule)i, rb->severity[i]);
+    }
+}

@@ -1,0 +1,65 @@
+/* rulebook.h - the house rulebook (SPEC §6): severities, required fields,
+ * suspicious-name patterns, the identifier pattern, thresholds and
+ * strict_moment.  Loaded from rules/default.yaml (compiled into the binary)
+ * and then from each --rulebook file or the discovered .knowable-rules.yaml,
+ * later ones overriding earlier ones. */
+#ifndef KN_RULEBOOK_RULEBOOK_H
+#define KN_RULEBOOK_RULEBOOK_H
+
+#include <stdbool.h>
+#include <stddef.h>
+
+#include "../report/diag.h"
+#include "../schema/schema.h"
+#include "../util/arena.h"
+
+typedef enum kn_applies { KN_APPLIES_NAME, KN_APPLIES_DESCRIPTION, KN_APPLIES_BOTH } kn_applies;
+
+typedef struct kn_name_rule {
+    const char *pattern;
+    void *code; /* pcre2_code_8 *, compiled once */
+    kn_applies applies_to;
+    const char *why;
+    kn_pos pos; /* of the pattern in its rulebook file */
+} kn_name_rule;
+
+typedef struct kn_thresholds {
+    double separation_auc;      /* default 0.95 */
+    double uncertainty;         /* default 0.8 */
+    double missingness_auc;     /* default 0.9 */
+    double segment_uncertainty; /* default 0.5 */
+    long long min_group_size;   /* default 5 */
+} kn_thresholds;
+
+typedef struct kn_rulebook {
+    kn_severity severity[KN_RULE_COUNT];
+    bool strict_moment;
+    bool require_external[KN_SF_COUNT]; /* require.external_source */
+    bool require_feature_known;         /* require.feature contains known */
+    bool require_feature_source;        /* require.feature contains source */
+    kn_name_rule *names;
+    size_t n_names;
+    const char *identifier_names;
+    void *identifier_code; /* pcre2_code_8 * */
+    kn_thresholds thresholds;
+    const char *origin; /* display path of the last file read, or "(built-in)" */
+} kn_rulebook;
+
+/* A rulebook with the rule table's default severities and nothing else;
+ * then kn_rulebook_load_default reads the built-in rules/default.yaml. */
+kn_rulebook *kn_rulebook_new(kn_arena *a);
+bool kn_rulebook_load_default(kn_rulebook *rb, kn_arena *a, kn_sink *sink);
+
+/* Reads a rulebook file over rb (following extends).  Errors are pushed
+ * into the sink pointing into the rulebook file and the sink is marked
+ * fatal; returns false then. */
+bool kn_rulebook_load(kn_rulebook *rb, kn_arena *a, kn_sink *sink, const char *path);
+
+/* Finds .knowable-rules.yaml in the schema's folder or a parent, stopping
+ * at a folder that holds .git.  Returns an arena path or NULL. */
+char *kn_rulebook_discover(kn_arena *a, const char *schema_path);
+
+/* Copies the severities into the sink. */
+void kn_rulebook_apply(const kn_rulebook *rb, kn_sink *sink);
+
+#endif

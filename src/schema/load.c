@@ -1,0 +1,1375 @@
+/* load.c - builds the schema model (schema.h) from YAML trees: checks each
+ * mapping against the shape tables (shape.c), parses durations and lags,
+ * compiles format patterns, merges included files, resolves every name and
+ * finds derivation cycles.  Hands the model on to the analyses. */
+#include "schema.h"
+
+#include <errno.h>
+#include <limits.h>
+#include <stdlib.h>
+#include <string.h>
+
+#define PCRE2_CODE_UNIT_WIDTH 8
+#include <pcre2.h>
+
+#include "../util/names.h"
+#include "../util/text.h"
+#include "shape.h"
+
+#define MAX_INCLUDE_DEPTH 16
+#define MAX_INCLUDED_FILES 256
+#define MAX_KEYS 16
+
+/* Indices into the shape tables of shape.c (kept in the same order; the
+ * unit test test_schema checks them against the tables' names). */
+enum { T_KNOWABLE, T_DATASET, T_DESCRIPTION, T_INCLUDE, T_PREDICTION, T_EVENTS, T_SOURCES, T_COLUMNS, T_PIPELINE, T_SPLIT };
+enum { I_KNOWABLE, I_DESCRIPTION, I_INCLUDE, I_EVENTS, I_SOURCES };
+enum { P_MOMENT, P_TARGET, P_ENTITY, P_MOMENT_COLUMN, P_LABEL_KNOWN };
+enum { E_AFTER, E_BEFORE, E_DESCRIPTION };
+enum { C_ROLE, C_TYPE, C_KNOWN, C_DELAY, C_SOURCE, C_JOIN, C_DERIVED, C_WINDOW, C_PROXY, C_FORMAT, C_ANON, C_QI, C_DESCRIPTION, C_WAIVE };
+enum { J_KEY, J_AS_OF, J_SOURCE };
+enum { W_ANCHOR, W_FROM, W_TO };
+enum { A_METHOD, A_SALTED };
+enum { V_RULE, V_REASON, V_EXPIRES };
+enum { S_STEP, S_FIT, S_COLUMNS, S_DESCRIPTION };
+enum { X_METHOD, X_COLUMN, X_TIME_COLUMN, X_GROUP_COLUMN, X_GAP, X_FOLDS };
+
+const char *const kn_source_field_names[KN_SF_COUNT] = {
+    "kind", "description", "owner", "contact", "latency", "refresh", "history",
+    "provider", "license", "retrieved", "version", "point_in_time", "documentation",
+};
+
+/* Who owns a mapping, for messages; formatted only when a message needs it. */
+typedef struct owner {
+    const char *what; /* "column", "source", "event", "prediction", ... */
+    const char *name; /* NULL for singletons */
+    long index;       /* >= 0 for list items (1-based when printed) */
+    kn_node *at;      /* where "missing key" diagnostics point */
+} owner;
+
+typedef struct file_ctx {
+    const char *real;    /* realpath */
+    const char *display; /* as printed */
+} file_ctx;
+
+typedef struct ld {
+    kn_arena *a;
+    kn_sink *sink;
+    kn_schema *s;
+    const kn_load_options *opt;
+    const char *root_real;
+    kn_vec *stack;   /* file_ctx: the include chain */
+    kn_name_map *loaded;
+    kn_vec *events, *sources, *columns; /* pointers */
+    kn_node **include_nodes;            /* per stack level: the include's value node */
+    size_t n_files;
+    bool errors;
+} ld;
+
+static const char *owner_str(ld *l, const owner *o)
+{
+    if (o->name) {
+        return kn_printf(l->a, "%s '%s'", o->what, kn_escape_term(l->a, o->name, strlen(o->name)));
+    }
+    if (o->index >= 0) {
+        return kn_printf(l->a, "%s %ld", o->what, o->index + 1);
+    }
+    return o->what;
+}
+
+static const char *esc(ld *l, const char *s)
+{
+    return kn_escape_term(l->a, s, strlen(s));
+}
+
+static const char *node_esc(ld *l, const kn_node *n)
+{
+    if (n->kind == KN_NODE_SCALAR) {
+        return kn_escape_term(l->a, n->u.scalar.text, n->u.scalar.len);
+    }
+    return "";
+}
+
+__attribute__((format(printf, 4, 5)))
+static kn_diag *err(ld *l, kn_rule r, const kn_node *at, const char *fmt, ...)
+{
+    va_list ap;
+    va_start(ap, fmt);
+    char *msg = kn_vprintf(l->a, fmt, ap);
+    va_end(ap);
+    l->errors = true;
+    return kn_diag_push(l->sink, r, at ? &at->pos : NULL, NULL, "%s", msg);
+}
+
+static const char *kind_expect(const kn_key_spec *k)
+{
+    switch (k->kind) {
+    case KN_V_STRING:
+        return "a string";
+    case KN_V_INT:
+        return "an integer";
+    case KN_V_VERSION:
+        return "the format version 1";
+    case KN_V_BOOL:
+        return "true or false";
+    case KN_V_DATE:
+        return "a date YYYY-MM-DD";
+    case KN_V_NAME:
+        return k->ref == KN_REF_EVENT_K ? "an event name"
+               : k->ref == KN_REF_SOURCE_K ? "a source name"
+               : k->ref == KN_REF_RULE_K ? "a rule id"
+                                         : "a column name";
+    case KN_V_NAMES:
+        return "a list of column names";
+    case KN_V_NAME_OR_NAMES:
+        return "a column name or a list of column names";
+    case KN_V_DURATION:
+        return "an ISO 8601 duration such as PT30M";
+    case KN_V_LAG:
+        return "a duration or a list [MIN, MAX]";
+    case KN_V_ENUM:
+        return "one of the listed words";
+    case KN_V_MAP:
+        return "a mapping";
+    case KN_V_LIST_OF_MAP:
+        return "a list of mappings";
+    case KN_V_RELATION:
+        return "an event name or a mapping of event names to lags";
+    case KN_V_NAMED_MAPS:
+        return "a mapping of names";
+    case KN_V_PATHS:
+        return "a list of relative paths";
+    case KN_V_PATTERN:
+        return "a PCRE2 pattern";
+    }
+    return "a value";
+}
+
+static kn_diag *wrong_type(ld *l, const owner *o, const kn_key_spec *k, const kn_node *v)
+{
+    return err(l, KN_R_SCHEMA_SHAPE, v, "'%s' of %s must be %s, not %s", k->name, owner_str(l, o),
+               kind_expect(k), kn_node_kind_name(v));
+}
+
+static bool is_name(const kn_node *v)
+{
+    return v->kind == KN_NODE_SCALAR && !kn_node_is_null(v) && v->u.scalar.len > 0;
+}
+
+static bool valid_date(const char *s)
+{
+    if (strlen(s) != 10 || s[4] != '-' || s[7] != '-') {
+        return false;
+    }
+    for (int i = 0; i < 10; i++) {
+        if (i != 4 && i != 7 && (s[i] < '0' || s[i] > '9')) {
+            return false;
+        }
+    }
+    int y = atoi(s), m = atoi(s + 5), d = atoi(s + 8);
+    static const int days[] = {31, 28, 31, 30, 31, 30, 31, 31, 30, 31, 30, 31};
+    if (m < 1 || m > 12 || d < 1) {
+        return false;
+    }
+    int max = days[m - 1];
+    if (m == 2 && ((y % 4 == 0 && y % 100 != 0) || y % 400 == 0)) {
+        max = 29;
+    }
+    return d <= max;
+}
+
+static bool parse_duration(ld *l, const owner *o, const char *key, const kn_node *v, kn_interval *out)
+{
+    if (v->kind != KN_NODE_SCALAR || kn_node_is_null(v)) {
+        err(l, KN_R_BAD_DURATION, v, "'%s' of %s must be an ISO 8601 duration such as PT30M, not %s",
+            key, owner_str(l, o), kn_node_kind_name(v));
+        return false;
+    }
+    size_t off = 0;
+    const char *why = NULL;
+    if (!kn_duration_parse(v->u.scalar.text, v->u.scalar.len, out, &off, &why)) {
+        kn_pos p = kn_node_char_pos(v, off);
+        l->errors = true;
+        kn_diag *d = kn_diag_push(l->sink, KN_R_BAD_DURATION, &p, o->name,
+                                  "'%s' of %s is not an ISO 8601 duration: %s", node_esc(l, v),
+                                  owner_str(l, o), why ? why : "malformed");
+        kn_diag_note(l->sink, d, &v->pos,
+                     "durations look like PT30M, PT6H, P3D, P1W, P1M or -PT1H (PnYnMnWnDTnHnMnS)");
+        return false;
+    }
+    return true;
+}
+
+/* LAG: DURATION, or [MIN, MAX] with MAX possibly null (unbounded). */
+static bool parse_lag(ld *l, const owner *o, const char *key, kn_node *v, kn_lag *out)
+{
+    kn_interval a, b;
+    out->node = v;
+    if (v->kind == KN_NODE_SEQ) {
+        if (v->u.seq.n != 2) {
+            err(l, KN_R_BAD_DURATION, v, "'%s' of %s must be a duration or a list [MIN, MAX] of two durations; this list has %zu items",
+                key, owner_str(l, o), v->u.seq.n);
+            return false;
+        }
+        kn_node *mn = v->u.seq.items[0], *mx = v->u.seq.items[1];
+        if (!parse_duration(l, o, key, mn, &a)) {
+            return false;
+        }
+        if (kn_node_is_null(mx)) {
+            b.lo = b.hi = KN_TIME_INF;
+        } else if (!parse_duration(l, o, key, mx, &b)) {
+            return false;
+        }
+        if (a.lo > b.hi) {
+            char s1[48], s2[48];
+            kn_diag *d = err(l, KN_R_BAD_DURATION, v, "'%s' of %s has its minimum %s above its maximum %s",
+                             key, owner_str(l, o), kn_duration_format(a.lo, s1, sizeof s1),
+                             kn_duration_format(b.hi, s2, sizeof s2));
+            kn_diag_note(l->sink, d, &mn->pos, "a lag is written [MIN, MAX] with MIN <= MAX");
+            return false;
+        }
+        out->lo = a.lo;
+        out->hi = b.hi;
+        out->present = true;
+        return true;
+    }
+    if (!parse_duration(l, o, key, v, &a)) {
+        return false;
+    }
+    out->lo = a.lo;
+    out->hi = a.hi;
+    out->present = true;
+    return true;
+}
+
+static int enum_index(const char *const *values, const char *s)
+{
+    for (int i = 0; values[i]; i++) {
+        if (strcmp(values[i], s) == 0) {
+            return i;
+        }
+    }
+    return -1;
+}
+
+static void bad_enum(ld *l, const owner *o, const kn_key_spec *k, const kn_node *v)
+{
+    size_t n = 0;
+    while (k->values[n]) {
+        n++;
+    }
+    const char *list = "";
+    for (size_t i = 0; i < n; i++) {
+        list = kn_printf(l->a, "%s%s%s", list, i ? (i + 1 == n ? " or " : ", ") : "", k->values[i]);
+    }
+    const char *near = v->kind == KN_NODE_SCALAR ? kn_suggest(v->u.scalar.text, k->values, n) : NULL;
+    if (near) {
+        err(l, KN_R_SCHEMA_SHAPE, v, "'%s' of %s is '%s', which is not %s; did you mean '%s'?", k->name,
+            owner_str(l, o), node_esc(l, v), list, near);
+    } else {
+        err(l, KN_R_SCHEMA_SHAPE, v, "'%s' of %s is '%s', which is not %s", k->name, owner_str(l, o),
+            node_esc(l, v), list);
+    }
+}
+
+/* Checks the value of one key against its spec; true when usable. */
+static bool check_value(ld *l, const owner *o, const kn_key_spec *k, kn_node *v)
+{
+    switch (k->kind) {
+    case KN_V_STRING:
+    case KN_V_PATTERN:
+        if (v->kind != KN_NODE_SCALAR || kn_node_is_null(v)) {
+            wrong_type(l, o, k, v);
+            return false;
+        }
+        return true;
+    case KN_V_INT: {
+        long long x;
+        if (!kn_node_int(v, &x)) {
+            wrong_type(l, o, k, v);
+            return false;
+        }
+        return true;
+    }
+    case KN_V_VERSION: {
+        long long x;
+        if (!kn_node_int(v, &x) || x != 1) {
+            err(l, KN_R_SCHEMA_SHAPE, v, "format version '%s' is not supported; this knowable reads version 1",
+                v->kind == KN_NODE_SCALAR ? node_esc(l, v) : kn_node_kind_name(v));
+            return false;
+        }
+        return true;
+    }
+    case KN_V_BOOL: {
+        bool b;
+        if (!kn_node_bool(v, &b)) {
+            wrong_type(l, o, k, v);
+            return false;
+        }
+        return true;
+    }
+    case KN_V_DATE:
+        if (v->kind != KN_NODE_SCALAR || !valid_date(v->u.scalar.text)) {
+            if (v->kind == KN_NODE_SCALAR && !kn_node_is_null(v)) {
+                err(l, KN_R_SCHEMA_SHAPE, v, "'%s' of %s is '%s', which is not a date YYYY-MM-DD", k->name,
+                    owner_str(l, o), node_esc(l, v));
+            } else {
+                wrong_type(l, o, k, v);
+            }
+            return false;
+        }
+        return true;
+    case KN_V_NAME:
+        if (!is_name(v)) {
+            wrong_type(l, o, k, v);
+            return false;
+        }
+        return true;
+    case KN_V_NAME_OR_NAMES:
+        if (is_name(v)) {
+            return true;
+        }
+        /* fall through */
+    case KN_V_NAMES:
+    case KN_V_PATHS:
+        if (v->kind != KN_NODE_SEQ) {
+            wrong_type(l, o, k, v);
+            return false;
+        }
+        for (size_t i = 0; i < v->u.seq.n; i++) {
+            if (!is_name(v->u.seq.items[i])) {
+                err(l, KN_R_SCHEMA_SHAPE, v->u.seq.items[i], "item %zu of '%s' of %s must be a %s, not %s", i + 1,
+                    k->name, owner_str(l, o), k->kind == KN_V_PATHS ? "path" : "name",
+                    kn_node_kind_name(v->u.seq.items[i]));
+                return false;
+            }
+        }
+        return true;
+    case KN_V_DURATION:
+    case KN_V_LAG:
+        return true; /* parsed by the builders, which report bad-duration */
+    case KN_V_ENUM:
+        if (v->kind != KN_NODE_SCALAR || kn_node_is_null(v)) {
+            wrong_type(l, o, k, v);
+            return false;
+        }
+        if (enum_index(k->values, v->u.scalar.text) < 0) {
+            bad_enum(l, o, k, v);
+            return false;
+        }
+        return true;
+    case KN_V_MAP:
+    case KN_V_NAMED_MAPS:
+        if (v->kind != KN_NODE_MAP) {
+            wrong_type(l, o, k, v);
+            return false;
+        }
+        return true;
+    case KN_V_LIST_OF_MAP:
+        if (v->kind != KN_NODE_SEQ) {
+            wrong_type(l, o, k, v);
+            return false;
+        }
+        return true;
+    case KN_V_RELATION:
+        if (is_name(v) || v->kind == KN_NODE_MAP) {
+            return true;
+        }
+        wrong_type(l, o, k, v);
+        return false;
+    }
+    return false;
+}
+
+/* Checks a mapping against a shape: fills vals[i] with the value of key i
+ * (NULL when absent or unusable).  Returns false when node is no mapping. */
+static bool check_shape(ld *l, const kn_shape *sh, const owner *o, const kn_node *node, kn_node **vals)
+{
+    memset(vals, 0, sizeof(kn_node *) * sh->n_keys);
+    if (!node || node->kind != KN_NODE_MAP) {
+        err(l, KN_R_SCHEMA_SHAPE, node ? node : o->at, "%s must be a mapping, not %s", owner_str(l, o),
+            kn_node_kind_name(node));
+        return false;
+    }
+    bool present[MAX_KEYS] = {0};
+    for (size_t i = 0; i < node->u.map.n; i++) {
+        kn_node *k = node->u.map.pairs[i].key, *v = node->u.map.pairs[i].value;
+        if (k->kind != KN_NODE_SCALAR) {
+            err(l, KN_R_SCHEMA_SHAPE, k, "a key of %s must be a plain word, not %s", owner_str(l, o),
+                kn_node_kind_name(k));
+            continue;
+        }
+        const char *name = k->u.scalar.text;
+        if (strncmp(name, "x_", 2) == 0) {
+            continue; /* free for users */
+        }
+        int idx = kn_shape_find(sh, name);
+        if (idx < 0) {
+            const char *cands[MAX_KEYS];
+            for (size_t j = 0; j < sh->n_keys; j++) {
+                cands[j] = sh->keys[j].name;
+            }
+            const char *near = kn_suggest(name, cands, sh->n_keys);
+            kn_diag *d;
+            if (near) {
+                d = err(l, KN_R_SCHEMA_SHAPE, k, "unknown key '%s' in %s; did you mean '%s'?", node_esc(l, k),
+                        owner_str(l, o), near);
+            } else {
+                d = err(l, KN_R_SCHEMA_SHAPE, k, "unknown key '%s' in %s", node_esc(l, k), owner_str(l, o));
+            }
+            const char *list = "";
+            for (size_t j = 0; j < sh->n_keys; j++) {
+                list = kn_printf(l->a, "%s%s%s", list, j ? ", " : "", sh->keys[j].name);
+            }
+            kn_diag_note(l->sink, d, &k->pos, "%s takes %s (keys starting with x_ are free for your own use)",
+                         owner_str(l, o), list);
+            continue;
+        }
+        present[idx] = true;
+        if (check_value(l, o, &sh->keys[idx], v)) {
+            vals[idx] = v;
+        }
+    }
+    for (size_t j = 0; j < sh->n_keys; j++) {
+        int other = sh->keys[j].unless ? kn_shape_find(sh, sh->keys[j].unless) : -1;
+        if (sh->keys[j].required && !present[j] && !(other >= 0 && present[other])) {
+            const kn_node *at = o->at ? o->at : node;
+            err(l, KN_R_SCHEMA_SHAPE, at, "%s lacks the required key '%s' (%s)", owner_str(l, o), sh->keys[j].name,
+                sh->keys[j].doc);
+        }
+    }
+    return true;
+}
+
+static kn_ref ref_of(kn_node *v)
+{
+    kn_ref r = {0};
+    if (v && is_name(v)) {
+        r.name = v->u.scalar.text;
+        r.node = v;
+    }
+    return r;
+}
+
+static const char *str_of(const kn_node *v)
+{
+    return v ? v->u.scalar.text : NULL;
+}
+
+static int enum_of(const kn_key_spec *k, const kn_node *v, int dflt)
+{
+    if (!v) {
+        return dflt;
+    }
+    int i = enum_index(k->values, v->u.scalar.text);
+    return i < 0 ? dflt : i;
+}
+
+static kn_ref *refs_of(ld *l, kn_node *v, size_t *n)
+{
+    *n = 0;
+    if (!v) {
+        return NULL;
+    }
+    if (v->kind == KN_NODE_SCALAR) {
+        kn_ref *r = kn_alloc(l->a, sizeof *r);
+        *r = ref_of(v);
+        *n = 1;
+        return r;
+    }
+    kn_ref *r = kn_alloc_array(l->a, v->u.seq.n, sizeof *r);
+    for (size_t i = 0; i < v->u.seq.n; i++) {
+        r[i] = ref_of(v->u.seq.items[i]);
+    }
+    *n = v->u.seq.n;
+    return r;
+}
+
+/* ---- events ---- */
+
+static void add_relation(ld *l, kn_event *e, const owner *o, const char *key, kn_node *v, bool before,
+                         kn_vec *cons)
+{
+    if (v->kind == KN_NODE_SCALAR) {
+        kn_constraint c = {0};
+        c.ref = ref_of(v);
+        c.before = before;
+        c.lag.present = true;
+        c.lag.lo = 0;
+        c.lag.hi = KN_TIME_INF;
+        c.lag.node = v;
+        kn_vec_push(cons, &c);
+        return;
+    }
+    for (size_t i = 0; i < v->u.map.n; i++) {
+        kn_node *k = v->u.map.pairs[i].key, *lag = v->u.map.pairs[i].value;
+        if (!is_name(k)) {
+            err(l, KN_R_SCHEMA_SHAPE, k, "a key of '%s' of %s must be an event name", key, owner_str(l, o));
+            continue;
+        }
+        kn_constraint c = {0};
+        c.ref = ref_of(k);
+        c.before = before;
+        if (!parse_lag(l, o, key, lag, &c.lag)) {
+            continue;
+        }
+        kn_vec_push(cons, &c);
+    }
+    (void)e;
+}
+
+static void define(ld *l, kn_name_map *map, const char *what, const char *name, kn_node *key, void *obj,
+                   kn_node *(*key_of)(void *))
+{
+    if (!kn_names_put(map, name, obj)) {
+        void *first = kn_names_get(map, name);
+        kn_diag *d = err(l, KN_R_DUPLICATE_KEY, key, "%s '%s' is defined twice", what, esc(l, name));
+        kn_diag_note(l->sink, d, &key_of(first)->pos, "'%s' is first defined here", esc(l, name));
+    }
+}
+
+static kn_node *event_key(void *p)
+{
+    return ((kn_event *)p)->key;
+}
+
+static kn_node *source_key(void *p)
+{
+    return ((kn_source *)p)->key;
+}
+
+static void load_events(ld *l, const kn_key_spec *spec, kn_node *map)
+{
+    const kn_shape *sh = spec->sub;
+    for (size_t i = 0; i < map->u.map.n; i++) {
+        kn_node *k = map->u.map.pairs[i].key, *v = map->u.map.pairs[i].value;
+        if (!is_name(k)) {
+            err(l, KN_R_SCHEMA_SHAPE, k, "an event name must be a plain word, not %s", kn_node_kind_name(k));
+            continue;
+        }
+        kn_event *e = kn_alloc(l->a, sizeof *e);
+        e->name = k->u.scalar.text;
+        e->key = k;
+        e->value = v;
+        owner o = {"event", e->name, -1, k};
+        if (!kn_node_is_null(v)) {
+            kn_node *vals[MAX_KEYS];
+            if (check_shape(l, sh, &o, v, vals)) {
+                kn_vec *cons = kn_vec_new(l->a, sizeof(kn_constraint));
+                if (vals[E_AFTER]) {
+                    add_relation(l, e, &o, "after", vals[E_AFTER], false, cons);
+                }
+                if (vals[E_BEFORE]) {
+                    add_relation(l, e, &o, "before", vals[E_BEFORE], true, cons);
+                }
+                e->description = str_of(vals[E_DESCRIPTION]);
+                e->n_cons = cons->len;
+                e->cons = kn_alloc_array(l->a, cons->len, sizeof(kn_constraint));
+                if (cons->len) {
+                    memcpy(e->cons, cons->data, cons->len * sizeof(kn_constraint));
+                }
+                kn_defer_run(l->a, cons->defer);
+            }
+        }
+        define(l, l->s->event_names, "event", e->name, k, e, event_key);
+        if (kn_names_get(l->s->event_names, e->name) == e) {
+            e->index = l->events->len;
+            kn_vec_push(l->events, &e);
+        }
+    }
+}
+
+/* ---- sources ---- */
+
+static void load_sources(ld *l, const kn_key_spec *spec, kn_node *map)
+{
+    const kn_shape *sh = spec->sub;
+    for (size_t i = 0; i < map->u.map.n; i++) {
+        kn_node *k = map->u.map.pairs[i].key, *v = map->u.map.pairs[i].value;
+        if (!is_name(k)) {
+            err(l, KN_R_SCHEMA_SHAPE, k, "a source name must be a plain word, not %s", kn_node_kind_name(k));
+            continue;
+        }
+        kn_source *s = kn_alloc(l->a, sizeof *s);
+        s->name = k->u.scalar.text;
+        s->key = k;
+        s->value = v;
+        s->point_in_time = -1;
+        owner o = {"source", s->name, -1, k};
+        kn_node *vals[MAX_KEYS];
+        if (check_shape(l, sh, &o, v, vals)) {
+            for (size_t f = 0; f < KN_SF_COUNT; f++) {
+                s->field[f] = vals[f];
+            }
+            s->kind = (kn_source_kind)enum_of(&sh->keys[KN_SF_KIND], vals[KN_SF_KIND], -1) + 1;
+            s->description = str_of(vals[KN_SF_DESCRIPTION]);
+            s->owner = str_of(vals[KN_SF_OWNER]);
+            s->contact = str_of(vals[KN_SF_CONTACT]);
+            s->provider = str_of(vals[KN_SF_PROVIDER]);
+            s->license = str_of(vals[KN_SF_LICENSE]);
+            s->version = str_of(vals[KN_SF_VERSION]);
+            s->documentation = str_of(vals[KN_SF_DOCUMENTATION]);
+            s->retrieved = str_of(vals[KN_SF_RETRIEVED]);
+            if (vals[KN_SF_LATENCY] && !parse_lag(l, &o, "latency", vals[KN_SF_LATENCY], &s->latency)) {
+                s->field[KN_SF_LATENCY] = NULL;
+            }
+            if (vals[KN_SF_REFRESH]) {
+                kn_interval r;
+                if (parse_duration(l, &o, "refresh", vals[KN_SF_REFRESH], &r)) {
+                    if (r.lo < 0) {
+                        err(l, KN_R_BAD_DURATION, vals[KN_SF_REFRESH], "'refresh' of %s is negative; a batch period is positive",
+                            owner_str(l, &o));
+                    } else {
+                        s->has_refresh = true;
+                        s->refresh = r.hi;
+                    }
+                }
+            }
+            s->history = (kn_history)(enum_of(&sh->keys[KN_SF_HISTORY], vals[KN_SF_HISTORY], -1) + 1);
+            bool b;
+            if (vals[KN_SF_POINT_IN_TIME] && kn_node_bool(vals[KN_SF_POINT_IN_TIME], &b)) {
+                s->point_in_time = b;
+            }
+        }
+        define(l, l->s->source_names, "source", s->name, k, s, source_key);
+        if (kn_names_get(l->s->source_names, s->name) == s) {
+            s->index = l->sources->len;
+            kn_vec_push(l->sources, &s);
+        }
+    }
+}
+
+/* ---- columns ---- */
+
+static void free_code(void *p)
+{
+    pcre2_code_free(p);
+}
+
+static void compile_format(ld *l, kn_column *c, const owner *o)
+{
+    int code;
+    PCRE2_SIZE off;
+    kn_defer *d = kn_arena_defer(l->a, free_code, NULL);
+    pcre2_code *re = pcre2_compile((PCRE2_SPTR)c->format, c->format_node->u.scalar.len, PCRE2_UTF, &code, &off, NULL);
+    if (!re) {
+        if (code == PCRE2_ERROR_NOMEMORY) {
+            kn_arena_oom(l->a);
+        }
+        PCRE2_UCHAR msg[256];
+        pcre2_get_error_message(code, msg, sizeof msg);
+        kn_pos p = kn_node_char_pos(c->format_node, off);
+        l->errors = true;
+        kn_diag *dg = kn_diag_push(l->sink, KN_R_BAD_PATTERN, &p, c->name,
+                                   "the format of %s is not a valid PCRE2 pattern: %s", owner_str(l, o), (char *)msg);
+        kn_diag_note(l->sink, dg, &c->format_node->pos, "the pattern starts here; the error is at character %zu",
+                     (size_t)off + 1);
+        return;
+    }
+    d->ptr = re;
+    pcre2_jit_compile(re, PCRE2_JIT_COMPLETE);
+    c->format_code = re;
+}
+
+static void load_waivers(ld *l, kn_column *c, const owner *o, const kn_shape *sh, kn_node *list)
+{
+    c->waivers = kn_alloc_array(l->a, list->u.seq.n, sizeof(kn_waiver));
+    for (size_t i = 0; i < list->u.seq.n; i++) {
+        kn_node *v = list->u.seq.items[i];
+        owner wo = {kn_printf(l->a, "waiver %zu of column", i + 1), c->name, -1, v};
+        kn_node *vals[MAX_KEYS];
+        if (!check_shape(l, sh, &wo, v, vals)) {
+            continue;
+        }
+        kn_waiver *w = &c->waivers[c->n_waivers++];
+        w->node = v;
+        w->rule = -1;
+        w->rule_ref = ref_of(vals[V_RULE]);
+        w->reason = str_of(vals[V_REASON]);
+        w->reason_node = vals[V_REASON];
+        w->expires = str_of(vals[V_EXPIRES]);
+        w->expires_node = vals[V_EXPIRES];
+    }
+}
+
+static void load_column(ld *l, const kn_shape *sh, kn_column *c)
+{
+    owner o = {"column", c->name, -1, c->key};
+    c->quasi_identifier = -1;
+    c->anonymized.salted = -1;
+    if (kn_node_is_null(c->value)) {
+        return;
+    }
+    kn_node *vals[MAX_KEYS];
+    if (!check_shape(l, sh, &o, c->value, vals)) {
+        return;
+    }
+    c->role = (kn_role)enum_of(&sh->keys[C_ROLE], vals[C_ROLE], 0);
+    c->role_node = vals[C_ROLE];
+    c->type = (kn_value_type)(enum_of(&sh->keys[C_TYPE], vals[C_TYPE], -1) + 1);
+    c->type_node = vals[C_TYPE];
+    c->known = ref_of(vals[C_KNOWN]);
+    if (vals[C_DELAY]) {
+        parse_lag(l, &o, "delay", vals[C_DELAY], &c->delay);
+    }
+    c->source = ref_of(vals[C_SOURCE]);
+    if (vals[C_JOIN]) {
+        const kn_shape *js = sh->keys[C_JOIN].sub;
+        owner jo = {"join of column", c->name, -1, vals[C_JOIN]};
+        kn_node *jv[MAX_KEYS];
+        if (check_shape(l, js, &jo, vals[C_JOIN], jv)) {
+            c->join.present = true;
+            c->join.node = vals[C_JOIN];
+            c->join.keys = refs_of(l, jv[J_KEY], &c->join.n_keys);
+            c->join.as_of = ref_of(jv[J_AS_OF]);
+            c->join.source = ref_of(jv[J_SOURCE]);
+        }
+    }
+    if (vals[C_DERIVED]) {
+        c->derived_node = vals[C_DERIVED];
+        c->derived_from = refs_of(l, vals[C_DERIVED], &c->n_derived);
+    }
+    if (vals[C_WINDOW]) {
+        const kn_shape *ws = sh->keys[C_WINDOW].sub;
+        owner wo = {"window of column", c->name, -1, vals[C_WINDOW]};
+        kn_node *wv[MAX_KEYS];
+        if (check_shape(l, ws, &wo, vals[C_WINDOW], wv) && wv[W_ANCHOR] && wv[W_FROM] && wv[W_TO]) {
+            bool ok = parse_duration(l, &wo, "from", wv[W_FROM], &c->window.from);
+            ok = parse_duration(l, &wo, "to", wv[W_TO], &c->window.to) && ok;
+            if (ok && c->window.from.lo > c->window.to.hi) {
+                char s1[48], s2[48];
+                err(l, KN_R_BAD_DURATION, wv[W_FROM], "the window of column '%s' starts (%s) after it ends (%s)",
+                    esc(l, c->name), kn_duration_format(c->window.from.lo, s1, sizeof s1),
+                    kn_duration_format(c->window.to.hi, s2, sizeof s2));
+                ok = false;
+            }
+            if (ok) {
+                c->window.present = true;
+                c->window.node = vals[C_WINDOW];
+                c->window.anchor = ref_of(wv[W_ANCHOR]);
+                c->window.from_node = wv[W_FROM];
+                c->window.to_node = wv[W_TO];
+            }
+        }
+    }
+    c->proxy_of = ref_of(vals[C_PROXY]);
+    if (vals[C_FORMAT]) {
+        c->format = vals[C_FORMAT]->u.scalar.text;
+        c->format_node = vals[C_FORMAT];
+        compile_format(l, c, &o);
+    }
+    if (vals[C_ANON]) {
+        const kn_shape *as = sh->keys[C_ANON].sub;
+        owner ao = {"anonymized of column", c->name, -1, vals[C_ANON]};
+        kn_node *av[MAX_KEYS];
+        if (check_shape(l, as, &ao, vals[C_ANON], av)) {
+            c->anonymized.present = true;
+            c->anonymized.node = vals[C_ANON];
+            c->anonymized.method = (kn_anon_method)(enum_of(&as->keys[A_METHOD], av[A_METHOD], -1) + 1);
+            c->anonymized.method_node = av[A_METHOD];
+            bool b;
+            if (av[A_SALTED] && kn_node_bool(av[A_SALTED], &b)) {
+                c->anonymized.salted = b;
+                c->anonymized.salted_node = av[A_SALTED];
+            }
+        }
+    }
+    bool b;
+    if (vals[C_QI] && kn_node_bool(vals[C_QI], &b)) {
+        c->quasi_identifier = b;
+        c->qi_node = vals[C_QI];
+    }
+    c->description = str_of(vals[C_DESCRIPTION]);
+    c->description_node = vals[C_DESCRIPTION];
+    if (vals[C_WAIVE]) {
+        load_waivers(l, c, &o, sh->keys[C_WAIVE].sub, vals[C_WAIVE]);
+    }
+}
+
+static void load_columns(ld *l, const kn_key_spec *spec, kn_node *map)
+{
+    for (size_t i = 0; i < map->u.map.n; i++) {
+        kn_node *k = map->u.map.pairs[i].key, *v = map->u.map.pairs[i].value;
+        if (!is_name(k)) {
+            err(l, KN_R_SCHEMA_SHAPE, k, "a column name must be a plain word, not %s", kn_node_kind_name(k));
+            continue;
+        }
+        kn_column *c = kn_alloc(l->a, sizeof *c);
+        c->name = k->u.scalar.text;
+        c->key = k;
+        c->value = v;
+        load_column(l, spec->sub, c);
+        if (!kn_names_put(l->s->column_names, c->name, c)) {
+            /* The YAML layer already reported the duplicate key. */
+            continue;
+        }
+        c->index = l->columns->len;
+        kn_vec_push(l->columns, &c);
+    }
+}
+
+static void load_pipeline(ld *l, const kn_key_spec *spec, kn_node *list)
+{
+    const kn_shape *sh = spec->sub;
+    l->s->steps = kn_alloc_array(l->a, list->u.seq.n, sizeof(kn_step));
+    for (size_t i = 0; i < list->u.seq.n; i++) {
+        kn_node *v = list->u.seq.items[i];
+        owner o = {"pipeline step", NULL, (long)i, v};
+        kn_node *vals[MAX_KEYS];
+        if (!check_shape(l, sh, &o, v, vals) || !vals[S_STEP]) {
+            continue;
+        }
+        kn_step *st = &l->s->steps[l->s->n_steps++];
+        st->node = v;
+        st->kind = (kn_step_kind)enum_of(&sh->keys[S_STEP], vals[S_STEP], 0);
+        st->kind_node = vals[S_STEP];
+        st->fit = (kn_fit)(enum_of(&sh->keys[S_FIT], vals[S_FIT], -1) + 1);
+        st->fit_node = vals[S_FIT];
+        st->columns = refs_of(l, vals[S_COLUMNS], &st->n_columns);
+        st->description = str_of(vals[S_DESCRIPTION]);
+    }
+}
+
+static void load_split(ld *l, const kn_key_spec *spec, kn_node *v)
+{
+    const kn_shape *sh = spec->sub;
+    owner o = {"split", NULL, -1, v};
+    kn_node *vals[MAX_KEYS];
+    if (!check_shape(l, sh, &o, v, vals)) {
+        return;
+    }
+    kn_split *sp = &l->s->split;
+    sp->present = true;
+    sp->node = v;
+    sp->method = (kn_split_method)(enum_of(&sh->keys[X_METHOD], vals[X_METHOD], -1) + 1);
+    sp->method_node = vals[X_METHOD];
+    sp->column = ref_of(vals[X_COLUMN]);
+    sp->time_column = ref_of(vals[X_TIME_COLUMN]);
+    sp->group_column = ref_of(vals[X_GROUP_COLUMN]);
+    if (vals[X_GAP] && parse_duration(l, &o, "gap", vals[X_GAP], &sp->gap)) {
+        sp->has_gap = true;
+        sp->gap_node = vals[X_GAP];
+    }
+    if (vals[X_FOLDS]) {
+        kn_node_int(vals[X_FOLDS], &sp->folds);
+    }
+}
+
+/* ---- files and includes ---- */
+
+static char *dir_of(ld *l, const char *path)
+{
+    const char *slash = strrchr(path, '/');
+    if (!slash) {
+        return kn_strdup(l->a, ".");
+    }
+    if (slash == path) {
+        return kn_strdup(l->a, "/");
+    }
+    return kn_strndup(l->a, path, (size_t)(slash - path));
+}
+
+static char *join_path(ld *l, const char *dir, const char *rel)
+{
+    if (strcmp(dir, ".") == 0) {
+        return kn_strdup(l->a, rel);
+    }
+    return kn_printf(l->a, "%s/%s", dir, rel);
+}
+
+static char *real_path(ld *l, const char *path)
+{
+    char *r = realpath(path, NULL);
+    if (!r) {
+        if (errno == ENOMEM) {
+            kn_arena_oom(l->a);
+        }
+        return NULL;
+    }
+    char *copy = kn_strdup(l->a, r);
+    free(r);
+    return copy;
+}
+
+static bool inside_root(ld *l, const char *real)
+{
+    size_t n = strlen(l->root_real);
+    if (strcmp(l->root_real, "/") == 0) {
+        return true;
+    }
+    return strncmp(real, l->root_real, n) == 0 && (real[n] == '/' || real[n] == '\0');
+}
+
+static void load_file(ld *l, const char *real, const char *display, bool main_file);
+
+static void refuse(ld *l, kn_node *at, const char *fmt, const char *path, const char *extra)
+{
+    kn_diag *d = err(l, KN_R_INCLUDE_REFUSED, at, "include '%s' is refused: %s", esc(l, path), fmt);
+    if (extra) {
+        kn_diag_note(l->sink, d, &at->pos, "%s", extra);
+    }
+}
+
+static void load_includes(ld *l, const file_ctx *fc, kn_node *list)
+{
+    for (size_t i = 0; i < list->u.seq.n; i++) {
+        kn_node *item = list->u.seq.items[i];
+        const char *path = item->u.scalar.text;
+        if (path[0] == '/') {
+            refuse(l, item, "it is an absolute path", path,
+                   "includes are relative to the including file and stay inside the root (--root)");
+            continue;
+        }
+        char *joined = join_path(l, dir_of(l, fc->real), path);
+        char *real = real_path(l, joined);
+        if (!real) {
+            refuse(l, item, "no such file", path, NULL);
+            continue;
+        }
+        if (!inside_root(l, real)) {
+            refuse(l, item, "it leaves the root folder", path,
+                   kn_printf(l->a, "the root is '%s'; set --root to allow a wider folder", esc(l, l->root_real)));
+            continue;
+        }
+        bool loop = false;
+        for (size_t j = 0; j < l->stack->len; j++) {
+            if (strcmp(KN_VEC_AT(l->stack, file_ctx, j).real, real) == 0) {
+                loop = true;
+            }
+        }
+        if (loop) {
+            kn_diag *d = err(l, KN_R_INCLUDE_REFUSED, item, "include '%s' is refused: it loops back to a file that includes it",
+                             esc(l, path));
+            for (size_t j = 0; j < l->stack->len; j++) {
+                kn_diag_note(l->sink, d, NULL, "included through '%s'", esc(l, KN_VEC_AT(l->stack, file_ctx, j).display));
+            }
+            continue;
+        }
+        if (kn_names_get(l->loaded, real)) {
+            continue; /* the same register reached twice: merge it once */
+        }
+        if (l->stack->len >= MAX_INCLUDE_DEPTH || l->n_files >= MAX_INCLUDED_FILES) {
+            refuse(l, item, "too many nested or included files", path, NULL);
+            continue;
+        }
+        load_file(l, real, join_path(l, dir_of(l, fc->display), path), false);
+    }
+}
+
+static void load_file(ld *l, const char *real, const char *display, bool main_file)
+{
+    kn_node *root = kn_yaml_load_file(l->a, l->sink, real, display, &l->opt->limits);
+    if (!root) {
+        l->errors = true;
+        return;
+    }
+    l->n_files++;
+    kn_names_put(l->loaded, real, l);
+    kn_schema_file *files = kn_alloc_array(l->a, l->s->n_files + 1, sizeof *files);
+    if (l->s->n_files) {
+        memcpy(files, l->s->files, l->s->n_files * sizeof *files);
+    }
+    files[l->s->n_files++] = (kn_schema_file){real, display, root};
+    l->s->files = files;
+
+    file_ctx fc = {real, display};
+    kn_vec_push(l->stack, &fc);
+    const kn_shape *sh = main_file ? &kn_shape_top : &kn_shape_included;
+    owner o = {main_file ? "the schema" : "the included file", NULL, -1, root};
+    kn_node *vals[MAX_KEYS];
+    if (root->kind != KN_NODE_MAP) {
+        err(l, KN_R_SCHEMA_SHAPE, root, "%s must be a mapping with keys such as knowable, dataset, events, columns; found %s",
+            main_file ? "a schema" : "an included file", kn_node_kind_name(root));
+        l->stack->len--;
+        return;
+    }
+    /* Keys an included file may not have get a clearer message than "unknown". */
+    if (!main_file) {
+        for (size_t i = 0; i < root->u.map.n; i++) {
+            kn_node *k = root->u.map.pairs[i].key;
+            const char *name = kn_node_str(k);
+            if (name && kn_shape_find(&kn_shape_top, name) >= 0 && kn_shape_find(sh, name) < 0) {
+                err(l, KN_R_SCHEMA_SHAPE, k, "'%s' may not appear in an included file; an included file holds only events, sources, description and include",
+                    name);
+            }
+        }
+        kn_node *filtered = kn_alloc(l->a, sizeof *filtered);
+        *filtered = *root;
+        filtered->u.map.pairs = kn_alloc_array(l->a, root->u.map.n, sizeof(kn_pair));
+        filtered->u.map.n = 0;
+        for (size_t i = 0; i < root->u.map.n; i++) {
+            const char *name = kn_node_str(root->u.map.pairs[i].key);
+            if (!(name && kn_shape_find(&kn_shape_top, name) >= 0 && kn_shape_find(sh, name) < 0)) {
+                filtered->u.map.pairs[filtered->u.map.n++] = root->u.map.pairs[i];
+            }
+        }
+        check_shape(l, sh, &o, filtered, vals);
+    } else {
+        check_shape(l, sh, &o, root, vals);
+    }
+    int ev = main_file ? T_EVENTS : I_EVENTS, so = main_file ? T_SOURCES : I_SOURCES;
+    int inc = main_file ? T_INCLUDE : I_INCLUDE;
+    if (vals[ev]) {
+        load_events(l, &sh->keys[ev], vals[ev]);
+    }
+    if (vals[so]) {
+        load_sources(l, &sh->keys[so], vals[so]);
+    }
+    if (main_file) {
+        kn_schema *s = l->s;
+        s->root = root;
+        s->dataset = str_of(vals[T_DATASET]);
+        s->dataset_node = vals[T_DATASET];
+        s->description = str_of(vals[T_DESCRIPTION]);
+        if (vals[T_PREDICTION]) {
+            kn_node *pv[MAX_KEYS];
+            owner po = {"prediction", NULL, -1, vals[T_PREDICTION]};
+            if (check_shape(l, sh->keys[T_PREDICTION].sub, &po, vals[T_PREDICTION], pv)) {
+                s->prediction.node = vals[T_PREDICTION];
+                s->prediction.moment = ref_of(pv[P_MOMENT]);
+                s->prediction.target = ref_of(pv[P_TARGET]);
+                s->prediction.entity = ref_of(pv[P_ENTITY]);
+                s->prediction.moment_column = ref_of(pv[P_MOMENT_COLUMN]);
+                s->prediction.label_known = ref_of(pv[P_LABEL_KNOWN]);
+            }
+        }
+        if (vals[T_COLUMNS]) {
+            load_columns(l, &sh->keys[T_COLUMNS], vals[T_COLUMNS]);
+        }
+        if (vals[T_PIPELINE]) {
+            load_pipeline(l, &sh->keys[T_PIPELINE], vals[T_PIPELINE]);
+        }
+        if (vals[T_SPLIT]) {
+            load_split(l, &sh->keys[T_SPLIT], vals[T_SPLIT]);
+        }
+    }
+    if (vals[inc]) {
+        load_includes(l, &fc, vals[inc]);
+    }
+    l->stack->len--;
+}
+
+/* ---- references ---- */
+
+static const char *const *names_array(ld *l, const kn_name_map *m, size_t *n)
+{
+    *n = kn_names_count(m);
+    const char **a = kn_alloc_array(l->a, *n ? *n : 1, sizeof(char *));
+    for (size_t i = 0; i < *n; i++) {
+        a[i] = kn_names_at(m, i);
+    }
+    return a;
+}
+
+typedef struct namespace_ {
+    const kn_name_map *map;
+    const char *what; /* "event", "source", "column" */
+    const char *const *names;
+    size_t n;
+} namespace_;
+
+static void resolve(ld *l, namespace_ *ns, kn_ref *r, const char *context)
+{
+    if (!r->name) {
+        return;
+    }
+    r->target = kn_names_get(ns->map, r->name);
+    if (r->target) {
+        return;
+    }
+    if (!ns->names) {
+        ns->names = names_array(l, ns->map, &ns->n);
+    }
+    const char *near = ns->n <= 20000 ? kn_suggest(r->name, ns->names, ns->n) : NULL;
+    if (near) {
+        err(l, KN_R_UNKNOWN_REFERENCE, r->node, "%s: %s '%s' is not defined; did you mean '%s'?", context, ns->what,
+            esc(l, r->name), esc(l, near));
+    } else {
+        err(l, KN_R_UNKNOWN_REFERENCE, r->node, "%s: %s '%s' is not defined", context, ns->what, esc(l, r->name));
+    }
+}
+
+static void mark_event(kn_ref *r)
+{
+    if (r->target) {
+        KN_REF_EVENT(*r)->used = true;
+    }
+}
+
+static void mark_source(kn_ref *r)
+{
+    if (r->target) {
+        KN_REF_SOURCE(*r)->used = true;
+    }
+}
+
+static void resolve_all(ld *l)
+{
+    kn_schema *s = l->s;
+    namespace_ ev = {s->event_names, "event", NULL, 0};
+    namespace_ so = {s->source_names, "source", NULL, 0};
+    namespace_ co = {s->column_names, "column", NULL, 0};
+
+    for (size_t i = 0; i < s->n_events; i++) {
+        kn_event *e = s->events[i];
+        const char *ctx = NULL;
+        for (size_t j = 0; j < e->n_cons; j++) {
+            kn_constraint *c = &e->cons[j];
+            if (!ctx) {
+                ctx = kn_printf(l->a, "event '%s'", esc(l, e->name));
+            }
+            resolve(l, &ev, &c->ref, ctx);
+            kn_event *other = KN_REF_EVENT(c->ref);
+            if (c->before) {
+                c->earlier = e;
+                c->later = other;
+            } else {
+                c->earlier = other;
+                c->later = e;
+            }
+        }
+    }
+    kn_prediction *p = &s->prediction;
+    resolve(l, &ev, &p->moment, "prediction moment");
+    resolve(l, &co, &p->target, "prediction target");
+    resolve(l, &co, &p->entity, "prediction entity");
+    resolve(l, &co, &p->moment_column, "prediction moment_column");
+    resolve(l, &ev, &p->label_known, "prediction label_known");
+    mark_event(&p->moment);
+    mark_event(&p->label_known);
+
+    for (size_t i = 0; i < s->n_columns; i++) {
+        kn_column *c = s->columns[i];
+        if (!c->known.name && !c->source.name && !c->join.present && !c->n_derived && !c->window.present &&
+            !c->proxy_of.name && !c->n_waivers) {
+            continue;
+        }
+        const char *ctx = kn_printf(l->a, "column '%s'", esc(l, c->name));
+        resolve(l, &ev, &c->known, ctx);
+        mark_event(&c->known);
+        resolve(l, &so, &c->source, ctx);
+        mark_source(&c->source);
+        for (size_t j = 0; j < c->join.n_keys; j++) {
+            resolve(l, &co, &c->join.keys[j], ctx);
+        }
+        resolve(l, &ev, &c->join.as_of, ctx);
+        mark_event(&c->join.as_of);
+        resolve(l, &so, &c->join.source, ctx);
+        mark_source(&c->join.source);
+        for (size_t j = 0; j < c->n_derived; j++) {
+            resolve(l, &co, &c->derived_from[j], ctx);
+        }
+        resolve(l, &ev, &c->window.anchor, ctx);
+        mark_event(&c->window.anchor);
+        resolve(l, &co, &c->proxy_of, ctx);
+        for (size_t j = 0; j < c->n_waivers; j++) {
+            kn_waiver *w = &c->waivers[j];
+            if (!w->rule_ref.name) {
+                continue;
+            }
+            kn_rule r;
+            if (kn_rule_find(w->rule_ref.name, strlen(w->rule_ref.name), &r)) {
+                w->rule = (int)r;
+            } else {
+                const char *ids[KN_RULE_COUNT];
+                for (size_t k = 0; k < KN_RULE_COUNT; k++) {
+                    ids[k] = kn_rule_get((kn_rule)k)->id;
+                }
+                const char *near = kn_suggest(w->rule_ref.name, ids, KN_RULE_COUNT);
+                if (near) {
+                    err(l, KN_R_UNKNOWN_REFERENCE, w->rule_ref.node, "%s: rule '%s' does not exist; did you mean '%s'?",
+                        ctx, esc(l, w->rule_ref.name), near);
+                } else {
+                    err(l, KN_R_UNKNOWN_REFERENCE, w->rule_ref.node,
+                        "%s: rule '%s' does not exist (`knowable rules` lists them)", ctx, esc(l, w->rule_ref.name));
+                }
+            }
+        }
+    }
+    for (size_t i = 0; i < s->n_steps; i++) {
+        const char *ctx = kn_printf(l->a, "pipeline step %zu", i + 1);
+        for (size_t j = 0; j < s->steps[i].n_columns; j++) {
+            resolve(l, &co, &s->steps[i].columns[j], ctx);
+        }
+    }
+    resolve(l, &co, &s->split.column, "split column");
+    resolve(l, &co, &s->split.time_column, "split time_column");
+    resolve(l, &co, &s->split.group_column, "split group_column");
+}
+
+/* derivation-cycle: iterative depth-first search over derived_from (no
+ * recursion: a chain may be as long as the table is wide). */
+static void find_cycles(ld *l)
+{
+    kn_schema *s = l->s;
+    size_t n = s->n_columns;
+    if (!n) {
+        return;
+    }
+    unsigned char *color = kn_alloc(l->a, n); /* 0 new, 1 on stack, 2 done */
+    size_t *stack = kn_alloc_array(l->a, n, sizeof(size_t));
+    size_t *next = kn_alloc_array(l->a, n, sizeof(size_t));
+    for (size_t start = 0; start < n; start++) {
+        if (color[start]) {
+            continue;
+        }
+        size_t top = 0;
+        stack[top++] = start;
+        color[start] = 1;
+        next[start] = 0;
+        while (top) {
+            size_t u = stack[top - 1];
+            kn_column *cu = s->columns[u];
+            if (next[u] < cu->n_derived) {
+                kn_column *cv = KN_REF_COLUMN(cu->derived_from[next[u]]);
+                next[u]++;
+                if (!cv) {
+                    continue;
+                }
+                size_t v = cv->index;
+                if (color[v] == 0) {
+                    color[v] = 1;
+                    next[v] = 0;
+                    stack[top++] = v;
+                } else if (color[v] == 1) {
+                    /* The cycle is stack[k..top-1] where stack[k] == v. */
+                    size_t k = top;
+                    while (k > 0 && stack[k - 1] != v) {
+                        k--;
+                    }
+                    k = k ? k - 1 : 0;
+                    kn_ref *edge = &cu->derived_from[next[u] - 1];
+                    const char *path = "";
+                    for (size_t j = k; j < top; j++) {
+                        path = kn_printf(l->a, "%s'%s' -> ", path, esc(l, s->columns[stack[j]]->name));
+                    }
+                    path = kn_printf(l->a, "%s'%s'", path, esc(l, cv->name));
+                    kn_diag *d = err(l, KN_R_DERIVATION_CYCLE, edge->node,
+                                     "column '%s' is derived from itself through %s", esc(l, cv->name), path);
+                    for (size_t j = k; j < top; j++) {
+                        kn_column *cj = s->columns[stack[j]];
+                        kn_column *to = j + 1 < top ? s->columns[stack[j + 1]] : cv;
+                        kn_diag_note(l->sink, d, &cj->derived_node->pos, "'%s' is derived from '%s'", esc(l, cj->name),
+                                     esc(l, to->name));
+                    }
+                }
+            } else {
+                color[u] = 2;
+                top--;
+            }
+        }
+    }
+}
+
+static void copy_out(ld *l)
+{
+    kn_schema *s = l->s;
+    s->n_events = l->events->len;
+    s->events = kn_alloc_array(l->a, s->n_events ? s->n_events : 1, sizeof(kn_event *));
+    if (s->n_events) {
+        memcpy(s->events, l->events->data, s->n_events * sizeof(kn_event *));
+    }
+    s->n_sources = l->sources->len;
+    s->sources = kn_alloc_array(l->a, s->n_sources ? s->n_sources : 1, sizeof(kn_source *));
+    if (s->n_sources) {
+        memcpy(s->sources, l->sources->data, s->n_sources * sizeof(kn_source *));
+    }
+    s->n_columns = l->columns->len;
+    s->columns = kn_alloc_array(l->a, s->n_columns ? s->n_columns : 1, sizeof(kn_column *));
+    if (s->n_columns) {
+        memcpy(s->columns, l->columns->data, s->n_columns * sizeof(kn_column *));
+    }
+}
+
+kn_schema *kn_schema_load(kn_arena *a, kn_sink *sink, const char *path, const kn_load_options *opt)
+{
+    ld l = {0};
+    l.a = a;
+    l.sink = sink;
+    l.opt = opt;
+    l.s = kn_alloc(a, sizeof *l.s);
+    l.s->path = path;
+    l.s->event_names = kn_names_new(a);
+    l.s->source_names = kn_names_new(a);
+    l.s->column_names = kn_names_new(a);
+    l.stack = kn_vec_new(a, sizeof(file_ctx));
+    l.loaded = kn_names_new(a);
+    l.events = kn_vec_new(a, sizeof(kn_event *));
+    l.sources = kn_vec_new(a, sizeof(kn_source *));
+    l.columns = kn_vec_new(a, sizeof(kn_column *));
+
+    char *real = real_path(&l, path);
+    if (!real) {
+        kn_pos p = {path, 0, 0, 0};
+        kn_diag_push(sink, KN_R_YAML_SYNTAX, &p, NULL, "cannot read the file: %s", strerror(errno));
+        kn_sink_mark_fatal(sink);
+        return NULL;
+    }
+    const char *root = opt->root ? opt->root : dir_of(&l, real);
+    l.root_real = real_path(&l, root);
+    if (!l.root_real) {
+        kn_pos p = {path, 0, 0, 0};
+        kn_diag_push(sink, KN_R_INCLUDE_REFUSED, &p, NULL, "the root folder '%s' does not exist", esc(&l, root));
+        kn_sink_mark_fatal(sink);
+        return NULL;
+    }
+    load_file(&l, real, path, true);
+    if (!l.s->root) {
+        return NULL;
+    }
+    copy_out(&l);
+    resolve_all(&l);
+    find_cycles(&l);
+    l.s->shape_ok = !l.errors;
+    return l.s;
+}
+
+kn_event *kn_schema_event(const kn_schema *s, const char *name)
+{
+    return kn_names_get(s->event_names, name);
+}
+
+kn_source *kn_schema_source(const kn_schema *s, const char *name)
+{
+    return kn_names_get(s->source_names, name);
+}
+
+kn_column *kn_schema_column(const kn_schema *s, const char *name)
+{
+    return kn_names_get(s->column_names, name);
+}
+
+const char *kn_role_name(kn_role r)
+{
+    return kn_roles[r];
+}
+
+const char *kn_type_name(kn_value_type t)
+{
+    return t == KN_TYPE_UNSET ? "unset" : kn_types[t - 1];
+}
+
+const char *kn_step_name(kn_step_kind k)
+{
+    return kn_steps[k];
+}
+
+const char *kn_fit_name(kn_fit f)
+{
+    return f == KN_FIT_UNSET ? "unset" : kn_fits[f - 1];
+}
+
+const char *kn_split_method_name(kn_split_method m)
+{
+    return m == KN_SPLIT_UNSET ? "unset" : kn_split_methods[m - 1];
+}
+
+const char *kn_history_name(kn_history h)
+{
+    return h == KN_HISTORY_UNSET ? "unset" : kn_histories[h - 1];
+}
+
+const kn_pos *kn_column_pos(const kn_column *c, const kn_node *node)
+{
+    return node ? &node->pos : &c->key->pos;
+}

@@ -1,0 +1,253 @@
+/* arena.c - bump allocation in chunks, deferred cleanups, and the single
+ * out-of-memory path (a longjmp to the entry point's handler). */
+#include "arena.h"
+
+#include <stdint.h>
+#include <stdio.h>
+#include <stdlib.h>
+#include <string.h>
+
+#define CHUNK_SIZE (64u * 1024u)
+
+typedef struct chunk {
+    struct chunk *next;
+    size_t used, size;
+    max_align_t data[];
+} chunk;
+
+struct kn_arena {
+    chunk *head;
+    kn_defer *defers;
+    jmp_buf *oom;
+};
+
+#ifdef KN_ALLOC_FAIL
+static long fail_at = -1;
+static long alloc_count;
+
+bool kn_alloc_fail_now(void)
+{
+    if (fail_at < 0) {
+        const char *env = getenv("KNOWABLE_FAIL_ALLOC");
+        fail_at = env ? strtol(env, NULL, 10) : 0;
+    }
+    alloc_count++;
+    if (fail_at > 0 && alloc_count == fail_at) {
+        return true;
+    }
+    return false;
+}
+#else
+bool kn_alloc_fail_now(void)
+{
+    return false;
+}
+#endif
+
+static void *sys_malloc(size_t n)
+{
+    if (kn_alloc_fail_now()) {
+        return NULL;
+    }
+    return malloc(n);
+}
+
+static void *sys_realloc(void *p, size_t n)
+{
+    if (kn_alloc_fail_now()) {
+        return NULL;
+    }
+    return realloc(p, n);
+}
+
+kn_arena *kn_arena_new(void)
+{
+    kn_arena *a = sys_malloc(sizeof *a);
+    if (!a) {
+        return NULL;
+    }
+    memset(a, 0, sizeof *a);
+    return a;
+}
+
+void kn_arena_free(kn_arena *a)
+{
+    if (!a) {
+        return;
+    }
+    kn_defer *d = a->defers;
+    while (d) {
+        kn_defer *next = d->next;
+        if (d->fn && d->ptr) {
+            d->fn(d->ptr);
+        }
+        d = next;
+    }
+    chunk *c = a->head;
+    while (c) {
+        chunk *next = c->next;
+        free(c);
+        c = next;
+    }
+    free(a);
+}
+
+void kn_arena_set_oom(kn_arena *a, jmp_buf *target)
+{
+    a->oom = target;
+}
+
+_Noreturn void kn_arena_oom(kn_arena *a)
+{
+    if (a->oom) {
+        longjmp(*a->oom, 1);
+    }
+    /* Every entry point installs a handler; reaching this is a bug. */
+    fputs("knowable: out of memory\n", stderr);
+    exit(2);
+}
+
+void *kn_alloc(kn_arena *a, size_t size)
+{
+    const size_t align = sizeof(max_align_t);
+    size = (size + align - 1) & ~(align - 1);
+    if (size == 0) {
+        size = align;
+    }
+    chunk *c = a->head;
+    if (!c || c->size - c->used < size) {
+        size_t want = size > CHUNK_SIZE / 4 ? size : CHUNK_SIZE;
+        if (want > SIZE_MAX - sizeof(chunk)) {
+            kn_arena_oom(a);
+        }
+        chunk *n = sys_malloc(sizeof(chunk) + want);
+        if (!n) {
+            kn_arena_oom(a);
+        }
+        n->used = 0;
+        n->size = want;
+        if (want > CHUNK_SIZE / 4 && c) {
+            /* A large block goes behind the current chunk so the chunk's
+             * remaining space is still used by small allocations. */
+            n->next = c->next;
+            c->next = n;
+        } else {
+            n->next = c;
+            a->head = n;
+        }
+        c = n;
+    }
+    void *p = (char *)c->data + c->used;
+    c->used += size;
+    memset(p, 0, size);
+    return p;
+}
+
+void *kn_alloc_array(kn_arena *a, size_t n, size_t size)
+{
+    if (size && n > SIZE_MAX / size) {
+        kn_arena_oom(a);
+    }
+    return kn_alloc(a, n * size);
+}
+
+char *kn_strndup(kn_arena *a, const char *s, size_t len)
+{
+    if (len == SIZE_MAX) {
+        kn_arena_oom(a);
+    }
+    char *p = kn_alloc(a, len + 1);
+    if (len) {
+        memcpy(p, s, len);
+    }
+    p[len] = '\0';
+    return p;
+}
+
+char *kn_strdup(kn_arena *a, const char *s)
+{
+    return kn_strndup(a, s, strlen(s));
+}
+
+char *kn_vprintf(kn_arena *a, const char *fmt, va_list ap)
+{
+    va_list copy;
+    va_copy(copy, ap);
+    int n = vsnprintf(NULL, 0, fmt, copy);
+    va_end(copy);
+    if (n < 0) {
+        return kn_strdup(a, "");
+    }
+    char *p = kn_alloc(a, (size_t)n + 1);
+    vsnprintf(p, (size_t)n + 1, fmt, ap);
+    return p;
+}
+
+char *kn_printf(kn_arena *a, const char *fmt, ...)
+{
+    va_list ap;
+    va_start(ap, fmt);
+    char *p = kn_vprintf(a, fmt, ap);
+    va_end(ap);
+    return p;
+}
+
+kn_defer *kn_arena_defer(kn_arena *a, void (*fn)(void *), void *ptr)
+{
+    kn_defer *d = kn_alloc(a, sizeof *d);
+    d->fn = fn;
+    d->ptr = ptr;
+    d->next = a->defers;
+    a->defers = d;
+    return d;
+}
+
+void kn_defer_run(kn_arena *a, kn_defer *d)
+{
+    (void)a;
+    if (d->fn && d->ptr) {
+        d->fn(d->ptr);
+    }
+    d->ptr = NULL;
+}
+
+void *kn_xrealloc(kn_arena *a, void *p, size_t size)
+{
+    void *n = sys_realloc(p, size ? size : 1);
+    if (!n) {
+        kn_arena_oom(a);
+    }
+    return n;
+}
+
+static void vec_release(void *p)
+{
+    kn_vec *v = p;
+    free(v->data);
+    v->data = NULL;
+}
+
+kn_vec *kn_vec_new(kn_arena *a, size_t elem)
+{
+    kn_vec *v = kn_alloc(a, sizeof *v);
+    v->elem = elem;
+    v->arena = a;
+    v->defer = kn_arena_defer(a, vec_release, v);
+    return v;
+}
+
+void *kn_vec_push(kn_vec *v, const void *elem)
+{
+    if (v->len == v->cap) {
+        size_t cap = v->cap ? v->cap * 2 : 8;
+        if (cap > SIZE_MAX / v->elem) {
+            kn_arena_oom(v->arena);
+        }
+        v->data = kn_xrealloc(v->arena, v->data, cap * v->elem);
+        v->cap = cap;
+    }
+    void *slot = (char *)v->data + v->len * v->elem;
+    memcpy(slot, elem, v->elem);
+    v->len++;
+    return slot;
+}

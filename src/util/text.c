@@ -1,0 +1,310 @@
+/* text.c - edit distance, suggestions and the escaping of input text for
+ * each output (terminal, JSON, XML, Markdown).  Text from an input file is
+ * never written raw: a schema in an untrusted pull request must not be able
+ * to move the reviewer's cursor or forge a line of output. */
+#include "text.h"
+
+#include <stdint.h>
+#include <string.h>
+
+size_t kn_edit_distance(const char *a, const char *b, size_t limit)
+{
+    size_t la = strlen(a), lb = strlen(b);
+    if (la > 256 || lb > 256) {
+        return limit + 1;
+    }
+    if ((la > lb ? la - lb : lb - la) > limit) {
+        return limit + 1;
+    }
+    size_t row[257];
+    for (size_t j = 0; j <= lb; j++) {
+        row[j] = j;
+    }
+    for (size_t i = 1; i <= la; i++) {
+        size_t diag = row[0], best = i;
+        row[0] = i;
+        for (size_t j = 1; j <= lb; j++) {
+            size_t up = row[j];
+            size_t cost = a[i - 1] == b[j - 1] ? 0 : 1;
+            size_t v = diag + cost;
+            if (row[j - 1] + 1 < v) {
+                v = row[j - 1] + 1;
+            }
+            if (up + 1 < v) {
+                v = up + 1;
+            }
+            row[j] = v;
+            diag = up;
+            if (v < best) {
+                best = v;
+            }
+        }
+        if (best > limit) {
+            return limit + 1;
+        }
+    }
+    return row[lb];
+}
+
+const char *kn_suggest(const char *word, const char *const *candidates, size_t n)
+{
+    size_t len = strlen(word);
+    size_t limit = len / 3 > 1 ? len / 3 : 1;
+    const char *best = NULL;
+    size_t best_d = limit + 1;
+    for (size_t i = 0; i < n; i++) {
+        size_t d = kn_edit_distance(word, candidates[i], limit);
+        if (d > 0 && d < best_d) {
+            best = candidates[i];
+            best_d = d;
+        }
+    }
+    return best;
+}
+
+size_t kn_utf8_valid_seq(const unsigned char *s, size_t len)
+{
+    unsigned char c = s[0];
+    if (c < 0x80) {
+        return 1;
+    }
+    size_t n;
+    uint32_t cp;
+    if (c >= 0xc2 && c <= 0xdf) {
+        n = 2;
+        cp = c & 0x1f;
+    } else if (c >= 0xe0 && c <= 0xef) {
+        n = 3;
+        cp = c & 0x0f;
+    } else if (c >= 0xf0 && c <= 0xf4) {
+        n = 4;
+        cp = c & 0x07;
+    } else {
+        return 0;
+    }
+    if (len < n) {
+        return 0;
+    }
+    for (size_t i = 1; i < n; i++) {
+        if ((s[i] & 0xc0) != 0x80) {
+            return 0;
+        }
+        cp = (cp << 6) | (s[i] & 0x3f);
+    }
+    if ((n == 3 && cp < 0x800) || (n == 4 && (cp < 0x10000 || cp > 0x10ffff)) ||
+        (cp >= 0xd800 && cp <= 0xdfff)) {
+        return 0;
+    }
+    return n;
+}
+
+/* Escapes for a terminal into a callback, so file and arena outputs share it. */
+typedef void (*emit_fn)(void *ctx, const char *s, size_t n);
+
+static void term_escape(const char *s, size_t len, emit_fn emit, void *ctx)
+{
+    const unsigned char *p = (const unsigned char *)s;
+    size_t i = 0;
+    while (i < len) {
+        unsigned char c = p[i];
+        if (c >= 0x20 && c < 0x7f) {
+            size_t j = i;
+            while (j < len && p[j] >= 0x20 && p[j] < 0x7f) {
+                j++;
+            }
+            emit(ctx, s + i, j - i);
+            i = j;
+            continue;
+        }
+        if (c >= 0x80) {
+            size_t n = kn_utf8_valid_seq(p + i, len - i);
+            /* C1 controls (U+0080..U+009F) act on some terminals. */
+            if (n == 2 && c == 0xc2 && p[i + 1] < 0xa0) {
+                n = 0;
+            }
+            if (n) {
+                emit(ctx, s + i, n);
+                i += n;
+                continue;
+            }
+        }
+        char buf[8];
+        switch (c) {
+        case '\n':
+            memcpy(buf, "\\n", 3);
+            break;
+        case '\t':
+            memcpy(buf, "\\t", 3);
+            break;
+        case '\r':
+            memcpy(buf, "\\r", 3);
+            break;
+        case 0x1b:
+            memcpy(buf, "\\e", 3);
+            break;
+        default: {
+            static const char hex[] = "0123456789abcdef";
+            buf[0] = '\\';
+            buf[1] = 'x';
+            buf[2] = hex[c >> 4];
+            buf[3] = hex[c & 15];
+            buf[4] = '\0';
+        }
+        }
+        emit(ctx, buf, strlen(buf));
+        i++;
+    }
+}
+
+static void emit_file(void *ctx, const char *s, size_t n)
+{
+    fwrite(s, 1, n, (FILE *)ctx);
+}
+
+void kn_fput_term(FILE *f, const char *s, size_t len)
+{
+    term_escape(s, len, emit_file, f);
+}
+
+typedef struct buf {
+    kn_arena *arena;
+    char *data;
+    size_t len, cap;
+} buf;
+
+static void emit_buf(void *ctx, const char *s, size_t n)
+{
+    buf *b = ctx;
+    if (b->len + n + 1 > b->cap) {
+        size_t cap = (b->len + n + 1) * 2;
+        char *d = kn_alloc(b->arena, cap);
+        memcpy(d, b->data, b->len);
+        b->data = d;
+        b->cap = cap;
+    }
+    memcpy(b->data + b->len, s, n);
+    b->len += n;
+    b->data[b->len] = '\0';
+}
+
+char *kn_escape_term(kn_arena *a, const char *s, size_t len)
+{
+    buf b = {a, NULL, 0, 0};
+    emit_buf(&b, "", 0);
+    term_escape(s, len, emit_buf, &b);
+    return b.data;
+}
+
+void kn_fput_json(FILE *f, const char *s, size_t len)
+{
+    const unsigned char *p = (const unsigned char *)s;
+    size_t i = 0;
+    while (i < len) {
+        unsigned char c = p[i];
+        if (c == '"' || c == '\\') {
+            fputc('\\', f);
+            fputc(c, f);
+            i++;
+        } else if (c < 0x20 || c == 0x7f) {
+            switch (c) {
+            case '\n':
+                fputs("\\n", f);
+                break;
+            case '\t':
+                fputs("\\t", f);
+                break;
+            case '\r':
+                fputs("\\r", f);
+                break;
+            default:
+                fprintf(f, "\\u%04x", c);
+            }
+            i++;
+        } else if (c < 0x80) {
+            fputc(c, f);
+            i++;
+        } else {
+            size_t n = kn_utf8_valid_seq(p + i, len - i);
+            if (n) {
+                fwrite(p + i, 1, n, f);
+                i += n;
+            } else {
+                fputs("\\ufffd", f);
+                i++;
+            }
+        }
+    }
+}
+
+void kn_fput_json_str(FILE *f, const char *s)
+{
+    fputc('"', f);
+    kn_fput_json(f, s ? s : "", s ? strlen(s) : 0);
+    fputc('"', f);
+}
+
+void kn_fput_xml(FILE *f, const char *s, size_t len)
+{
+    const unsigned char *p = (const unsigned char *)s;
+    size_t i = 0;
+    while (i < len) {
+        unsigned char c = p[i];
+        switch (c) {
+        case '&':
+            fputs("&amp;", f);
+            break;
+        case '<':
+            fputs("&lt;", f);
+            break;
+        case '>':
+            fputs("&gt;", f);
+            break;
+        case '"':
+            fputs("&quot;", f);
+            break;
+        case '\'':
+            fputs("&apos;", f);
+            break;
+        default:
+            if (c >= 0x80) {
+                size_t n = kn_utf8_valid_seq(p + i, len - i);
+                if (n) {
+                    fwrite(p + i, 1, n, f);
+                    i += n;
+                } else {
+                    fputs("\xef\xbf\xbd", f);
+                    i++;
+                }
+                continue;
+            }
+            if (c >= 0x20 || c == '\t' || c == '\n') {
+                fputc(c, f);
+            }
+        }
+        i++;
+    }
+}
+
+void kn_fput_markdown(FILE *f, const char *s, size_t len)
+{
+    const unsigned char *p = (const unsigned char *)s;
+    size_t i = 0;
+    while (i < len) {
+        unsigned char c = p[i];
+        if (c == '\n' || c == '\r') {
+            fputc(' ', f);
+            i++;
+        } else if (strchr("|\\`*_[]<>#", c) && c) {
+            fputc('\\', f);
+            fputc(c, f);
+            i++;
+        } else {
+            size_t j = i;
+            while (j < len && p[j] != '\n' && p[j] != '\r' && !(p[j] && strchr("|\\`*_[]<>#", p[j]))) {
+                j++;
+            }
+            term_escape(s + i, j - i, emit_file, f);
+            i = j;
+        }
+    }
+}

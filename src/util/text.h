@@ -1,0 +1,44 @@
+/* text.h - text helpers shared by the stages: edit distance for "did you
+ * mean" suggestions, and escaping for terminals, JSON, XML and Markdown. */
+#ifndef KN_UTIL_TEXT_H
+#define KN_UTIL_TEXT_H
+
+#include <stdbool.h>
+#include <stddef.h>
+#include <stdio.h>
+
+#include "arena.h"
+
+/* Levenshtein distance, giving up (returning limit + 1) once it exceeds
+ * limit; inputs longer than 256 bytes are never close. */
+size_t kn_edit_distance(const char *a, const char *b, size_t limit);
+
+/* The closest of n candidates to word, or NULL when none is close enough
+ * (distance at most max(1, strlen(word) / 3), and never for an exact match). */
+const char *kn_suggest(const char *word, const char *const *candidates, size_t n);
+
+/* Writes s (len bytes) for a terminal: printable ASCII and valid UTF-8 as
+ * they are; control characters, DEL, C1 controls and invalid UTF-8 bytes as
+ * \xNN (\n \t \r \e spelt so), a backslash as is. */
+void kn_fput_term(FILE *f, const char *s, size_t len);
+/* The same into arena memory. */
+char *kn_escape_term(kn_arena *a, const char *s, size_t len);
+
+/* Writes s as the inside of a JSON string: quotes, backslashes and control
+ * characters escaped; invalid UTF-8 replaced by U+FFFD. */
+void kn_fput_json(FILE *f, const char *s, size_t len);
+/* Writes "s" (with the quotes). */
+void kn_fput_json_str(FILE *f, const char *s);
+
+/* Writes s escaped for XML text and attribute values (&, <, >, ", '),
+ * control characters other than tab/newline dropped, invalid UTF-8 replaced. */
+void kn_fput_xml(FILE *f, const char *s, size_t len);
+
+/* Writes s for Markdown table cells: | \ ` * _ [ ] < > escaped, newlines as
+ * spaces, control characters escaped as for terminals. */
+void kn_fput_markdown(FILE *f, const char *s, size_t len);
+
+/* Length of the valid UTF-8 sequence at s (1..4), or 0 when invalid. */
+size_t kn_utf8_valid_seq(const unsigned char *s, size_t len);
+
+#endif
