@@ -136,8 +136,6 @@ static const kn_explain_text texts[] = {
         "root, a schema could make the checker read, and quote in its messages, "
         "any file on the machine. A missing or looping include also leaves "
         "events and sources undefined.",
-        "knowable: 1\n"
-        "dataset: leak_alerts\n"
         "include:\n"
         "  - ../../shared/events.knowable.yaml\n"
         "  - /srv/registers/sources.knowable.yaml\n",
@@ -506,7 +504,7 @@ static const kn_explain_text texts[] = {
     },
     EXPLAIN(IDENTIFIER_IN_FEATURES) = {
         "A feature whose name matches the rulebook's identifier pattern (by "
-        "default names ending in id, key, ref, uuid, number or no), or whose "
+        "default names such as parcel_id, card_number or route_code), or whose "
         "format is set while its role is feature.",
         "Identifiers are usually issued in sequence or by a process that depends "
         "on time, branch or outcome, so a model learns patterns from them that do "
@@ -533,7 +531,7 @@ static const kn_explain_text texts[] = {
         "  order_cancelled:\n"
         "    role: target\n"
         "    known: order_closed\n"
-        "  refund_issued:\n"
+        "  fee_returned_eur:\n"
         "    known: order_placed\n"
         "    proxy_of: order_cancelled\n",
         "Exclude the proxy as well (role: excluded). If it is not really a proxy, "
