@@ -157,7 +157,7 @@ static kn_node *new_node(loader *ld, kn_node_kind kind, yaml_mark_t m, const yam
 }
 
 /* Adds a finished node (weight = its expanded size) to the open collection. */
-static void add_child(loader *ld, kn_node *n, uint64_t weight)
+static void add_child(loader *ld, kn_node *n, uint64_t weight, const kn_pos *at)
 {
     if (ld->frames->len == 0) {
         if (ld->root) {
@@ -169,7 +169,7 @@ static void add_child(loader *ld, kn_node *n, uint64_t weight)
     frame *f = &KN_VEC_AT(ld->frames, frame, ld->frames->len - 1);
     f->weight += weight;
     if (f->weight > ld->lim->max_nodes) {
-        fail(ld, &n->pos,
+        fail(ld, at,
              "this document would hold more than %zu nodes with its aliases expanded "
              "(an alias bomb?); it is refused without being expanded", ld->lim->max_nodes);
         return;
@@ -265,7 +265,7 @@ static void close_collection(loader *ld)
     if (f.anchor) {
         set_anchor(ld, f.anchor, n, f.weight);
     }
-    add_child(ld, n, f.weight);
+    add_child(ld, n, f.weight, &n->pos);
 }
 
 static void on_scalar(loader *ld, const yaml_event_t *e)
@@ -286,7 +286,7 @@ static void on_scalar(loader *ld, const yaml_event_t *e)
     if (e->data.scalar.anchor) {
         set_anchor(ld, (const char *)e->data.scalar.anchor, n, 1);
     }
-    add_child(ld, n, 1);
+    add_child(ld, n, 1, &n->pos);
 }
 
 static void on_alias(loader *ld, const yaml_event_t *e)
@@ -306,7 +306,7 @@ static void on_alias(loader *ld, const yaml_event_t *e)
         fail(ld, &pos, "alias '*%s' has no anchor before it", shown);
         return;
     }
-    add_child(ld, an->node, an->weight);
+    add_child(ld, an->node, an->weight, &pos);
 }
 
 static const char *error_kind(yaml_error_type_t t)
