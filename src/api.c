@@ -79,8 +79,11 @@ static void render(FILE *out, kn_sink *sink, const kn_options *o, size_t n_schem
  * family of rules adds its one call here, in pipeline order. */
 static void analyse(kn_ctx *ctx, kn_schema *s, const kn_options *o)
 {
-    (void)ctx, (void)s, (void)o;
-    /* timeline + availability (src/time/timeline.c, src/checks/availability.c) */
+    (void)o;
+    /* timeline + availability (src/time/timeline.c, src/checks/availability.c);
+     * t is NULL when the moment did not resolve, and later families read it. */
+    kn_timeline *t = kn_timeline_solve(ctx->arena, ctx->sink, s, ctx->rulebook->strict_moment);
+    kn_check_availability(ctx, s, t);
     /* provenance (src/checks/provenance.c) */
     /* identity (src/checks/identity.c) */
     /* preparation (src/checks/preparation.c) */

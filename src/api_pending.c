@@ -15,12 +15,6 @@ kn_status kn_sources(const kn_options *o, const char *const *schemas, size_t n, 
     return pending("sources", err);
 }
 
-kn_status kn_timeline_report(const kn_options *o, const char *schema, FILE *out, FILE *svg, FILE *err)
-{
-    (void)o, (void)schema, (void)out, (void)svg;
-    return pending("timeline", err);
-}
-
 kn_status kn_init(const kn_options *o, const char *csv, FILE *out, FILE *err)
 {
     (void)o, (void)csv, (void)out;

@@ -144,9 +144,14 @@ static void explain_event_part(const cx *x, kn_diag *d, const kn_column *c, kn_t
         note_wait(x, d, c);
     } else if (p == KN_PART_WINDOW) {
         int64_t v = upper ? c->window.to.hi : c->window.to.lo;
-        kn_diag_note(sink, d, at(c, c->window.to_node),
-                     "the window ends %s %s its anchor (columns.%s.window.to)",
-                     dur(v < 0 ? kn_time_neg(v) : v, b), v < 0 ? "before" : "after", c->name);
+        if (v == 0) {
+            kn_diag_note(sink, d, at(c, c->window.to_node),
+                         "the window ends at its anchor (columns.%s.window.to)", c->name);
+        } else {
+            kn_diag_note(sink, d, at(c, c->window.to_node),
+                         "the window ends %s %s its anchor (columns.%s.window.to)",
+                         dur(v < 0 ? kn_time_neg(v) : v, b), v < 0 ? "before" : "after", c->name);
+        }
         note_wait(x, d, c);
     }
 }

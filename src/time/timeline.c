@@ -369,7 +369,7 @@ static const char *fmt_dur(int64_t us, char *buf)
 }
 
 /* One bound of a constraint, said from the declaring event's side. */
-static char *step_words(kn_arena *a, const kn_chain_step *st)
+char *kn_timeline_step_words(kn_arena *a, const kn_chain_step *st)
 {
     const kn_constraint *c = st->con;
     const kn_event *self = decl_event(c);
@@ -407,7 +407,7 @@ static char *step_words(kn_arena *a, const kn_chain_step *st)
 void kn_timeline_note_step(kn_sink *sink, kn_diag *d, const kn_chain_step *st)
 {
     kn_arena *a = kn_sink_arena(sink);
-    kn_diag_note(sink, d, constraint_pos(st->con), "%s", step_words(a, st));
+    kn_diag_note(sink, d, constraint_pos(st->con), "%s", kn_timeline_step_words(a, st));
 }
 
 char *kn_timeline_range_words(kn_arena *a, kn_interval r, const char *m)
@@ -893,6 +893,11 @@ const kn_column_timing *kn_timeline_column_timing(const kn_timeline *t, const kn
     }
     size_t i = col_index(t, c);
     return i == NONE ? NULL : &t->col[i];
+}
+
+kn_arena *kn_timeline_arena(const kn_timeline *t)
+{
+    return t ? t->arena : NULL;
 }
 
 bool kn_timeline_contradictory(const kn_timeline *t)

@@ -83,6 +83,12 @@ void kn_timeline_note_chain(const kn_timeline *t, kn_sink *sink, kn_diag *d,
                             const kn_event *e, bool upper);
 void kn_timeline_note_step(kn_sink *sink, kn_diag *d, const kn_chain_step *st);
 
+/* The words of one step, as in the notes (arena memory). */
+char *kn_timeline_step_words(kn_arena *a, const kn_chain_step *st);
+
+/* The arena the timeline lives in (for documents that format into it). */
+kn_arena *kn_timeline_arena(const kn_timeline *t);
+
 /* A range in words relative to the named moment, e.g. "between 2h before
  * and 1d 4h after the moment 'dispatch'" (arena memory; the name is written
  * as given: renderers escape). */

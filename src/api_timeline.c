@@ -1,0 +1,85 @@
+/* api_timeline.c - `knowable timeline SCHEMA`: loads the rulebook (for
+ * strict_moment) and the schema, solves the timeline and writes the text
+ * report (src/docs/timeline_text.c).  Problems with the schema itself are
+ * written to err in the usual diagnostic format; `knowable check` is the
+ * place to read the findings. */
+#include <knowable/knowable.h>
+
+#include <setjmp.h>
+
+#include "docs/docs.h"
+#include "report/diag.h"
+#include "report/render.h"
+#include "rulebook/rulebook.h"
+#include "schema/schema.h"
+#include "time/timeline.h"
+#include "util/arena.h"
+
+static kn_rulebook *rulebook(kn_arena *a, kn_sink *sink, const kn_options *o, const char *schema)
+{
+    kn_rulebook *rb = kn_rulebook_new(a);
+    if (!kn_rulebook_load_default(rb, a, sink)) {
+        return rb;
+    }
+    if (o->n_rulebooks) {
+        for (size_t i = 0; i < o->n_rulebooks; i++) {
+            kn_rulebook_load(rb, a, sink, o->rulebooks[i]);
+        }
+    } else {
+        char *found = kn_rulebook_discover(a, schema);
+        if (found) {
+            kn_rulebook_load(rb, a, sink, found);
+        }
+    }
+    return rb;
+}
+
+kn_status kn_timeline_report(const kn_options *o, const char *schema, FILE *out, FILE *svg,
+                             FILE *err)
+{
+    if (svg) {
+        fputs("knowable: the SVG picture of the timeline is not available in this build yet; "
+              "the text report is\n",
+              err);
+        return KN_EXIT_FAILED;
+    }
+    kn_arena *a = kn_arena_new();
+    if (!a) {
+        fputs("knowable: out of memory\n", err);
+        return KN_EXIT_FAILED;
+    }
+    jmp_buf oom;
+    if (setjmp(oom)) {
+        kn_arena_free(a);
+        fputs("knowable: out of memory\n", err);
+        return KN_EXIT_FAILED;
+    }
+    kn_arena_set_oom(a, &oom);
+
+    kn_status status = KN_EXIT_OK;
+    kn_sink *sink = kn_sink_new(a);
+    kn_render_opts ro = {o->color, o->quiet, false, 1};
+    kn_rulebook *rb = rulebook(a, sink, o, schema);
+    kn_schema *s = NULL;
+    if (!kn_sink_fatal(sink)) {
+        kn_rulebook_apply(rb, sink);
+        kn_load_options lo = {0};
+        lo.root = o->root;
+        kn_yaml_limits_default(&lo.limits);
+        lo.rulebook = rb;
+        s = kn_schema_load(a, sink, schema, &lo);
+    }
+    if (!s || !s->shape_ok || kn_sink_fatal(sink)) {
+        kn_sink_finish(sink);
+        kn_render_text(err, sink, &ro);
+        fputs("knowable: the schema has errors (above); fix them before placing its timeline\n",
+              err);
+        status = KN_EXIT_FAILED;
+    } else {
+        /* Contradictions go to the report itself, not to diagnostics. */
+        kn_timeline *t = kn_timeline_solve(a, sink, s, rb->strict_moment);
+        kn_timeline_write_text(out, s, t);
+    }
+    kn_arena_free(a);
+    return status;
+}

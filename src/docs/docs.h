@@ -1,0 +1,20 @@
+/* docs.h - the documents knowable writes for reviewers: the timeline report
+ * (each event and column placed relative to the moment).  Documents read the
+ * schema model and the solved timeline; they never push diagnostics. */
+#ifndef KN_DOCS_DOCS_H
+#define KN_DOCS_DOCS_H
+
+#include <stdio.h>
+
+#include "../schema/schema.h"
+#include "../time/timeline.h"
+
+/* `knowable timeline SCHEMA` as text: each event's range relative to the
+ * moment, then each column's availability range and verdict, aligned in
+ * columns for a terminal.  Names from the schema are escaped (no control
+ * character is written raw).  t may be NULL (the moment did not resolve);
+ * the report then says so.  Scratch memory comes from t's arena; nothing
+ * needs freeing.  Write errors are left in out's error indicator. */
+void kn_timeline_write_text(FILE *out, const kn_schema *s, const kn_timeline *t);
+
+#endif
