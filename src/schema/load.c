@@ -147,6 +147,10 @@ static const char *kind_expect(const kn_key_spec *k)
 
 static kn_diag *wrong_type(ld *l, const owner *o, const kn_key_spec *k, const kn_node *v)
 {
+    if (v->kind == KN_NODE_SCALAR && !kn_node_is_null(v)) {
+        return err(l, KN_R_SCHEMA_SHAPE, v, "'%s' of %s must be %s, not '%s'", k->name, owner_str(l, o),
+                   kind_expect(k), node_esc(l, v));
+    }
     return err(l, KN_R_SCHEMA_SHAPE, v, "'%s' of %s must be %s, not %s", k->name, owner_str(l, o),
                kind_expect(k), kn_node_kind_name(v));
 }

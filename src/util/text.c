@@ -9,6 +9,8 @@
 
 size_t kn_edit_distance(const char *a, const char *b, size_t limit)
 {
+    /* Optimal string alignment: Levenshtein plus adjacent transpositions,
+     * so that "knwon" is one edit from "known". */
     size_t la = strlen(a), lb = strlen(b);
     if (la > 256 || lb > 256) {
         return limit + 1;
@@ -16,25 +18,27 @@ size_t kn_edit_distance(const char *a, const char *b, size_t limit)
     if ((la > lb ? la - lb : lb - la) > limit) {
         return limit + 1;
     }
-    size_t row[257];
+    static size_t rows[3][257];
+    size_t *prev2 = rows[0], *prev = rows[1], *cur = rows[2];
     for (size_t j = 0; j <= lb; j++) {
-        row[j] = j;
+        prev[j] = j;
     }
     for (size_t i = 1; i <= la; i++) {
-        size_t diag = row[0], best = i;
-        row[0] = i;
+        cur[0] = i;
+        size_t best = i;
         for (size_t j = 1; j <= lb; j++) {
-            size_t up = row[j];
             size_t cost = a[i - 1] == b[j - 1] ? 0 : 1;
-            size_t v = diag + cost;
-            if (row[j - 1] + 1 < v) {
-                v = row[j - 1] + 1;
+            size_t v = prev[j - 1] + cost;
+            if (prev[j] + 1 < v) {
+                v = prev[j] + 1;
             }
-            if (up + 1 < v) {
-                v = up + 1;
+            if (cur[j - 1] + 1 < v) {
+                v = cur[j - 1] + 1;
             }
-            row[j] = v;
-            diag = up;
+            if (i > 1 && j > 1 && a[i - 1] == b[j - 2] && a[i - 2] == b[j - 1] && prev2[j - 2] + 1 < v) {
+                v = prev2[j - 2] + 1;
+            }
+            cur[j] = v;
             if (v < best) {
                 best = v;
             }
@@ -42,14 +46,18 @@ size_t kn_edit_distance(const char *a, const char *b, size_t limit)
         if (best > limit) {
             return limit + 1;
         }
+        size_t *t = prev2;
+        prev2 = prev;
+        prev = cur;
+        cur = t;
     }
-    return row[lb];
+    return prev[lb];
 }
 
 const char *kn_suggest(const char *word, const char *const *candidates, size_t n)
 {
     size_t len = strlen(word);
-    size_t limit = len / 3 > 1 ? len / 3 : 1;
+    size_t limit = len <= 3 ? 1 : (len / 3 > 2 ? len / 3 : 2);
     const char *best = NULL;
     size_t best_d = limit + 1;
     for (size_t i = 0; i < n; i++) {
@@ -178,7 +186,9 @@ static void emit_buf(void *ctx, const char *s, size_t n)
     if (b->len + n + 1 > b->cap) {
         size_t cap = (b->len + n + 1) * 2;
         char *d = kn_alloc(b->arena, cap);
-        memcpy(d, b->data, b->len);
+        if (b->len) {
+            memcpy(d, b->data, b->len);
+        }
         b->data = d;
         b->cap = cap;
     }

@@ -9,12 +9,14 @@
 
 #include "arena.h"
 
-/* Levenshtein distance, giving up (returning limit + 1) once it exceeds
+/* Edit distance (optimal string alignment: insertions, deletions,
+ * substitutions and adjacent transpositions), giving up (returning limit + 1) once it exceeds
  * limit; inputs longer than 256 bytes are never close. */
 size_t kn_edit_distance(const char *a, const char *b, size_t limit);
 
 /* The closest of n candidates to word, or NULL when none is close enough
- * (distance at most max(1, strlen(word) / 3), and never for an exact match). */
+ * (distance at most 1 for words of up to 3 bytes, else max(2, strlen(word) / 3);
+ * never for an exact match). */
 const char *kn_suggest(const char *word, const char *const *candidates, size_t n);
 
 /* Writes s (len bytes) for a terminal: printable ASCII and valid UTF-8 as
