@@ -33,6 +33,7 @@ static char *words(const cx *x, kn_interval r)
  * (SPEC §4.2: inherits-late-input, window-overruns). */
 static void at_most_warning(kn_diag *d)
 {
+    d->cap = KN_SEV_WARNING;
     if (d->severity > KN_SEV_WARNING) {
         d->severity = KN_SEV_WARNING;
     }

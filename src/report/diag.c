@@ -154,6 +154,9 @@ void kn_sink_finish(kn_sink *s)
     size_t n = s->diags->len, out = 0;
     for (size_t i = 0; i < n; i++) {
         all[i]->severity = s->severity[all[i]->rule];
+        if (all[i]->cap && all[i]->severity > all[i]->cap) {
+            all[i]->severity = all[i]->cap;
+        }
         if (all[i]->severity != KN_SEV_OFF) {
             all[out++] = all[i];
         }

@@ -70,6 +70,8 @@ typedef struct kn_diag {
     char *key; /* line-independent identity for the fingerprint; defaults to message */
     kn_note *notes;
     size_t n_notes, cap_notes;
+    kn_severity cap; /* when set, the most severe level this finding may take (a
+                        "maybe" finding of an error rule is a warning); 0: no cap */
     bool waived;
     bool baselined;
     uint64_t fingerprint;
