@@ -1,0 +1,607 @@
+/* stats.c - the statistics of the data checks (see stats.h): a radix sort
+ * for the Mann-Whitney AUC, open-addressing hash tables for contingency
+ * tables, k-anonymity groups and split overlap, hashing, and the seeded
+ * generator behind reservoir sampling.  Hands on numbers only. */
+#include "stats.h"
+
+#include <math.h>
+#include <stdlib.h>
+#include <string.h>
+
+/* ---- hashing ------------------------------------------------------------- */
+
+/* The splitmix64 finaliser (Steele, Lea and Flood, 2014). */
+static uint64_t mix64(uint64_t z)
+{
+    z = (z ^ (z >> 30)) * UINT64_C(0xBF58476D1CE4E5B9);
+    z = (z ^ (z >> 27)) * UINT64_C(0x94D049BB133111EB);
+    return z ^ (z >> 31);
+}
+
+/* FNV-1a (Fowler, Noll, Vo), 64-bit, then mix64. */
+uint64_t kn_hash_bytes(const void *p, size_t len, uint64_t seed)
+{
+    const unsigned char *s = p;
+    uint64_t h = UINT64_C(14695981039346656037) ^ mix64(seed);
+    for (size_t i = 0; i < len; i++) {
+        h ^= s[i];
+        h *= UINT64_C(1099511628211);
+    }
+    return mix64(h ^ len);
+}
+
+/* Chained field hashes, each seeded by the row so far and the field's length. */
+void kn_row_hash_init(kn_row_hash *rh)
+{
+    rh->h = UINT64_C(0x6A09E667F3BCC908);
+}
+
+void kn_row_hash_field(kn_row_hash *rh, const char *p, size_t len)
+{
+    rh->h = kn_hash_bytes(p, len, rh->h ^ ((uint64_t)len * UINT64_C(0x9E3779B97F4A7C15)));
+}
+
+uint64_t kn_row_hash_final(const kn_row_hash *rh)
+{
+    return mix64(rh->h);
+}
+
+/* ---- a u64-keyed open-addressing table (linear probing) -------------------- */
+
+/* A slot is in use when a or b is nonzero: every insertion counts at once. */
+typedef struct slot {
+    uint64_t key;
+    uint64_t a, b;
+    uint64_t line;
+} slot;
+
+typedef struct u64map {
+    kn_arena *arena;
+    slot *slots;
+    size_t cap, used;
+} u64map;
+
+static void u64map_release(void *p)
+{
+    u64map *m = p;
+    free(m->slots);
+    m->slots = NULL;
+    m->cap = m->used = 0;
+}
+
+static void u64map_init(kn_arena *a, u64map *m)
+{
+    m->arena = a;
+    m->slots = NULL;
+    m->cap = m->used = 0;
+    kn_arena_defer(a, u64map_release, m);
+}
+
+static bool slot_used(const slot *s)
+{
+    return (s->a | s->b) != 0;
+}
+
+static void u64map_grow(u64map *m)
+{
+    size_t cap = m->cap ? m->cap * 2 : 64;
+    if (cap > SIZE_MAX / sizeof(slot)) {
+        kn_arena_oom(m->arena);
+    }
+    slot *fresh = kn_xrealloc(m->arena, NULL, cap * sizeof(slot));
+    memset(fresh, 0, cap * sizeof(slot));
+    for (size_t i = 0; i < m->cap; i++) {
+        const slot *s = &m->slots[i];
+        if (!slot_used(s)) {
+            continue;
+        }
+        size_t j = (size_t)mix64(s->key) & (cap - 1);
+        while (slot_used(&fresh[j])) {
+            j = (j + 1) & (cap - 1);
+        }
+        fresh[j] = *s;
+    }
+    free(m->slots);
+    m->slots = fresh;
+    m->cap = cap;
+}
+
+/* The slot for key; a new one is all zero but for the key, and the caller
+ * must count in a or b before the next call. */
+static slot *u64map_get(u64map *m, uint64_t key)
+{
+    if (2 * (m->used + 1) > m->cap) {
+        u64map_grow(m);
+    }
+    size_t j = (size_t)mix64(key) & (m->cap - 1);
+    for (;;) {
+        slot *s = &m->slots[j];
+        if (!slot_used(s)) {
+            s->key = key;
+            m->used++;
+            return s;
+        }
+        if (s->key == key) {
+            return s;
+        }
+        j = (j + 1) & (m->cap - 1);
+    }
+}
+
+/* ---- ROC AUC ------------------------------------------------------------ */
+
+typedef struct scored {
+    uint64_t key; /* the score's bits, ordered as unsigned integers */
+    uint64_t positive;
+} scored;
+
+/* Doubles to unsigned keys with the same order (sign-magnitude flip). */
+static uint64_t order_key(double v)
+{
+    if (v == 0.0) {
+        v = 0.0; /* -0.0 and 0.0 are one score */
+    }
+    uint64_t bits;
+    memcpy(&bits, &v, sizeof bits);
+    return (bits & UINT64_C(0x8000000000000000)) ? ~bits : bits ^ UINT64_C(0x8000000000000000);
+}
+
+#define RADIX_BITS 11
+#define RADIX_SIZE (1u << RADIX_BITS)
+#define RADIX_PASSES 6 /* 6 * 11 >= 64 */
+
+/* LSD radix sort by key, 11-bit digits; passes where every key has the
+ * same digit are skipped.  Returns whichever buffer holds the result. */
+static scored *radix_sort(scored *v, scored *tmp, size_t n, size_t (*count)[RADIX_SIZE])
+{
+    memset(count, 0, RADIX_PASSES * sizeof *count);
+    for (size_t i = 0; i < n; i++) {
+        uint64_t k = v[i].key;
+        for (int p = 0; p < RADIX_PASSES; p++) {
+            count[p][(k >> (p * RADIX_BITS)) & (RADIX_SIZE - 1)]++;
+        }
+    }
+    for (int p = 0; p < RADIX_PASSES; p++) {
+        size_t *c = count[p];
+        bool trivial = false;
+        for (size_t d = 0; d < RADIX_SIZE; d++) {
+            if (c[d] == n) {
+                trivial = true;
+                break;
+            }
+            if (c[d]) {
+                break;
+            }
+        }
+        if (trivial) {
+            continue;
+        }
+        size_t sum = 0;
+        for (size_t d = 0; d < RADIX_SIZE; d++) {
+            size_t t = c[d];
+            c[d] = sum;
+            sum += t;
+        }
+        for (size_t i = 0; i < n; i++) {
+            size_t d = (size_t)(v[i].key >> (p * RADIX_BITS)) & (RADIX_SIZE - 1);
+            tmp[c[d]++] = v[i];
+        }
+        scored *swap = v;
+        v = tmp;
+        tmp = swap;
+    }
+    return v;
+}
+
+/* ROC AUC as the Mann-Whitney U statistic with average ranks for ties:
+ * after one sort, each tie group adds pos_g * (neg_below + neg_g / 2). */
+bool kn_stats_auc(kn_arena *a, const double *score, const bool *positive, size_t n, kn_auc *out)
+{
+    memset(out, 0, sizeof *out);
+    out->auc = out->separation = 0.5;
+    const size_t counts_size = RADIX_PASSES * RADIX_SIZE * sizeof(size_t);
+    if (n > (SIZE_MAX - counts_size) / (2 * sizeof(scored))) {
+        kn_arena_oom(a);
+    }
+    /* One scratch block: the scores, the radix sort's second buffer and
+     * its digit counts. */
+    kn_defer *d = kn_arena_defer(a, free, NULL);
+    scored *buf = n ? kn_xrealloc(a, NULL, 2 * n * sizeof(scored) + counts_size) : NULL;
+    d->ptr = buf;
+    size_t m = 0;
+    for (size_t i = 0; i < n; i++) {
+        if (isnan(score[i])) {
+            continue;
+        }
+        buf[m].key = order_key(score[i]);
+        buf[m].positive = positive[i] ? 1 : 0;
+        if (positive[i]) {
+            out->n_pos++;
+        } else {
+            out->n_neg++;
+        }
+        m++;
+    }
+    if (out->n_pos == 0 || out->n_neg == 0) {
+        kn_defer_run(a, d);
+        return false;
+    }
+    const scored *v = radix_sort(buf, buf + n, m, (size_t(*)[RADIX_SIZE])(void *)(buf + 2 * n));
+    /* twice U, exact in integers */
+    uint64_t two_u = 0, neg_below = 0;
+    for (size_t i = 0; i < m;) {
+        uint64_t pos_g = 0, neg_g = 0;
+        size_t j = i;
+        while (j < m && v[j].key == v[i].key) {
+            pos_g += v[j].positive;
+            neg_g += 1 - v[j].positive;
+            j++;
+        }
+        two_u += pos_g * (2 * neg_below + neg_g);
+        neg_below += neg_g;
+        i = j;
+    }
+    kn_defer_run(a, d);
+    out->auc = (double)two_u / (2.0 * (double)out->n_pos * (double)out->n_neg);
+    out->separation = out->auc >= 0.5 ? out->auc : 1.0 - out->auc;
+    return true;
+}
+
+/* ---- contingency tables ---------------------------------------------------- */
+
+typedef struct level {
+    const char *text;
+    size_t len;
+    uint64_t hash;
+    uint64_t count;
+} level;
+
+/* Distinct strings -> dense ids; the index holds id + 1, 0 when empty. */
+typedef struct strtab {
+    level *levels;
+    size_t n, levels_cap;
+    uint32_t *index;
+    size_t index_cap;
+} strtab;
+
+struct kn_contingency {
+    kn_arena *arena;
+    strtab x, y;
+    u64map pairs;
+    size_t max_levels, max_pairs, text_bytes;
+    uint64_t n;
+    bool high_cardinality;
+};
+
+static void strtab_release(void *p)
+{
+    strtab *t = p;
+    free(t->levels);
+    free(t->index);
+    t->levels = NULL;
+    t->index = NULL;
+}
+
+static void strtab_reindex(kn_arena *a, strtab *t)
+{
+    size_t cap = t->index_cap ? t->index_cap * 2 : 64;
+    uint32_t *fresh = kn_xrealloc(a, NULL, cap * sizeof *fresh);
+    memset(fresh, 0, cap * sizeof *fresh);
+    for (size_t i = 0; i < t->n; i++) {
+        size_t j = (size_t)t->levels[i].hash & (cap - 1);
+        while (fresh[j]) {
+            j = (j + 1) & (cap - 1);
+        }
+        fresh[j] = (uint32_t)(i + 1);
+    }
+    free(t->index);
+    t->index = fresh;
+    t->index_cap = cap;
+}
+
+/* The id of s, adding it when new; SIZE_MAX when adding would pass a cap. */
+static size_t strtab_id(kn_contingency *c, strtab *t, const char *s, size_t len)
+{
+    uint64_t h = kn_hash_bytes(s, len, 0);
+    if (t->index_cap) {
+        size_t j = (size_t)h & (t->index_cap - 1);
+        while (t->index[j]) {
+            const level *l = &t->levels[t->index[j] - 1];
+            if (l->hash == h && l->len == len && (len == 0 || memcmp(l->text, s, len) == 0)) {
+                return t->index[j] - 1;
+            }
+            j = (j + 1) & (t->index_cap - 1);
+        }
+    }
+    if (t->n >= c->max_levels || len > KN_CONTINGENCY_MAX_TEXT - c->text_bytes) {
+        return SIZE_MAX;
+    }
+    if (2 * (t->n + 1) > t->index_cap) {
+        strtab_reindex(c->arena, t);
+    }
+    if (t->n == t->levels_cap) {
+        size_t cap = t->levels_cap ? t->levels_cap * 2 : 16;
+        t->levels = kn_xrealloc(c->arena, t->levels, cap * sizeof *t->levels);
+        t->levels_cap = cap;
+    }
+    level *l = &t->levels[t->n];
+    l->text = kn_strndup(c->arena, s, len);
+    l->len = len;
+    l->hash = h;
+    l->count = 0;
+    c->text_bytes += len;
+    size_t j = (size_t)h & (t->index_cap - 1);
+    while (t->index[j]) {
+        j = (j + 1) & (t->index_cap - 1);
+    }
+    t->index[j] = (uint32_t)(t->n + 1);
+    return t->n++;
+}
+
+kn_contingency *kn_contingency_new(kn_arena *a, size_t max_levels)
+{
+    kn_contingency *c = kn_alloc(a, sizeof *c);
+    c->arena = a;
+    c->max_levels = max_levels ? max_levels : KN_CONTINGENCY_MAX_LEVELS;
+    if (c->max_levels > UINT32_MAX - 1) {
+        c->max_levels = UINT32_MAX - 1;
+    }
+    c->max_pairs = c->max_levels * KN_CONTINGENCY_PAIRS_PER_LEVEL;
+    kn_arena_defer(a, strtab_release, &c->x);
+    kn_arena_defer(a, strtab_release, &c->y);
+    u64map_init(a, &c->pairs);
+    return c;
+}
+
+bool kn_contingency_add(kn_contingency *c, const char *x, size_t x_len, const char *y,
+                        size_t y_len)
+{
+    if (c->high_cardinality) {
+        return false;
+    }
+    size_t xi = strtab_id(c, &c->x, x, x_len);
+    size_t yi = xi == SIZE_MAX ? SIZE_MAX : strtab_id(c, &c->y, y, y_len);
+    if (yi == SIZE_MAX) {
+        c->high_cardinality = true;
+        return false;
+    }
+    uint64_t key = ((uint64_t)xi << 32) | (uint64_t)yi;
+    if (c->pairs.used >= c->max_pairs) {
+        /* Only a new pair would pass the cap; look before inserting. */
+        bool known = false;
+        if (c->pairs.cap) {
+            size_t j = (size_t)mix64(key) & (c->pairs.cap - 1);
+            while (slot_used(&c->pairs.slots[j])) {
+                if (c->pairs.slots[j].key == key) {
+                    known = true;
+                    break;
+                }
+                j = (j + 1) & (c->pairs.cap - 1);
+            }
+        }
+        if (!known) {
+            c->high_cardinality = true;
+            return false;
+        }
+    }
+    slot *s = u64map_get(&c->pairs, key);
+    s->a++;
+    c->x.levels[xi].count++;
+    c->y.levels[yi].count++;
+    c->n++;
+    return true;
+}
+
+bool kn_contingency_high_cardinality(const kn_contingency *c)
+{
+    return c->high_cardinality;
+}
+
+/* Theil's uncertainty coefficient U(Y|X) = I(Y;X) / H(Y), natural log, with
+ * I = sum n_xy/n * log(n * n_xy / (n_x * n_y)). */
+bool kn_contingency_uncertainty(const kn_contingency *c, kn_uncertainty *out)
+{
+    memset(out, 0, sizeof *out);
+    out->n = (size_t)c->n;
+    out->x_levels = c->x.n;
+    out->y_levels = c->y.n;
+    out->high_cardinality = c->high_cardinality;
+    if (c->high_cardinality || c->n == 0) {
+        return false;
+    }
+    const double n = (double)c->n;
+    const double log_n = log(n);
+    double h_y = 0;
+    for (size_t i = 0; i < c->y.n; i++) {
+        double k = (double)c->y.levels[i].count;
+        h_y -= k / n * (log(k) - log_n);
+    }
+    double mi = 0;
+    for (size_t i = 0; i < c->pairs.cap; i++) {
+        const slot *s = &c->pairs.slots[i];
+        if (!slot_used(s)) {
+            continue;
+        }
+        double nxy = (double)s->a;
+        double nx = (double)c->x.levels[s->key >> 32].count;
+        double ny = (double)c->y.levels[s->key & UINT32_MAX].count;
+        mi += nxy / n * (log(nxy) + log_n - log(nx) - log(ny));
+    }
+    if (h_y < 0) {
+        h_y = 0;
+    }
+    if (mi < 0) {
+        mi = 0;
+    }
+    if (mi > h_y) {
+        mi = h_y;
+    }
+    out->h_y = h_y;
+    out->mi = mi;
+    out->u = h_y > 0 ? mi / h_y : 0.0;
+    return true;
+}
+
+/* ---- k-anonymity ------------------------------------------------------- */
+
+struct kn_groups {
+    u64map map;
+    size_t rows;
+};
+
+kn_groups *kn_groups_new(kn_arena *a)
+{
+    kn_groups *g = kn_alloc(a, sizeof *g);
+    u64map_init(a, &g->map);
+    return g;
+}
+
+void kn_groups_add(kn_groups *g, uint64_t tuple_hash, uint64_t line)
+{
+    slot *s = u64map_get(&g->map, tuple_hash);
+    if (s->a == 0) {
+        s->line = line;
+    }
+    s->a++;
+    g->rows++;
+}
+
+/* k-anonymity (Sweeney, 2002): sizes of the equivalence classes of equal
+ * quasi-identifier tuples, compared with k. */
+void kn_groups_kanon(const kn_groups *g, size_t k, kn_kanon *out)
+{
+    memset(out, 0, sizeof *out);
+    out->rows = g->rows;
+    for (size_t i = 0; i < g->map.cap; i++) {
+        const slot *s = &g->map.slots[i];
+        if (!slot_used(s)) {
+            continue;
+        }
+        size_t size = (size_t)s->a;
+        out->groups++;
+        if (out->smallest == 0 || size < out->smallest ||
+            (size == out->smallest && s->line < out->smallest_line)) {
+            out->smallest = size;
+            out->smallest_line = s->line;
+        }
+        if (size < k) {
+            out->groups_below_k++;
+            out->rows_below_k += size;
+        }
+    }
+}
+
+/* ---- rows shared across a split ----------------------------------------- */
+
+struct kn_overlap {
+    u64map map;
+    size_t train_rows, test_rows;
+};
+
+kn_overlap *kn_overlap_new(kn_arena *a)
+{
+    kn_overlap *o = kn_alloc(a, sizeof *o);
+    u64map_init(a, &o->map);
+    return o;
+}
+
+void kn_overlap_add(kn_overlap *o, uint64_t key, bool test_side, uint64_t line)
+{
+    slot *s = u64map_get(&o->map, key);
+    if (test_side) {
+        if (s->b == 0 || line < s->line) {
+            s->line = line;
+        }
+        s->b++;
+        o->test_rows++;
+    } else {
+        s->a++;
+        o->train_rows++;
+    }
+}
+
+/* Keys counted on both sides of the split. */
+void kn_overlap_result_get(const kn_overlap *o, kn_overlap_result *out)
+{
+    memset(out, 0, sizeof *out);
+    out->train_rows = o->train_rows;
+    out->test_rows = o->test_rows;
+    for (size_t i = 0; i < o->map.cap; i++) {
+        const slot *s = &o->map.slots[i];
+        if (s->a == 0 || s->b == 0) {
+            continue;
+        }
+        out->shared_keys++;
+        out->train_rows_shared += (size_t)s->a;
+        out->test_rows_shared += (size_t)s->b;
+        if (out->first_test_line == 0 || s->line < out->first_test_line) {
+            out->first_test_line = s->line;
+        }
+    }
+}
+
+/* ---- reservoir sampling --------------------------------------------------- */
+
+/* splitmix64 fills the xoshiro256** state, as its authors recommend. */
+void kn_rng_seed(kn_rng *r, uint64_t seed)
+{
+    uint64_t x = seed;
+    for (int i = 0; i < 4; i++) {
+        x += UINT64_C(0x9E3779B97F4A7C15);
+        r->s[i] = mix64(x);
+    }
+}
+
+static uint64_t rotl(uint64_t x, int k)
+{
+    return (x << k) | (x >> (64 - k));
+}
+
+/* xoshiro256** (Blackman and Vigna, 2018). */
+uint64_t kn_rng_next(kn_rng *r)
+{
+    uint64_t *s = r->s;
+    const uint64_t result = rotl(s[1] * 5, 7) * 9;
+    const uint64_t t = s[1] << 17;
+    s[2] ^= s[0];
+    s[3] ^= s[1];
+    s[1] ^= s[2];
+    s[0] ^= s[3];
+    s[2] ^= t;
+    s[3] = rotl(s[3], 45);
+    return result;
+}
+
+/* Rejection of the 2^64 mod n lowest draws, then a modulo: unbiased. */
+uint64_t kn_rng_below(kn_rng *r, uint64_t n)
+{
+    uint64_t threshold = (0 - n) % n;
+    for (;;) {
+        uint64_t x = kn_rng_next(r);
+        if (x >= threshold) {
+            return x % n;
+        }
+    }
+}
+
+void kn_reservoir_init(kn_reservoir *rs, size_t cap, uint64_t seed)
+{
+    rs->cap = cap;
+    rs->seen = 0;
+    kn_rng_seed(&rs->rng, seed);
+}
+
+/* Algorithm R (Vitter, 1985): item i (0-based) replaces a random slot with
+ * probability cap / (i + 1). */
+size_t kn_reservoir_offer(kn_reservoir *rs)
+{
+    uint64_t i = rs->seen++;
+    if (i < rs->cap) {
+        return (size_t)i;
+    }
+    if (rs->cap == 0) {
+        return KN_RESERVOIR_SKIP;
+    }
+    uint64_t j = kn_rng_below(&rs->rng, i + 1);
+    return j < rs->cap ? (size_t)j : KN_RESERVOIR_SKIP;
+}

@@ -1,0 +1,166 @@
+/* stats.h - the statistics behind the data checks (SPEC §4.7): separation
+ * of a binary target by one numeric score (ROC AUC), by one categorical
+ * feature (uncertainty coefficient), k-anonymity group sizes, rows shared
+ * between training and test, and a reservoir sample that caps the rows
+ * kept at --max-rows.  Hands on plain numbers; deciding what is a finding
+ * (thresholds, messages) is the caller's job.
+ *
+ * Memory: every accumulator lives in the caller's arena.  Tables that grow
+ * (hash tables, sort buffers) are heap memory from kn_xrealloc, released by
+ * a deferred cleanup (kn_arena_defer) when the arena is freed, and given
+ * back at once when a table doubles or a sort is done, so peak memory is
+ * about twice the live table.  Allocation failure longjmps (arena.h).
+ *
+ * Hashing: keys are hashed with kn_hash_bytes (64-bit, below).  Row and
+ * tuple identities (kn_groups, kn_overlap) are the 64-bit hashes alone:
+ * two different tuples whose hashes collide count as one, with a chance
+ * of about n^2 / 2^65 for n distinct tuples (3e-8 for a million).
+ * Categories in kn_contingency are compared as strings, exactly. */
+#ifndef KN_DATA_STATS_H
+#define KN_DATA_STATS_H
+
+#include <stdbool.h>
+#include <stddef.h>
+#include <stdint.h>
+
+#include "../util/arena.h"
+
+/* ---- ROC AUC ------------------------------------------------------------ */
+
+typedef struct kn_auc {
+    double auc;        /* P(score of a positive > score of a negative) + P(tie) / 2 */
+    double separation; /* max(auc, 1 - auc): separation in either direction */
+    size_t n_pos, n_neg;
+} kn_auc;
+
+/* ROC AUC of score against a binary target (positive[i] true for the
+ * positive class), by the Mann-Whitney U statistic with average ranks for
+ * ties (one sort, O(n log n)), counted per tie group in exact integers.
+ * Rows whose score is NaN are left out.  Returns false (and *out with the
+ * class counts, auc 0.5) when either class is empty.  Scratch memory is
+ * released before returning. */
+bool kn_stats_auc(kn_arena *a, const double *score, const bool *positive, size_t n, kn_auc *out);
+
+/* ---- uncertainty coefficient -------------------------------------------- */
+
+typedef struct kn_contingency kn_contingency;
+
+typedef struct kn_uncertainty {
+    double u;    /* U(Y | X) = I(Y; X) / H(Y), in [0, 1]; 0 when H(Y) = 0 */
+    double mi;   /* I(Y; X), natural log (nats) */
+    double h_y;  /* H(Y), natural log */
+    size_t n;    /* pairs counted */
+    size_t x_levels, y_levels;
+    bool high_cardinality; /* a cap was hit: u, mi, h_y are 0 and must not be used */
+} kn_uncertainty;
+
+/* Caps of a contingency table: beyond them the feature is treated as
+ * high-cardinality (kn_contingency_add returns false). */
+#define KN_CONTINGENCY_MAX_LEVELS 10000u          /* default distinct X, and distinct Y */
+#define KN_CONTINGENCY_PAIRS_PER_LEVEL 16u        /* distinct (X, Y) <= 16 * max_levels */
+#define KN_CONTINGENCY_MAX_TEXT (16u << 20)       /* bytes of distinct category text */
+
+/* A new contingency table of a categorical feature X against a categorical
+ * target Y.  max_levels 0 means KN_CONTINGENCY_MAX_LEVELS. */
+kn_contingency *kn_contingency_new(kn_arena *a, size_t max_levels);
+
+/* Counts one (x, y) pair; the strings are copied when first seen.  A
+ * missing value is whatever category the caller passes (e.g. "").  Returns
+ * false, and ignores this and every later pair, once a cap is exceeded. */
+bool kn_contingency_add(kn_contingency *t, const char *x, size_t x_len, const char *y,
+                        size_t y_len);
+
+/* True once a cap was exceeded. */
+bool kn_contingency_high_cardinality(const kn_contingency *t);
+
+/* The uncertainty coefficient U(Y | X) = I(Y; X) / H(Y) (Theil's U) from
+ * the counts, natural logarithms, I clamped to [0, H(Y)].  Returns false
+ * when the table is empty or high-cardinality. */
+bool kn_contingency_uncertainty(const kn_contingency *t, kn_uncertainty *out);
+
+/* ---- k-anonymity ------------------------------------------------------- */
+
+typedef struct kn_groups kn_groups;
+
+typedef struct kn_kanon {
+    size_t rows, groups;
+    size_t smallest;          /* size of the smallest group (0 when no rows) */
+    uint64_t smallest_line;   /* CSV line of the first row of a smallest group */
+    size_t rows_below_k;      /* rows in groups of fewer than k rows */
+    size_t groups_below_k;
+} kn_kanon;
+
+/* Groups of rows with equal quasi-identifier tuples, for k-anonymity
+ * (Sweeney, 2002). */
+kn_groups *kn_groups_new(kn_arena *a);
+
+/* Adds one row whose quasi-identifier tuple has hash tuple_hash (from
+ * kn_row_hash_*), first seen on CSV line `line`. */
+void kn_groups_add(kn_groups *g, uint64_t tuple_hash, uint64_t line);
+
+/* k-anonymity (Sweeney, 2002): smallest equivalence-class size and the rows
+ * and classes smaller than k. */
+void kn_groups_kanon(const kn_groups *g, size_t k, kn_kanon *out);
+
+/* ---- rows shared across a split ----------------------------------------- */
+
+typedef struct kn_overlap kn_overlap;
+
+typedef struct kn_overlap_result {
+    size_t train_rows, test_rows;
+    size_t shared_keys;        /* distinct keys present on both sides */
+    size_t test_rows_shared;   /* test rows whose key also occurs in training */
+    size_t train_rows_shared;  /* training rows whose key also occurs in test */
+    uint64_t first_test_line;  /* CSV line of the first test row with a shared key, 0 if none */
+} kn_overlap_result;
+
+/* Keys (row hashes, or hashes of an entity value) seen on the training and
+ * on the test side of a split: identical feature rows across the split,
+ * or one entity on both sides. */
+kn_overlap *kn_overlap_new(kn_arena *a);
+void kn_overlap_add(kn_overlap *o, uint64_t key, bool test_side, uint64_t line);
+void kn_overlap_result_get(const kn_overlap *o, kn_overlap_result *out);
+
+/* ---- hashing ------------------------------------------------------------- */
+
+/* 64-bit hash of bytes: FNV-1a over the bytes, then the splitmix64
+ * finaliser so every output bit depends on every input bit. */
+uint64_t kn_hash_bytes(const void *p, size_t len, uint64_t seed);
+
+/* Incremental hash of a row of fields: each field's length and bytes go
+ * in, so ("ab", "c") and ("a", "bc") differ. */
+typedef struct kn_row_hash {
+    uint64_t h;
+} kn_row_hash;
+void kn_row_hash_init(kn_row_hash *rh);
+void kn_row_hash_field(kn_row_hash *rh, const char *p, size_t len);
+uint64_t kn_row_hash_final(const kn_row_hash *rh);
+
+/* ---- reservoir sampling --------------------------------------------------- */
+
+/* xoshiro256** (Blackman and Vigna, 2018), seeded through splitmix64. */
+typedef struct kn_rng {
+    uint64_t s[4];
+} kn_rng;
+void kn_rng_seed(kn_rng *r, uint64_t seed);
+uint64_t kn_rng_next(kn_rng *r);
+/* Uniform in [0, n) without modulo bias (draws below 2^64 mod n are
+ * rejected, as OpenBSD's arc4random_uniform does); n must be > 0. */
+uint64_t kn_rng_below(kn_rng *r, uint64_t n);
+
+/* Reservoir sampling, Algorithm R (Vitter, 1985): offers a stream one item
+ * at a time and keeps a uniform sample of at most cap items. */
+typedef struct kn_reservoir {
+    size_t cap;
+    uint64_t seen;
+    kn_rng rng;
+} kn_reservoir;
+
+#define KN_RESERVOIR_SKIP SIZE_MAX
+
+void kn_reservoir_init(kn_reservoir *rs, size_t cap, uint64_t seed);
+/* For the next item of the stream: the slot in [0, cap) where the caller
+ * stores it (overwriting what was there), or KN_RESERVOIR_SKIP. */
+size_t kn_reservoir_offer(kn_reservoir *rs);
+
+#endif

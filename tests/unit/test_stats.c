@@ -1,0 +1,499 @@
+/* test_stats.c - unit tests of src/data/stats.c: Mann-Whitney AUC,
+ * uncertainty coefficient, k-anonymity groups, split overlap, row hashes,
+ * the seeded generator and reservoir sampling. */
+#include <setjmp.h>
+#include <stdarg.h>
+#include <stddef.h>
+#include <stdint.h>
+#include <math.h>
+#include <stdio.h>
+#include <string.h>
+
+#include <cmocka.h>
+
+#include "../../src/data/stats.h"
+
+static int setup(void **state)
+{
+    kn_arena *a = kn_arena_new();
+    if (!a) {
+        return -1;
+    }
+    *state = a;
+    return 0;
+}
+
+static int teardown(void **state)
+{
+    kn_arena_free(*state);
+    return 0;
+}
+
+#define N_OF(arr) (sizeof(arr) / sizeof *(arr))
+#define assert_close(a, b) assert_true(fabs((a) - (b)) < 1e-12)
+
+/* ---- AUC ---- */
+
+static void test_auc_perfect_and_reversed(void **state)
+{
+    const double s[] = {0.1, 0.2, 0.3, 0.8, 0.9};
+    const bool y[] = {false, false, false, true, true};
+    const bool rev[] = {true, true, true, false, false};
+    kn_auc r;
+    assert_true(kn_stats_auc(*state, s, y, N_OF(s), &r));
+    assert_close(r.auc, 1.0);
+    assert_int_equal(r.n_pos, 2);
+    assert_int_equal(r.n_neg, 3);
+    assert_true(kn_stats_auc(*state, s, rev, N_OF(s), &r));
+    assert_close(r.auc, 0.0);
+    assert_close(r.separation, 1.0);
+}
+
+static void test_auc_ties_average_ranks(void **state)
+{
+    /* positives {2, 3}, negatives {1, 2}: 1 + 0.5 + 1 + 1 of 4 pairs. */
+    const double s[] = {1, 2, 2, 3};
+    const bool y[] = {false, false, true, true};
+    kn_auc r;
+    assert_true(kn_stats_auc(*state, s, y, N_OF(s), &r));
+    assert_close(r.auc, 0.875);
+    assert_close(r.separation, 0.875);
+}
+
+static void test_auc_all_equal_scores(void **state)
+{
+    const double s[] = {4, 4, 4, 4, 4, 4};
+    const bool y[] = {true, false, false, true, false, false};
+    kn_auc r;
+    assert_true(kn_stats_auc(*state, s, y, N_OF(s), &r));
+    assert_close(r.auc, 0.5);
+    assert_close(r.separation, 0.5);
+}
+
+static void test_auc_single_class(void **state)
+{
+    const double s[] = {1, 2, 3};
+    const bool y[] = {true, true, true};
+    kn_auc r;
+    assert_false(kn_stats_auc(*state, s, y, N_OF(s), &r));
+    assert_int_equal(r.n_pos, 3);
+    assert_int_equal(r.n_neg, 0);
+    assert_close(r.auc, 0.5);
+}
+
+static void test_auc_empty(void **state)
+{
+    kn_auc r;
+    assert_false(kn_stats_auc(*state, NULL, NULL, 0, &r));
+    assert_int_equal(r.n_pos + r.n_neg, 0);
+}
+
+static void test_auc_nan_left_out(void **state)
+{
+    const double s[] = {NAN, 1, 2, NAN};
+    const bool y[] = {true, false, true, false};
+    kn_auc r;
+    assert_true(kn_stats_auc(*state, s, y, N_OF(s), &r));
+    assert_close(r.auc, 1.0);
+    assert_int_equal(r.n_pos, 1);
+    assert_int_equal(r.n_neg, 1);
+}
+
+static void test_auc_signed_zero_and_infinities(void **state)
+{
+    const double s[] = {-0.0, 0.0, -INFINITY, INFINITY, -1e300, 1e-300};
+    const bool y[] = {true, false, false, true, false, true};
+    kn_auc r;
+    assert_true(kn_stats_auc(*state, s, y, N_OF(s), &r));
+    /* positives {-0, inf, 1e-300}, negatives {0, -inf, -1e300}:
+     * -0 beats 2 and ties 0; inf and 1e-300 beat all 3: (2.5 + 3 + 3) / 9 */
+    assert_close(r.auc, 8.5 / 9.0);
+}
+
+/* Against the definition, pair by pair, on seeded data spread over many
+ * magnitudes so every radix pass is used. */
+static void test_auc_matches_pairwise_definition(void **state)
+{
+    kn_rng g;
+    kn_rng_seed(&g, 99);
+    enum { N = 700 };
+    static double s[N];
+    static bool y[N];
+    for (size_t i = 0; i < N; i++) {
+        uint64_t r = kn_rng_next(&g);
+        double mag = ldexp(1.0, (int)(r % 200) - 100);
+        s[i] = (r & 1024) ? -mag * (double)(r % 7) : mag * (double)(r % 5);
+        y[i] = ((r >> 20) % 3) == 0;
+    }
+    double wins = 0;
+    size_t np = 0, nn = 0;
+    for (size_t i = 0; i < N; i++) {
+        if (y[i]) {
+            np++;
+        } else {
+            nn++;
+        }
+        for (size_t j = 0; j < N; j++) {
+            if (y[i] && !y[j]) {
+                wins += s[i] > s[j] ? 1.0 : s[i] == s[j] ? 0.5 : 0.0;
+            }
+        }
+    }
+    kn_auc r;
+    assert_true(kn_stats_auc(*state, s, y, N, &r));
+    assert_close(r.auc, wins / ((double)np * (double)nn));
+}
+
+/* ---- uncertainty coefficient ---- */
+
+static void add_all(kn_contingency *t, const char *const *x, const char *const *y, size_t n)
+{
+    for (size_t i = 0; i < n; i++) {
+        assert_true(kn_contingency_add(t, x[i], strlen(x[i]), y[i], strlen(y[i])));
+    }
+}
+
+static void test_u_feature_equals_target(void **state)
+{
+    const char *x[] = {"north", "south", "north", "east", "south"};
+    kn_contingency *t = kn_contingency_new(*state, 0);
+    add_all(t, x, x, N_OF(x));
+    kn_uncertainty u;
+    assert_true(kn_contingency_uncertainty(t, &u));
+    assert_close(u.u, 1.0);
+    assert_close(u.mi, u.h_y);
+    assert_int_equal(u.x_levels, 3);
+    assert_int_equal(u.y_levels, 3);
+}
+
+static void test_u_constant_feature(void **state)
+{
+    const char *x[] = {"k", "k", "k", "k"};
+    const char *y[] = {"late", "on time", "late", "on time"};
+    kn_contingency *t = kn_contingency_new(*state, 0);
+    add_all(t, x, y, N_OF(x));
+    kn_uncertainty u;
+    assert_true(kn_contingency_uncertainty(t, &u));
+    assert_close(u.u, 0.0);
+    assert_close(u.h_y, log(2.0));
+}
+
+static void test_u_single_class_target(void **state)
+{
+    const char *x[] = {"a", "b", "c"};
+    const char *y[] = {"yes", "yes", "yes"};
+    kn_contingency *t = kn_contingency_new(*state, 0);
+    add_all(t, x, y, N_OF(x));
+    kn_uncertainty u;
+    assert_true(kn_contingency_uncertainty(t, &u));
+    assert_close(u.h_y, 0.0);
+    assert_close(u.u, 0.0);
+}
+
+static void test_u_hand_computed(void **state)
+{
+    /* x: a a b b; y: 0 1 0 0.  H(Y) = -(3/4 ln 3/4 + 1/4 ln 1/4);
+     * H(Y|X) = 1/2 ln 2 (x = a splits evenly, x = b is pure). */
+    const char *x[] = {"a", "a", "b", "b"};
+    const char *y[] = {"0", "1", "0", "0"};
+    kn_contingency *t = kn_contingency_new(*state, 0);
+    add_all(t, x, y, N_OF(x));
+    kn_uncertainty u;
+    assert_true(kn_contingency_uncertainty(t, &u));
+    double h = -(0.75 * log(0.75) + 0.25 * log(0.25));
+    double mi = h - 0.5 * log(2.0);
+    assert_close(u.h_y, h);
+    assert_close(u.mi, mi);
+    assert_close(u.u, mi / h);
+    assert_int_equal(u.n, 4);
+}
+
+static void test_u_strings_compared_exactly(void **state)
+{
+    /* "a" and "a\0b" differ only after a NUL; "" is a category of its own. */
+    kn_contingency *t = kn_contingency_new(*state, 0);
+    assert_true(kn_contingency_add(t, "a", 1, "0", 1));
+    assert_true(kn_contingency_add(t, "a\0b", 3, "1", 1));
+    assert_true(kn_contingency_add(t, "", 0, "1", 1));
+    kn_uncertainty u;
+    assert_true(kn_contingency_uncertainty(t, &u));
+    assert_int_equal(u.x_levels, 3);
+    assert_close(u.u, 1.0);
+}
+
+static void test_u_high_cardinality(void **state)
+{
+    kn_contingency *t = kn_contingency_new(*state, 3);
+    assert_true(kn_contingency_add(t, "1", 1, "y", 1));
+    assert_true(kn_contingency_add(t, "2", 1, "y", 1));
+    assert_true(kn_contingency_add(t, "3", 1, "n", 1));
+    assert_true(kn_contingency_add(t, "3", 1, "n", 1));
+    assert_false(kn_contingency_high_cardinality(t));
+    assert_false(kn_contingency_add(t, "4", 1, "y", 1));
+    assert_true(kn_contingency_high_cardinality(t));
+    assert_false(kn_contingency_add(t, "1", 1, "y", 1));
+    kn_uncertainty u;
+    assert_false(kn_contingency_uncertainty(t, &u));
+    assert_true(u.high_cardinality);
+}
+
+static void test_u_many_levels_grow(void **state)
+{
+    kn_contingency *t = kn_contingency_new(*state, 0);
+    char buf[32];
+    for (int i = 0; i < 5000; i++) {
+        int n = snprintf(buf, sizeof buf, "parcel-%d", i % 2500);
+        assert_true(kn_contingency_add(t, buf, (size_t)n, (i % 2500) % 2 ? "late" : "early", 4 + (i % 2500) % 2));
+    }
+    kn_uncertainty u;
+    assert_true(kn_contingency_uncertainty(t, &u));
+    assert_int_equal(u.x_levels, 2500);
+    assert_int_equal(u.y_levels, 2);
+    assert_close(u.u, 1.0);
+}
+
+static void test_u_empty(void **state)
+{
+    kn_contingency *t = kn_contingency_new(*state, 0);
+    kn_uncertainty u;
+    assert_false(kn_contingency_uncertainty(t, &u));
+    assert_false(u.high_cardinality);
+}
+
+/* ---- k-anonymity ---- */
+
+static uint64_t tuple(const char *a, const char *b)
+{
+    kn_row_hash h;
+    kn_row_hash_init(&h);
+    kn_row_hash_field(&h, a, strlen(a));
+    kn_row_hash_field(&h, b, strlen(b));
+    return kn_row_hash_final(&h);
+}
+
+static void test_kanon_groups(void **state)
+{
+    kn_groups *g = kn_groups_new(*state);
+    kn_groups_add(g, tuple("1984", "N1"), 2);
+    kn_groups_add(g, tuple("1984", "N1"), 3);
+    kn_groups_add(g, tuple("1984", "N1"), 4);
+    kn_groups_add(g, tuple("1990", "N1"), 5);
+    kn_groups_add(g, tuple("1984", "N2"), 6);
+    kn_groups_add(g, tuple("1984", "N2"), 7);
+    kn_kanon r;
+    kn_groups_kanon(g, 3, &r);
+    assert_int_equal(r.rows, 6);
+    assert_int_equal(r.groups, 3);
+    assert_int_equal(r.smallest, 1);
+    assert_int_equal(r.smallest_line, 5);
+    assert_int_equal(r.groups_below_k, 2);
+    assert_int_equal(r.rows_below_k, 3);
+    kn_groups_kanon(g, 1, &r);
+    assert_int_equal(r.rows_below_k, 0);
+}
+
+static void test_kanon_empty(void **state)
+{
+    kn_groups *g = kn_groups_new(*state);
+    kn_kanon r;
+    kn_groups_kanon(g, 5, &r);
+    assert_int_equal(r.rows, 0);
+    assert_int_equal(r.smallest, 0);
+    assert_int_equal(r.groups_below_k, 0);
+}
+
+static void test_kanon_many_groups(void **state)
+{
+    kn_groups *g = kn_groups_new(*state);
+    for (uint64_t i = 0; i < 20000; i++) {
+        kn_groups_add(g, kn_hash_bytes(&(uint64_t){i % 4000}, sizeof i, 1), i + 2);
+    }
+    kn_kanon r;
+    kn_groups_kanon(g, 6, &r);
+    assert_int_equal(r.groups, 4000);
+    assert_int_equal(r.smallest, 5);
+    assert_int_equal(r.rows_below_k, 20000);
+    assert_int_equal(r.smallest_line, 2);
+}
+
+/* ---- split overlap ---- */
+
+static void test_overlap(void **state)
+{
+    kn_overlap *o = kn_overlap_new(*state);
+    kn_overlap_add(o, 11, false, 2);
+    kn_overlap_add(o, 22, false, 3);
+    kn_overlap_add(o, 22, false, 4);
+    kn_overlap_add(o, 33, true, 5);
+    kn_overlap_add(o, 22, true, 9);
+    kn_overlap_add(o, 22, true, 7);
+    kn_overlap_result r;
+    kn_overlap_result_get(o, &r);
+    assert_int_equal(r.train_rows, 3);
+    assert_int_equal(r.test_rows, 3);
+    assert_int_equal(r.shared_keys, 1);
+    assert_int_equal(r.train_rows_shared, 2);
+    assert_int_equal(r.test_rows_shared, 2);
+    assert_int_equal(r.first_test_line, 7);
+}
+
+static void test_overlap_none(void **state)
+{
+    kn_overlap *o = kn_overlap_new(*state);
+    kn_overlap_add(o, 1, false, 2);
+    kn_overlap_add(o, 2, true, 3);
+    kn_overlap_result r;
+    kn_overlap_result_get(o, &r);
+    assert_int_equal(r.shared_keys, 0);
+    assert_int_equal(r.first_test_line, 0);
+}
+
+/* ---- hashing ---- */
+
+static void test_row_hash_field_boundaries(void **state)
+{
+    (void)state;
+    assert_true(tuple("ab", "c") != tuple("a", "bc"));
+    assert_true(tuple("ab", "c") == tuple("ab", "c"));
+    assert_true(tuple("", "x") != tuple("x", ""));
+    kn_row_hash none, one_empty;
+    kn_row_hash_init(&none);
+    kn_row_hash_init(&one_empty);
+    kn_row_hash_field(&one_empty, "", 0);
+    assert_true(kn_row_hash_final(&none) != kn_row_hash_final(&one_empty));
+}
+
+static void test_hash_bytes_seed_and_content(void **state)
+{
+    (void)state;
+    assert_true(kn_hash_bytes("bakery", 6, 0) == kn_hash_bytes("bakery", 6, 0));
+    assert_true(kn_hash_bytes("bakery", 6, 0) != kn_hash_bytes("bakery", 6, 1));
+    assert_true(kn_hash_bytes("bakery", 6, 0) != kn_hash_bytes("bakerz", 6, 0));
+    assert_true(kn_hash_bytes("", 0, 0) != kn_hash_bytes("\0", 1, 0));
+}
+
+/* ---- generator and reservoir ---- */
+
+static void test_rng_reproducible(void **state)
+{
+    (void)state;
+    kn_rng a, b, c;
+    kn_rng_seed(&a, 42);
+    kn_rng_seed(&b, 42);
+    kn_rng_seed(&c, 43);
+    int same_c = 0;
+    for (int i = 0; i < 100; i++) {
+        uint64_t x = kn_rng_next(&a);
+        assert_true(x == kn_rng_next(&b));
+        same_c += x == kn_rng_next(&c);
+    }
+    assert_true(same_c < 2);
+}
+
+static void test_rng_below_range_and_spread(void **state)
+{
+    (void)state;
+    kn_rng g;
+    kn_rng_seed(&g, 7);
+    size_t hist[6] = {0};
+    for (int i = 0; i < 60000; i++) {
+        uint64_t v = kn_rng_below(&g, 6);
+        assert_true(v < 6);
+        hist[v]++;
+    }
+    for (int k = 0; k < 6; k++) {
+        /* expected 10000, sd about 91: 5 sd either way */
+        assert_true(hist[k] > 9540 && hist[k] < 10460);
+    }
+    assert_int_equal(kn_rng_below(&g, 1), 0);
+}
+
+static void test_reservoir_keeps_first_cap_items(void **state)
+{
+    (void)state;
+    kn_reservoir rs;
+    kn_reservoir_init(&rs, 4, 1);
+    for (size_t i = 0; i < 4; i++) {
+        assert_int_equal(kn_reservoir_offer(&rs), i);
+    }
+    for (int i = 0; i < 100; i++) {
+        size_t s = kn_reservoir_offer(&rs);
+        assert_true(s == KN_RESERVOIR_SKIP || s < 4);
+    }
+    kn_reservoir_init(&rs, 0, 1);
+    assert_true(kn_reservoir_offer(&rs) == KN_RESERVOIR_SKIP);
+}
+
+static void test_reservoir_reproducible(void **state)
+{
+    (void)state;
+    kn_reservoir a, b;
+    kn_reservoir_init(&a, 10, 2024);
+    kn_reservoir_init(&b, 10, 2024);
+    for (int i = 0; i < 1000; i++) {
+        assert_int_equal(kn_reservoir_offer(&a), kn_reservoir_offer(&b));
+    }
+}
+
+/* Algorithm R keeps each of N items with probability cap / N. */
+static void test_reservoir_uniform(void **state)
+{
+    (void)state;
+    enum { N = 20, CAP = 5, TRIALS = 20000 };
+    size_t kept[N] = {0};
+    for (int t = 0; t < TRIALS; t++) {
+        kn_reservoir rs;
+        kn_reservoir_init(&rs, CAP, (uint64_t)t);
+        int slot_item[CAP];
+        for (int i = 0; i < N; i++) {
+            size_t s = kn_reservoir_offer(&rs);
+            if (s != KN_RESERVOIR_SKIP) {
+                slot_item[s] = i;
+            }
+        }
+        for (int s = 0; s < CAP; s++) {
+            kept[slot_item[s]]++;
+        }
+    }
+    for (int i = 0; i < N; i++) {
+        /* expected 5000 (p = 1/4), sd about 61: 5 sd either way */
+        assert_true(kept[i] > 4690 && kept[i] < 5310);
+    }
+}
+
+int main(void)
+{
+#define T(f) cmocka_unit_test_setup_teardown(f, setup, teardown)
+    const struct CMUnitTest tests[] = {
+        T(test_auc_perfect_and_reversed),
+        T(test_auc_ties_average_ranks),
+        T(test_auc_all_equal_scores),
+        T(test_auc_single_class),
+        T(test_auc_empty),
+        T(test_auc_nan_left_out),
+        T(test_auc_signed_zero_and_infinities),
+        T(test_auc_matches_pairwise_definition),
+        T(test_u_feature_equals_target),
+        T(test_u_constant_feature),
+        T(test_u_single_class_target),
+        T(test_u_hand_computed),
+        T(test_u_strings_compared_exactly),
+        T(test_u_high_cardinality),
+        T(test_u_many_levels_grow),
+        T(test_u_empty),
+        T(test_kanon_groups),
+        T(test_kanon_empty),
+        T(test_kanon_many_groups),
+        T(test_overlap),
+        T(test_overlap_none),
+        T(test_row_hash_field_boundaries),
+        T(test_hash_bytes_seed_and_content),
+        T(test_rng_reproducible),
+        T(test_rng_below_range_and_spread),
+        T(test_reservoir_keeps_first_cap_items),
+        T(test_reservoir_reproducible),
+        T(test_reservoir_uniform),
+    };
+#undef T
+    return cmocka_run_group_tests(tests, NULL, NULL);
+}
