@@ -1377,3 +1377,50 @@ const kn_pos *kn_column_pos(const kn_column *c, const kn_node *node)
 {
     return node ? &node->pos : &c->key->pos;
 }
+
+/* The index enums above must follow the tables of shape.c. */
+bool kn_shape_selfcheck(void)
+{
+    static const struct {
+        const kn_shape *shape;
+        int index;
+        const char *name;
+    } t[] = {
+        {&kn_shape_top, T_KNOWABLE, "knowable"}, {&kn_shape_top, T_DATASET, "dataset"},
+        {&kn_shape_top, T_DESCRIPTION, "description"}, {&kn_shape_top, T_INCLUDE, "include"},
+        {&kn_shape_top, T_PREDICTION, "prediction"}, {&kn_shape_top, T_EVENTS, "events"},
+        {&kn_shape_top, T_SOURCES, "sources"}, {&kn_shape_top, T_COLUMNS, "columns"},
+        {&kn_shape_top, T_PIPELINE, "pipeline"}, {&kn_shape_top, T_SPLIT, "split"},
+        {&kn_shape_included, I_KNOWABLE, "knowable"}, {&kn_shape_included, I_DESCRIPTION, "description"},
+        {&kn_shape_included, I_INCLUDE, "include"}, {&kn_shape_included, I_EVENTS, "events"},
+        {&kn_shape_included, I_SOURCES, "sources"},
+    };
+    for (size_t i = 0; i < sizeof t / sizeof *t; i++) {
+        if (strcmp(t[i].shape->keys[t[i].index].name, t[i].name) != 0) {
+            return false;
+        }
+    }
+    const kn_shape *col = kn_shape_top.keys[T_COLUMNS].sub;
+    static const char *const cols[] = {"role", "type", "known", "delay", "source", "join", "derived_from",
+                                       "window", "proxy_of", "format", "anonymized", "quasi_identifier",
+                                       "description", "waive"};
+    for (size_t i = 0; i < sizeof cols / sizeof *cols; i++) {
+        if (strcmp(col->keys[i].name, cols[i]) != 0) {
+            return false;
+        }
+    }
+    for (size_t i = 0; i < KN_SF_COUNT; i++) {
+        if (strcmp(kn_shape_source.keys[i].name, kn_source_field_names[i]) != 0) {
+            return false;
+        }
+    }
+    const kn_shape *pred = kn_shape_top.keys[T_PREDICTION].sub, *split = kn_shape_top.keys[T_SPLIT].sub;
+    const kn_shape *step = kn_shape_top.keys[T_PIPELINE].sub, *ev = kn_shape_top.keys[T_EVENTS].sub;
+    const kn_shape *join = col->keys[C_JOIN].sub, *win = col->keys[C_WINDOW].sub;
+    const kn_shape *anon = col->keys[C_ANON].sub, *waive = col->keys[C_WAIVE].sub;
+    return strcmp(pred->keys[P_LABEL_KNOWN].name, "label_known") == 0 &&
+           strcmp(split->keys[X_FOLDS].name, "folds") == 0 && strcmp(split->keys[X_GAP].name, "gap") == 0 &&
+           strcmp(step->keys[S_COLUMNS].name, "columns") == 0 && strcmp(ev->keys[E_BEFORE].name, "before") == 0 &&
+           strcmp(join->keys[J_AS_OF].name, "as_of") == 0 && strcmp(win->keys[W_TO].name, "to") == 0 &&
+           strcmp(anon->keys[A_SALTED].name, "salted") == 0 && strcmp(waive->keys[V_EXPIRES].name, "expires") == 0;
+}

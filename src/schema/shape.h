@@ -53,6 +53,9 @@ struct kn_shape {
 extern const kn_shape kn_shape_top;
 extern const kn_shape kn_shape_included;
 
+/* True when the loader's key indices follow these tables (a unit test). */
+bool kn_shape_selfcheck(void);
+
 /* Index of key in shape, or -1. */
 int kn_shape_find(const kn_shape *s, const char *key);
 
