@@ -19,7 +19,7 @@ static uint64_t mix64(uint64_t z)
 }
 
 /* FNV-1a (Fowler, Noll, Vo), 64-bit, then mix64. */
-uint64_t kn_hash_bytes(const void *p, size_t len, uint64_t seed)
+uint64_t kn_stats_hash(const void *p, size_t len, uint64_t seed)
 {
     const unsigned char *s = p;
     uint64_t h = UINT64_C(14695981039346656037) ^ mix64(seed);
@@ -38,7 +38,7 @@ void kn_row_hash_init(kn_row_hash *rh)
 
 void kn_row_hash_field(kn_row_hash *rh, const char *p, size_t len)
 {
-    rh->h = kn_hash_bytes(p, len, rh->h ^ ((uint64_t)len * UINT64_C(0x9E3779B97F4A7C15)));
+    rh->h = kn_stats_hash(p, len, rh->h ^ ((uint64_t)len * UINT64_C(0x9E3779B97F4A7C15)));
 }
 
 uint64_t kn_row_hash_final(const kn_row_hash *rh)
@@ -302,7 +302,7 @@ static void strtab_reindex(kn_arena *a, strtab *t)
 /* The id of s, adding it when new; SIZE_MAX when adding would pass a cap. */
 static size_t strtab_id(kn_contingency *c, strtab *t, const char *s, size_t len)
 {
-    uint64_t h = kn_hash_bytes(s, len, 0);
+    uint64_t h = kn_stats_hash(s, len, 0);
     if (t->index_cap) {
         size_t j = (size_t)h & (t->index_cap - 1);
         while (t->index[j]) {

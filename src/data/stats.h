@@ -11,7 +11,7 @@
  * back at once when a table doubles or a sort is done, so peak memory is
  * about twice the live table.  Allocation failure longjmps (arena.h).
  *
- * Hashing: keys are hashed with kn_hash_bytes (64-bit, below).  Row and
+ * Hashing: keys are hashed with kn_stats_hash (64-bit, below).  Row and
  * tuple identities (kn_groups, kn_overlap) are the 64-bit hashes alone:
  * two different tuples whose hashes collide count as one, with a chance
  * of about n^2 / 2^65 for n distinct tuples (3e-8 for a million).
@@ -125,7 +125,7 @@ void kn_overlap_result_get(const kn_overlap *o, kn_overlap_result *out);
 
 /* 64-bit hash of bytes: FNV-1a over the bytes, then the splitmix64
  * finaliser so every output bit depends on every input bit. */
-uint64_t kn_hash_bytes(const void *p, size_t len, uint64_t seed);
+uint64_t kn_stats_hash(const void *p, size_t len, uint64_t seed);
 
 /* Incremental hash of a row of fields: each field's length and bytes go
  * in, so ("ab", "c") and ("a", "bc") differ. */
