@@ -1,0 +1,194 @@
+/* regex.c - PCRE2 patterns compiled once (JIT where available) and matched
+ * under match, depth and heap limits set through a match context on every
+ * match.  Hands its callers a tri-state answer: no match, match, or "gave
+ * up at a limit", so a hostile pattern costs bounded time and is reported
+ * rather than left to run. */
+#include "regex.h"
+
+#include <stdio.h>
+#include <string.h>
+
+#define PCRE2_CODE_UNIT_WIDTH 8
+#include <pcre2.h>
+
+struct kn_regex {
+    pcre2_code *code;
+    pcre2_match_data *md;
+    pcre2_match_context *mctx;
+    pcre2_jit_stack *jit_stack;
+    bool jit;
+    kn_regex_limits limits;
+    char problem[160];
+};
+
+/* The JIT stack grows from 32 KiB up to this size; a pattern that needs
+ * more reports PCRE2_ERROR_JIT_STACKLIMIT, which counts as a limit. */
+#define JIT_STACK_MAX (1024 * 1024)
+
+void kn_regex_limits_default(kn_regex_limits *l)
+{
+    l->match = 1000000;
+    l->depth = 10000;
+    l->heap_kib = 16 * 1024;
+}
+
+static void free_code(void *p)
+{
+    pcre2_code_free(p);
+}
+
+static void free_md(void *p)
+{
+    pcre2_match_data_free(p);
+}
+
+static void free_mctx(void *p)
+{
+    pcre2_match_context_free(p);
+}
+
+static void free_jit_stack(void *p)
+{
+    pcre2_jit_stack_free(p);
+}
+
+static void apply_limits(kn_regex *re)
+{
+    pcre2_set_match_limit(re->mctx, re->limits.match);
+    pcre2_set_depth_limit(re->mctx, re->limits.depth);
+    pcre2_set_heap_limit(re->mctx, re->limits.heap_kib);
+}
+
+/* Builds the match data and context for re->code; every resource is
+ * registered with the arena before it is acquired. */
+static kn_regex *finish(kn_arena *a, kn_regex *re)
+{
+    kn_defer *d = kn_arena_defer(a, free_md, NULL);
+    re->md = pcre2_match_data_create_from_pattern(re->code, NULL);
+    if (!re->md) {
+        kn_arena_oom(a);
+    }
+    d->ptr = re->md;
+
+    d = kn_arena_defer(a, free_mctx, NULL);
+    re->mctx = pcre2_match_context_create(NULL);
+    if (!re->mctx) {
+        kn_arena_oom(a);
+    }
+    d->ptr = re->mctx;
+
+    size_t jit_size = 0;
+    if (pcre2_pattern_info(re->code, PCRE2_INFO_JITSIZE, &jit_size) == 0 && jit_size > 0) {
+        re->jit = true;
+        d = kn_arena_defer(a, free_jit_stack, NULL);
+        re->jit_stack = pcre2_jit_stack_create(32 * 1024, JIT_STACK_MAX, NULL);
+        if (re->jit_stack) {
+            d->ptr = re->jit_stack;
+            pcre2_jit_stack_assign(re->mctx, NULL, re->jit_stack);
+        }
+        /* Without a stack of its own the JIT uses 32 KiB of the machine
+         * stack, which is still bounded: no need to fail. */
+    }
+    kn_regex_limits_default(&re->limits);
+    apply_limits(re);
+    return re;
+}
+
+kn_regex *kn_regex_compile(kn_arena *a, const char *pattern, size_t len, kn_regex_error *err)
+{
+    kn_regex *re = kn_alloc(a, sizeof *re);
+    int code = 0;
+    PCRE2_SIZE off = 0;
+    kn_defer *d = kn_arena_defer(a, free_code, NULL);
+    re->code = pcre2_compile((PCRE2_SPTR)pattern, len, PCRE2_UTF, &code, &off, NULL);
+    if (!re->code) {
+        if (code == PCRE2_ERROR_NOMEMORY) {
+            kn_arena_oom(a);
+        }
+        if (err) {
+            err->code = code;
+            err->offset = off;
+            if (pcre2_get_error_message(code, (PCRE2_UCHAR *)err->message, sizeof err->message) < 0) {
+                snprintf(err->message, sizeof err->message, "PCRE2 error %d", code);
+            }
+        }
+        return NULL;
+    }
+    d->ptr = re->code;
+    uint32_t have_jit = 0;
+    if (pcre2_config(PCRE2_CONFIG_JIT, &have_jit) >= 0 && have_jit) {
+        /* A pattern the JIT cannot take (rare) is still matched by the
+         * interpreter, under the same limits. */
+        (void)pcre2_jit_compile(re->code, PCRE2_JIT_COMPLETE);
+    }
+    return finish(a, re);
+}
+
+kn_regex *kn_regex_wrap(kn_arena *a, void *code)
+{
+    kn_regex *re = kn_alloc(a, sizeof *re);
+    re->code = code;
+    return finish(a, re);
+}
+
+void kn_regex_set_limits(kn_regex *re, const kn_regex_limits *l)
+{
+    re->limits = *l;
+    apply_limits(re);
+}
+
+kn_match kn_regex_match(kn_regex *re, const char *subject, size_t len, size_t span[2])
+{
+    re->problem[0] = '\0';
+    int rc = pcre2_match(re->code, (PCRE2_SPTR)subject, len, 0, 0, re->md, re->mctx);
+    if (rc >= 0) {
+        if (span) {
+            PCRE2_SIZE *ov = pcre2_get_ovector_pointer(re->md);
+            span[0] = ov[0];
+            span[1] = ov[1];
+        }
+        return KN_MATCH_FOUND;
+    }
+    switch (rc) {
+    case PCRE2_ERROR_NOMATCH:
+        return KN_MATCH_NONE;
+    case PCRE2_ERROR_MATCHLIMIT:
+        snprintf(re->problem, sizeof re->problem, "the match limit of %lu backtracking steps was reached",
+                 (unsigned long)re->limits.match);
+        return KN_MATCH_LIMIT;
+    case PCRE2_ERROR_DEPTHLIMIT:
+        snprintf(re->problem, sizeof re->problem, "the depth limit of %lu nested backtracking frames was reached",
+                 (unsigned long)re->limits.depth);
+        return KN_MATCH_LIMIT;
+    case PCRE2_ERROR_HEAPLIMIT:
+        snprintf(re->problem, sizeof re->problem, "the heap limit of %lu KiB was reached",
+                 (unsigned long)re->limits.heap_kib);
+        return KN_MATCH_LIMIT;
+    case PCRE2_ERROR_JIT_STACKLIMIT:
+        snprintf(re->problem, sizeof re->problem, "the JIT stack limit of %d KiB was reached", JIT_STACK_MAX / 1024);
+        return KN_MATCH_LIMIT;
+    default: {
+        PCRE2_UCHAR msg[120];
+        if (pcre2_get_error_message(rc, msg, sizeof msg) < 0) {
+            snprintf((char *)msg, sizeof msg, "PCRE2 error %d", rc);
+        }
+        snprintf(re->problem, sizeof re->problem, "matching failed: %s", (char *)msg);
+        return KN_MATCH_FAILED;
+    }
+    }
+}
+
+void *kn_regex_code(const kn_regex *re)
+{
+    return re->code;
+}
+
+bool kn_regex_jit(const kn_regex *re)
+{
+    return re->jit;
+}
+
+const char *kn_regex_problem(const kn_regex *re)
+{
+    return re->problem;
+}

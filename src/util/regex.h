@@ -1,0 +1,81 @@
+/* regex.h - PCRE2 patterns compiled once and matched under limits.
+ *
+ * Every pattern a schema or a rulebook brings (formats, suspicious-name
+ * patterns, the identifier pattern) may be hostile: a pattern such as
+ * '(a+)+$' backtracks exponentially.  So each pattern is compiled once
+ * (with JIT where the platform has it) and every match runs with a match
+ * context that caps the backtracking steps, the nesting depth and the heap
+ * it may use; a match that hits a cap says so (KN_MATCH_LIMIT) instead of
+ * running on, so the caller can report it.
+ *
+ * Ownership: a kn_regex and everything PCRE2 allocates for it belong to the
+ * arena given at compile (or wrap) time and are released by kn_arena_free.
+ * A kn_regex is not safe to use from two threads at once (it keeps its
+ * match data). */
+#ifndef KN_UTIL_REGEX_H
+#define KN_UTIL_REGEX_H
+
+#include <stdbool.h>
+#include <stddef.h>
+#include <stdint.h>
+
+#include "arena.h"
+
+typedef struct kn_regex kn_regex;
+
+/* Caps applied to every match (see pcre2_set_match_limit and friends).
+ * match: backtracking steps; depth: nested backtracking frames; heap: KiB. */
+typedef struct kn_regex_limits {
+    uint32_t match;
+    uint32_t depth;
+    uint32_t heap_kib;
+} kn_regex_limits;
+
+/* The defaults: 1,000,000 steps, depth 10,000, 16 MiB of heap; a value of
+ * a few kilobytes that needs more than that is refused within milliseconds. */
+void kn_regex_limits_default(kn_regex_limits *l);
+
+/* Why a pattern failed to compile: PCRE2's message and the byte offset in
+ * the pattern where it stopped. */
+typedef struct kn_regex_error {
+    int code;
+    size_t offset;
+    char message[256];
+} kn_regex_error;
+
+/* Compiles pattern (len bytes, UTF-8) with PCRE2_UTF, then JIT-compiles it
+ * when the library supports JIT.  Returns NULL and fills *err when PCRE2
+ * refuses the pattern; out of memory longjmps through the arena. */
+kn_regex *kn_regex_compile(kn_arena *a, const char *pattern, size_t len, kn_regex_error *err);
+
+/* Makes a matcher for a code compiled elsewhere (a pcre2_code_8 *, which
+ * stays owned by whoever compiled it and must outlive the matcher). */
+kn_regex *kn_regex_wrap(kn_arena *a, void *code);
+
+/* Replaces the limits of one matcher (tests use small ones). */
+void kn_regex_set_limits(kn_regex *re, const kn_regex_limits *l);
+
+typedef enum kn_match {
+    KN_MATCH_NONE,   /* the subject does not match */
+    KN_MATCH_FOUND,  /* it matches */
+    KN_MATCH_LIMIT,  /* a match, depth, heap or JIT stack limit was hit */
+    KN_MATCH_FAILED, /* any other PCRE2 error (e.g. invalid UTF-8) */
+} kn_match;
+
+/* Searches subject (len bytes) for the pattern.  When span is not NULL and
+ * the result is KN_MATCH_FOUND, span[0] and span[1] are the byte offsets of
+ * the start and end of the match. */
+kn_match kn_regex_match(kn_regex *re, const char *subject, size_t len, size_t span[2]);
+
+/* The PCRE2 code (pcre2_code_8 *), for pcre2_pattern_info. */
+void *kn_regex_code(const kn_regex *re);
+
+/* True when matches run the JIT-compiled code. */
+bool kn_regex_jit(const kn_regex *re);
+
+/* Words for the last KN_MATCH_LIMIT or KN_MATCH_FAILED result of re, e.g.
+ * "the match limit of 1000000 backtracking steps was reached" (a buffer
+ * inside re, valid until its next match; "" after a clean match). */
+const char *kn_regex_problem(const kn_regex *re);
+
+#endif
