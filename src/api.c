@@ -68,11 +68,43 @@ static void render(FILE *out, kn_sink *sink, const kn_options *o, size_t n_schem
         kn_render_text(out, sink, &ro);
         break;
     case KN_FORMAT_JSON:
+        kn_render_json(out, sink, &ro);
+        break;
     case KN_FORMAT_SARIF:
-        /* Rendered by render_json.c / render_sarif.c once they land. */
-        kn_render_text(out, sink, &ro);
+        kn_render_sarif(out, sink, &ro);
         break;
     }
+}
+
+/* --write-baseline: records the findings unless the check could not be
+ * done (a baseline of a half-read schema would hide its real findings).
+ * The baseline may replace the --baseline file, never another input. */
+static bool write_baseline(kn_arena *a, const kn_sink *sink, const kn_options *o, const char *const *schemas,
+                           size_t n, FILE *err)
+{
+    if (kn_sink_fatal(sink)) {
+        fputs("knowable: not writing the baseline: the check could not be done\n", err);
+        return false;
+    }
+    size_t n_inputs = 0;
+    const char **inputs = kn_alloc_array(a, n + o->n_rulebooks + 1, sizeof *inputs);
+    for (size_t i = 0; i < n; i++) {
+        inputs[n_inputs++] = schemas[i];
+    }
+    for (size_t i = 0; i < o->n_rulebooks; i++) {
+        inputs[n_inputs++] = o->rulebooks[i];
+    }
+    inputs[n_inputs++] = o->data;
+    if (!kn_baseline_write(sink, o->write_baseline, inputs, n_inputs, err)) {
+        return false;
+    }
+    if (!o->quiet) {
+        size_t total;
+        kn_sink_diags(sink, &total);
+        fprintf(err, "knowable: recorded %zu finding%s in the baseline\n", total - kn_sink_waived(sink),
+                total - kn_sink_waived(sink) == 1 ? "" : "s");
+    }
+    return true;
 }
 
 /* Runs every analysis on a schema that loaded without schema errors.  Each
@@ -131,6 +163,14 @@ kn_status kn_check(const kn_options *o, const char *const *schemas, size_t n, FI
     kn_sink_finish(sink);
     /* After finish: waivers and baselines act on the final list.
      * (waivers.c and baseline.c add their calls here.) */
+    if (o->baseline && !kn_baseline_apply(sink, o->baseline, err)) {
+        kn_arena_free(a);
+        return KN_EXIT_FAILED;
+    }
+    if (o->write_baseline && !write_baseline(a, sink, o, schemas, n, err)) {
+        kn_arena_free(a);
+        return KN_EXIT_FAILED;
+    }
     render(out, sink, o, n);
     if (kn_sink_fatal(sink)) {
         status = KN_EXIT_FAILED;

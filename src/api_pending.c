@@ -20,9 +20,3 @@ kn_status kn_init(const kn_options *o, const char *csv, FILE *out, FILE *err)
     (void)o, (void)csv, (void)out;
     return pending("init", err);
 }
-
-kn_status kn_json_schema(FILE *out, FILE *err)
-{
-    (void)out;
-    return pending("json-schema", err);
-}

@@ -18,6 +18,33 @@ typedef struct kn_render_opts {
  * Everything that comes from an input is escaped for the terminal. */
 void kn_render_text(FILE *out, const kn_sink *s, const kn_render_opts *o);
 
+/* {"version": 1, "diagnostics": [...], "summary": {...}} (SPEC §7), keys in
+ * a fixed order, two-space indentation, every string escaped by
+ * kn_fput_json.  Baselined findings are left out; waived ones only with
+ * o->show_waived (then with "waived": true).  o->quiet does not shorten
+ * machine output. */
+void kn_render_json(FILE *out, const kn_sink *s, const kn_render_opts *o);
+
+/* One SARIF 2.1.0 log with one run: tool.driver lists every rule of the
+ * rule table, results carry the shown diagnostics (the same selection as
+ * kn_render_json; waived ones shown get a suppression). */
+void kn_render_sarif(FILE *out, const kn_sink *s, const kn_render_opts *o);
+
+/* Marks every diagnostic whose fingerprint the baseline file at path
+ * records as baselined (each recorded fingerprint matches as many findings
+ * as it was recorded for).  Waived diagnostics are left alone.  Returns
+ * false and writes why to err when the file cannot be read or is not a
+ * knowable baseline. */
+bool kn_baseline_apply(kn_sink *s, const char *path, FILE *err);
+
+/* Writes every diagnostic that is not waived (baselined or not) to path as a
+ * knowable baseline: JSON with each finding's fingerprint, and its rule,
+ * file, subject and message for people reading it.  The file is written
+ * through kn_output_open, so it replaces path atomically and refuses the
+ * n_inputs paths in inputs.  Returns false (and writes why) on failure. */
+bool kn_baseline_write(const kn_sink *s, const char *path, const char *const *inputs, size_t n_inputs,
+                       FILE *err);
+
 /* The summary line alone ("2 errors, 3 warnings, 1 note (1 waived) in 1 schema"). */
 void kn_render_summary(FILE *out, const kn_sink *s, const kn_render_opts *o);
 
