@@ -1,8 +1,16 @@
 /* rulebook.c - reads house rulebooks (SPEC §6) over the built-in default:
  * severities, required provenance fields, suspicious-name patterns, the
  * identifier pattern, thresholds and strict_moment.  Every pattern is
- * compiled once here (with JIT where available); errors point into the
- * rulebook file and make the run fail with exit status 2. */
+ * compiled once here (src/util/regex.c: JIT where available, limits on
+ * every match); errors point into the rulebook file and make the run fail
+ * with exit status 2.
+ *
+ * Layering: the built-in rules/default.yaml first, then each --rulebook
+ * file in order (or the discovered .knowable-rules.yaml); a file's
+ * `extends` are read before the file itself.  Scalars (severities,
+ * strict_moment, identifier_names, thresholds, each `require` list) are
+ * replaced by later files; `names` entries accumulate, so a team adds its
+ * own patterns to the default ones. */
 #include "rulebook.h"
 
 #include <errno.h>
@@ -11,9 +19,7 @@
 #include <string.h>
 #include <sys/stat.h>
 
-#define PCRE2_CODE_UNIT_WIDTH 8
-#include <pcre2.h>
-
+#include "../util/regex.h"
 #include "../util/text.h"
 
 extern const char kn_default_rulebook[];
@@ -49,6 +55,12 @@ typedef struct rb_ld {
     kn_arena *a;
     kn_sink *sink;
     bool failed;
+    /* The files being read, outermost first (real paths), to name an
+     * `extends` loop; chain_display holds the same files as printed. */
+    const char *chain[MAX_EXTENDS_DEPTH + 2];
+    const char *chain_display[MAX_EXTENDS_DEPTH + 2];
+    const kn_node *chain_from[MAX_EXTENDS_DEPTH + 2]; /* the extends item that named it */
+    int depth;
 } rb_ld;
 
 __attribute__((format(printf, 4, 5)))
@@ -60,7 +72,7 @@ static kn_diag *fail(rb_ld *l, kn_rule r, const kn_node *at, const char *fmt, ..
     va_end(ap);
     l->failed = true;
     kn_sink_mark_fatal(l->sink);
-    return kn_diag_push(l->sink, r, &at->pos, NULL, "%s", msg);
+    return kn_diag_push(l->sink, r, at ? &at->pos : NULL, NULL, "%s", msg);
 }
 
 static bool known_key(rb_ld *l, const kn_node *k, const char *where, const char *const *keys, size_t n)
@@ -85,34 +97,22 @@ static bool known_key(rb_ld *l, const kn_node *k, const char *where, const char 
     return false;
 }
 
-static void free_code(void *p)
+/* Compiles a rulebook pattern once; NULL after a bad-pattern error that
+ * points at the offending character. */
+static kn_regex *compile(rb_ld *l, const kn_node *v, const char *what)
 {
-    pcre2_code_free(p);
-}
-
-/* Compiles a rulebook or schema pattern; NULL after a bad-pattern error. */
-static void *compile(rb_ld *l, const kn_node *v, const char *what)
-{
-    int code;
-    PCRE2_SIZE off;
-    kn_defer *d = kn_arena_defer(l->a, free_code, NULL);
-    pcre2_code *re = pcre2_compile((PCRE2_SPTR)v->u.scalar.text, v->u.scalar.len, PCRE2_UTF, &code, &off, NULL);
+    kn_regex_error err;
+    kn_regex *re = kn_regex_compile(l->a, v->u.scalar.text, v->u.scalar.len, &err);
     if (!re) {
-        if (code == PCRE2_ERROR_NOMEMORY) {
-            kn_arena_oom(l->a);
-        }
-        PCRE2_UCHAR msg[256];
-        pcre2_get_error_message(code, msg, sizeof msg);
-        kn_pos p = kn_node_char_pos(v, off);
+        kn_pos p = kn_node_char_pos(v, err.offset);
         l->failed = true;
         kn_sink_mark_fatal(l->sink);
         kn_diag *dg = kn_diag_push(l->sink, KN_R_BAD_PATTERN, &p, NULL, "%s is not a valid PCRE2 pattern: %s", what,
-                                   (char *)msg);
-        kn_diag_note(l->sink, dg, &v->pos, "the pattern starts here; the error is at character %zu", (size_t)off + 1);
+                                   err.message);
+        kn_diag_note(l->sink, dg, &v->pos, "the pattern starts here; the error is at character %zu",
+                     err.offset + 1);
         return NULL;
     }
-    d->ptr = re;
-    pcre2_jit_compile(re, PCRE2_JIT_COMPLETE);
     return re;
 }
 
@@ -158,7 +158,14 @@ static void load_severity(rb_ld *l, const kn_node *v)
         kn_severity sev;
         const char *word = kn_node_str(s);
         if (!word || !parse_severity(word, &sev)) {
-            fail(l, KN_R_SCHEMA_SHAPE, s, "the severity of '%s' must be error, warning, note or off", id);
+            static const char *const words[] = {"error", "warning", "note", "off"};
+            const char *near = word ? kn_suggest(word, words, N(words)) : NULL;
+            if (near) {
+                fail(l, KN_R_SCHEMA_SHAPE, s, "the severity of '%s' must be error, warning, note or off; did you mean '%s'?",
+                     id, near);
+            } else {
+                fail(l, KN_R_SCHEMA_SHAPE, s, "the severity of '%s' must be error, warning, note or off", id);
+            }
             continue;
         }
         l->rb->severity[r] = sev;
@@ -243,8 +250,8 @@ static void load_names(rb_ld *l, const kn_node *v)
                 continue;
             }
             const char *key = k->u.scalar.text, *val = kn_node_str(x);
-            if (!val || kn_node_is_null(x)) {
-                fail(l, KN_R_SCHEMA_SHAPE, x, "'%s' of a names entry must be a string", key);
+            if (!val || kn_node_is_null(x) || !*val) {
+                fail(l, KN_R_SCHEMA_SHAPE, x, "'%s' of a names entry must be a non-empty string", key);
                 ok = false;
             } else if (strcmp(key, "pattern") == 0) {
                 pat = x;
@@ -321,13 +328,73 @@ static void load_thresholds(rb_ld *l, const kn_node *v)
 static char *dir_of(kn_arena *a, const char *path)
 {
     const char *slash = strrchr(path, '/');
+    if (slash == path) {
+        return kn_strdup(a, "/");
+    }
     return slash ? kn_strndup(a, path, (size_t)(slash - path)) : kn_strdup(a, ".");
 }
 
 static bool load_tree(rb_ld *l, const kn_node *root, const char *path, int depth);
 
+/* The number of diagnostics in the sink so far (before kn_sink_finish). */
+static size_t pushed(const kn_sink *sink)
+{
+    size_t n;
+    (void)kn_sink_diags(sink, &n);
+    return n;
+}
+
+/* Reads one rulebook file and everything it extends.  Anything the YAML
+ * reader reports about a rulebook (a duplicate key included) makes the
+ * rulebook unusable: the run stops with exit status 2. */
+static bool load_file(rb_ld *l, const char *path, const kn_node *from)
+{
+    char *real = realpath(path, NULL);
+    const char *id = path;
+    if (real) {
+        id = kn_strdup(l->a, real);
+        free(real);
+    }
+    for (int i = 0; i < l->depth; i++) {
+        if (strcmp(l->chain[i], id) != 0) {
+            continue;
+        }
+        kn_diag *d = fail(l, KN_R_INCLUDE_REFUSED, from,
+                          "'%s' is already being read: these rulebooks extend each other in a loop",
+                          kn_escape_term(l->a, path, strlen(path)));
+        for (int j = i + 1; j < l->depth; j++) {
+            kn_diag_note(l->sink, d, &l->chain_from[j]->pos, "'%s' extends '%s'",
+                         kn_escape_term(l->a, l->chain_display[j - 1], strlen(l->chain_display[j - 1])),
+                         kn_escape_term(l->a, l->chain_display[j], strlen(l->chain_display[j])));
+        }
+        return false;
+    }
+    if (l->depth > MAX_EXTENDS_DEPTH) {
+        fail(l, KN_R_INCLUDE_REFUSED, from, "rulebooks extend each other more than %d levels deep",
+             MAX_EXTENDS_DEPTH);
+        return false;
+    }
+    size_t before = pushed(l->sink);
+    kn_yaml_limits lim;
+    kn_yaml_limits_default(&lim);
+    kn_node *root = kn_yaml_load_file(l->a, l->sink, path, path, &lim);
+    if (!root || pushed(l->sink) != before) {
+        l->failed = true;
+        kn_sink_mark_fatal(l->sink);
+        return false;
+    }
+    l->chain[l->depth] = id;
+    l->chain_display[l->depth] = path;
+    l->chain_from[l->depth] = from;
+    l->depth++;
+    bool ok = load_tree(l, root, path, l->depth);
+    l->depth--;
+    return ok;
+}
+
 static void load_extends(rb_ld *l, const kn_node *v, const char *path, int depth)
 {
+    (void)depth;
     const kn_node *single[1] = {v};
     const kn_node *const *items = single;
     size_t n = 1;
@@ -337,7 +404,7 @@ static void load_extends(rb_ld *l, const kn_node *v, const char *path, int depth
     }
     for (size_t i = 0; i < n; i++) {
         const char *rel = kn_node_str(items[i]);
-        if (!rel || !*rel) {
+        if (!rel || !*rel || kn_node_is_null(items[i])) {
             fail(l, KN_R_SCHEMA_SHAPE, items[i], "'extends' takes relative paths of rulebook files");
             continue;
         }
@@ -346,21 +413,13 @@ static void load_extends(rb_ld *l, const kn_node *v, const char *path, int depth
                  kn_escape_term(l->a, rel, strlen(rel)));
             continue;
         }
-        if (depth >= MAX_EXTENDS_DEPTH) {
-            fail(l, KN_R_INCLUDE_REFUSED, items[i], "rulebooks extend each other more than %d levels deep (a loop?)",
-                 MAX_EXTENDS_DEPTH);
+        if (strcmp(path, ".") == 0) {
+            fail(l, KN_R_INCLUDE_REFUSED, items[i], "the built-in rulebook cannot extend files");
             continue;
         }
         char *dir = dir_of(l->a, path);
         char *full = strcmp(dir, ".") == 0 ? kn_strdup(l->a, rel) : kn_printf(l->a, "%s/%s", dir, rel);
-        kn_yaml_limits lim;
-        kn_yaml_limits_default(&lim);
-        kn_node *root = kn_yaml_load_file(l->a, l->sink, full, full, &lim);
-        if (!root) {
-            l->failed = true;
-            continue;
-        }
-        load_tree(l, root, full, depth + 1);
+        load_file(l, full, items[i]);
     }
 }
 
@@ -425,7 +484,7 @@ bool kn_rulebook_load_default(kn_rulebook *rb, kn_arena *a, kn_sink *sink)
     if (!root) {
         return false;
     }
-    rb_ld l = {rb, a, sink, false};
+    rb_ld l = {rb, a, sink, false, {0}, {0}, {0}, 0};
     bool ok = load_tree(&l, root, ".", 0);
     rb->origin = "(built-in)";
     return ok;
@@ -433,14 +492,8 @@ bool kn_rulebook_load_default(kn_rulebook *rb, kn_arena *a, kn_sink *sink)
 
 bool kn_rulebook_load(kn_rulebook *rb, kn_arena *a, kn_sink *sink, const char *path)
 {
-    kn_yaml_limits lim;
-    kn_yaml_limits_default(&lim);
-    kn_node *root = kn_yaml_load_file(a, sink, path, path, &lim);
-    if (!root) {
-        return false;
-    }
-    rb_ld l = {rb, a, sink, false};
-    bool ok = load_tree(&l, root, path, 0);
+    rb_ld l = {rb, a, sink, false, {0}, {0}, {0}, 0};
+    bool ok = load_file(&l, path, NULL) && !l.failed;
     rb->origin = path;
     return ok;
 }
@@ -451,6 +504,10 @@ static bool exists(const char *path, bool dir)
     return stat(path, &st) == 0 && (dir ? S_ISDIR(st.st_mode) : S_ISREG(st.st_mode));
 }
 
+/* The search walks up the real folders, but the path it returns is
+ * spelt from the schema's path as given ("rules/x.knowable.yaml" ->
+ * "rules/.knowable-rules.yaml", then "rules/../.knowable-rules.yaml"), so
+ * that diagnostics in the rulebook print paths the user recognises. */
 char *kn_rulebook_discover(kn_arena *a, const char *schema_path)
 {
     char *real = realpath(schema_path, NULL);
@@ -463,13 +520,14 @@ char *kn_rulebook_discover(kn_arena *a, const char *schema_path)
     if (slash) {
         *slash = '\0';
     }
+    const char *shown = dir_of(a, schema_path);
     for (int guard = 0; guard < 256; guard++) {
-        char *cand = kn_printf(a, "%s/.knowable-rules.yaml", *dir ? dir : "");
+        char *cand = kn_printf(a, "%s/.knowable-rules.yaml", dir);
         if (exists(cand, false)) {
-            return cand;
+            return strcmp(shown, ".") == 0 ? kn_strdup(a, ".knowable-rules.yaml")
+                                           : kn_printf(a, "%s/.knowable-rules.yaml", shown);
         }
-        if (exists(kn_printf(a, "%s/.git", *dir ? dir : ""), true) ||
-            exists(kn_printf(a, "%s/.git", *dir ? dir : ""), false)) {
+        if (exists(kn_printf(a, "%s/.git", dir), true) || exists(kn_printf(a, "%s/.git", dir), false)) {
             return NULL;
         }
         slash = strrchr(dir, '/');
@@ -477,6 +535,7 @@ char *kn_rulebook_discover(kn_arena *a, const char *schema_path)
             return NULL;
         }
         *slash = '\0';
+        shown = strcmp(shown, ".") == 0 ? ".." : kn_printf(a, "%s/..", shown);
     }
     return NULL;
 }

@@ -17,7 +17,7 @@ typedef enum kn_applies { KN_APPLIES_NAME, KN_APPLIES_DESCRIPTION, KN_APPLIES_BO
 
 typedef struct kn_name_rule {
     const char *pattern;
-    void *code; /* pcre2_code_8 *, compiled once */
+    void *code; /* kn_regex * (src/util/regex.h), compiled once */
     kn_applies applies_to;
     const char *why;
     kn_pos pos; /* of the pattern in its rulebook file */
@@ -40,7 +40,7 @@ typedef struct kn_rulebook {
     kn_name_rule *names;
     size_t n_names;
     const char *identifier_names;
-    void *identifier_code; /* pcre2_code_8 * */
+    void *identifier_code; /* kn_regex *, or NULL when identifier_names is unset */
     kn_thresholds thresholds;
     const char *origin; /* display path of the last file read, or "(built-in)" */
 } kn_rulebook;
