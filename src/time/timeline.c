@@ -330,7 +330,10 @@ static size_t latest_step(const kn_contradiction *c)
         const kn_constraint *con = c->steps[i].con;
         const kn_event *d = decl_event(con);
         size_t ev = d->index;
-        size_t k = (size_t)(con - d->cons);
+        size_t k = 0;
+        while (k < d->n_cons && &d->cons[k] != con) {
+            k++;
+        }
         if (i == 0 || ev > best_ev || (ev == best_ev && k > best_k)) {
             best = i;
             best_ev = ev;
