@@ -116,7 +116,7 @@ static void analyse(kn_ctx *ctx, kn_schema *s, const kn_options *o)
      * t is NULL when the moment did not resolve, and later families read it. */
     kn_timeline *t = kn_timeline_solve(ctx->arena, ctx->sink, s, ctx->rulebook->strict_moment);
     kn_check_availability(ctx, s, t);
-    /* provenance (src/checks/provenance.c) */
+    kn_check_provenance(ctx, s);
     /* identity (src/checks/identity.c) */
     /* preparation (src/checks/preparation.c) */
     /* data checks with o->data (src/data/) */

@@ -8,6 +8,7 @@
 #include <limits.h>
 #include <stdlib.h>
 #include <string.h>
+#include <sys/stat.h>
 
 #define PCRE2_CODE_UNIT_WIDTH 8
 #include <pcre2.h>
@@ -50,6 +51,7 @@ typedef struct owner {
 typedef struct file_ctx {
     const char *real;    /* realpath */
     const char *display; /* as printed */
+    kn_node *via;        /* the include item that led here; NULL for the schema */
 } file_ctx;
 
 typedef struct ld {
@@ -904,7 +906,23 @@ static bool inside_root(ld *l, const char *real)
     return strncmp(real, l->root_real, n) == 0 && (real[n] == '/' || real[n] == '\0');
 }
 
-static void load_file(ld *l, const char *real, const char *display, bool main_file);
+/* For a path that does not resolve: whether its longest existing prefix lies
+ * outside the root, so that a missing file outside is refused as outside
+ * (the tool does not tell whether files exist beyond the root). */
+static bool prefix_leaves_root(ld *l, const char *joined)
+{
+    char *p = kn_strdup(l->a, joined);
+    for (char *slash = strrchr(p, '/'); slash; slash = strrchr(p, '/')) {
+        *slash = '\0';
+        char *real = real_path(l, slash == p ? "/" : p);
+        if (real) {
+            return !inside_root(l, real);
+        }
+    }
+    return false;
+}
+
+static void load_file(ld *l, const char *real, const char *display, bool main_file, kn_node *via);
 
 static void refuse(ld *l, kn_node *at, const char *fmt, const char *path, const char *extra)
 {
@@ -926,13 +944,23 @@ static void load_includes(ld *l, const file_ctx *fc, kn_node *list)
         }
         char *joined = join_path(l, dir_of(l, fc->real), path);
         char *real = real_path(l, joined);
-        if (!real) {
+        if (!real && !prefix_leaves_root(l, joined)) {
             refuse(l, item, "no such file", path, NULL);
             continue;
         }
-        if (!inside_root(l, real)) {
+        if (!real || !inside_root(l, real)) {
             refuse(l, item, "it leaves the root folder", path,
-                   kn_printf(l->a, "the root is '%s'; set --root to allow a wider folder", esc(l, l->root_real)));
+                   l->opt->root ? kn_printf(l->a, "the root is '%s' (--root)", esc(l, l->opt->root))
+                                : kn_printf(l->a, "the root is the folder of '%s', the schema named on the command "
+                                                  "line; set --root to allow a wider folder",
+                                            esc(l, l->s->path)));
+            continue;
+        }
+        /* A folder, a FIFO or a device would fail or block when read. */
+        struct stat st = {0};
+        if (stat(real, &st) != 0 || !S_ISREG(st.st_mode)) {
+            refuse(l, item, S_ISDIR(st.st_mode) ? "it is a folder, not a file" : "it is not a regular file", path,
+                   NULL);
             continue;
         }
         bool loop = false;
@@ -944,8 +972,10 @@ static void load_includes(ld *l, const file_ctx *fc, kn_node *list)
         if (loop) {
             kn_diag *d = err(l, KN_R_INCLUDE_REFUSED, item, "include '%s' is refused: it loops back to a file that includes it",
                              esc(l, path));
-            for (size_t j = 0; j < l->stack->len; j++) {
-                kn_diag_note(l->sink, d, NULL, "included through '%s'", esc(l, KN_VEC_AT(l->stack, file_ctx, j).display));
+            for (size_t j = 1; j < l->stack->len; j++) {
+                const file_ctx *step = &KN_VEC_AT(l->stack, file_ctx, j);
+                kn_diag_note(l->sink, d, &step->via->pos, "'%s' includes '%s'",
+                             esc(l, KN_VEC_AT(l->stack, file_ctx, j - 1).display), esc(l, step->display));
             }
             continue;
         }
@@ -956,11 +986,11 @@ static void load_includes(ld *l, const file_ctx *fc, kn_node *list)
             refuse(l, item, "too many nested or included files", path, NULL);
             continue;
         }
-        load_file(l, real, join_path(l, dir_of(l, fc->display), path), false);
+        load_file(l, real, join_path(l, dir_of(l, fc->display), path), false, item);
     }
 }
 
-static void load_file(ld *l, const char *real, const char *display, bool main_file)
+static void load_file(ld *l, const char *real, const char *display, bool main_file, kn_node *via)
 {
     kn_node *root = kn_yaml_load_file(l->a, l->sink, real, display, &l->opt->limits);
     if (!root) {
@@ -976,7 +1006,7 @@ static void load_file(ld *l, const char *real, const char *display, bool main_fi
     files[l->s->n_files++] = (kn_schema_file){real, display, root};
     l->s->files = files;
 
-    file_ctx fc = {real, display};
+    file_ctx fc = {real, display, via};
     kn_vec_push(l->stack, &fc);
     const kn_shape *sh = main_file ? &kn_shape_top : &kn_shape_included;
     owner o = {main_file ? "the schema" : "the included file", NULL, -1, root};
@@ -1317,7 +1347,7 @@ kn_schema *kn_schema_load(kn_arena *a, kn_sink *sink, const char *path, const kn
         kn_sink_mark_fatal(sink);
         return NULL;
     }
-    load_file(&l, real, path, true);
+    load_file(&l, real, path, true, NULL);
     if (!l.s->root) {
         return NULL;
     }
