@@ -128,7 +128,8 @@ kn_csv_reader *kn_csv_open_buffer(kn_arena *a, const char *data, size_t len,
                                   const kn_csv_options *o)
 {
     kn_csv_reader *r = reader_new(a, o);
-    r->in = (const unsigned char *)data;
+    /* Never a NULL base: pointer arithmetic on NULL is undefined. */
+    r->in = data ? (const unsigned char *)data : (const unsigned char *)"";
     r->in_len = data ? len : 0;
     r->eof = true;
     return r;
