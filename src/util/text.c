@@ -278,6 +278,10 @@ void kn_fput_xml(FILE *f, const char *s, size_t len)
         default:
             if (c >= 0x80) {
                 size_t n = kn_utf8_valid_seq(p + i, len - i);
+                /* U+FFFE and U+FFFF are not XML 1.0 characters. */
+                if (n == 3 && p[i] == 0xef && p[i + 1] == 0xbf && p[i + 2] >= 0xbe) {
+                    n = 0;
+                }
                 if (n) {
                     fwrite(p + i, 1, n, f);
                     i += n;
