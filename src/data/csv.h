@@ -29,9 +29,11 @@
  *
  * Memory: the reader lives in the caller's arena; its growable buffers are
  * heap memory obtained with kn_xrealloc and released by a deferred cleanup
- * (kn_arena_defer), or earlier by kn_csv_close.  Peak memory is about
- * block_size + 2 * (record length + 24 bytes per field) for the largest
- * record kept, bounded by max_record and max_columns.
+ * (kn_arena_defer), or earlier by kn_csv_close.  Peak memory is at most
+ * about block_size (FILE * mode only) + 2 * (bytes + 49 per field) of the
+ * largest record kept (buffers double as they grow), so it is bounded by
+ * max_record and max_columns whatever the input; the header's text is
+ * copied into the arena.
  */
 #ifndef KN_DATA_CSV_H
 #define KN_DATA_CSV_H
