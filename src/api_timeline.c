@@ -37,12 +37,6 @@ static kn_rulebook *rulebook(kn_arena *a, kn_sink *sink, const kn_options *o, co
 kn_status kn_timeline_report(const kn_options *o, const char *schema, FILE *out, FILE *svg,
                              FILE *err)
 {
-    if (svg) {
-        fputs("knowable: the SVG picture of the timeline is not available in this build yet; "
-              "the text report is\n",
-              err);
-        return KN_EXIT_FAILED;
-    }
     kn_arena *a = kn_arena_new();
     if (!a) {
         fputs("knowable: out of memory\n", err);
@@ -79,6 +73,13 @@ kn_status kn_timeline_report(const kn_options *o, const char *schema, FILE *out,
         /* Contradictions go to the report itself, not to diagnostics. */
         kn_timeline *t = kn_timeline_solve(a, sink, s, rb->strict_moment);
         kn_timeline_write_text(out, s, t);
+        if (svg) {
+            kn_timeline_write_svg(svg, s, t);
+            if (fflush(svg) != 0 || ferror(svg)) {
+                fputs("knowable: error writing the SVG picture\n", err);
+                status = KN_EXIT_FAILED;
+            }
+        }
     }
     kn_arena_free(a);
     return status;

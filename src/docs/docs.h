@@ -17,4 +17,13 @@
  * needs freeing.  Write errors are left in out's error indicator. */
 void kn_timeline_write_text(FILE *out, const kn_schema *s, const kn_timeline *t);
 
+/* `knowable timeline SCHEMA --svg FILE`: the same placement as a picture
+ * (SVG 1.1): a signed logarithmic time axis around the moment, events as
+ * bars, then columns as bars grouped by verdict, each verdict with its own
+ * colour, fill pattern and word.  Every text is escaped for XML; the output
+ * depends only on s and t.  t may be NULL or contradictory: the picture then
+ * says why nothing is placed.  Scratch memory comes from t's arena.  Write
+ * errors are left in out's error indicator. */
+void kn_timeline_write_svg(FILE *out, const kn_schema *s, const kn_timeline *t);
+
 #endif
