@@ -59,6 +59,9 @@ static char *lag_words(kn_arena *a, int64_t lo, int64_t hi)
     if (hi >= KN_TIME_INF) {
         return kn_printf(a, "at least %s", dur(lo, b1));
     }
+    if (lo == 0) {
+        return kn_printf(a, "up to %s", dur(hi, b1));
+    }
     return kn_printf(a, "between %s and %s", dur(lo, b1), dur(hi, b2));
 }
 
@@ -220,9 +223,13 @@ static void check_known(const cx *x, const kn_column *c, const kn_column_timing 
     kn_sink *sink = x->ctx->sink;
     kn_diag *d;
     if (v == KN_VERDICT_LATE) {
+        /* Under strict_moment a range starting exactly at the moment is late. */
+        bool at_moment = T->part[KN_PART_KNOWN].lo == 0;
         d = kn_diag_push(sink, KN_R_AFTER_MOMENT, at(c, c->known.node), c->name,
-                         "column '%s' (known at '%s') is available only after the moment: %s",
-                         c->name, e->name, words(x, T->part[KN_PART_KNOWN]));
+                         "column '%s' (known at '%s') is available only %s: %s", c->name, e->name,
+                         at_moment ? "at or after the moment, which strict_moment counts as late"
+                                   : "after the moment",
+                         words(x, T->part[KN_PART_KNOWN]));
         explain_event_part(x, d, c, KN_PART_KNOWN, false);
     } else if (v == KN_VERDICT_MAYBE_LATE) {
         d = kn_diag_push(sink, KN_R_MAYBE_AFTER_MOMENT, at(c, c->known.node), c->name,
@@ -230,11 +237,18 @@ static void check_known(const cx *x, const kn_column *c, const kn_column_timing 
                          c->name, e->name, words(x, T->part[KN_PART_KNOWN]));
         explain_event_part(x, d, c, KN_PART_KNOWN, true);
     } else if (v == KN_VERDICT_UNORDERED) {
-        d = kn_diag_push(sink, KN_R_UNORDERED_EVENT, at(c, c->known.node), c->name,
-                         "column '%s' is known at '%s', which no chain of constraints bounds from "
-                         "above relative to the moment '%s' (it comes %s), so its availability "
-                         "cannot be proven",
-                         c->name, e->name, x->moment, words(x, T->event[KN_PART_KNOWN]));
+        if (T->event[KN_PART_KNOWN].lo <= -KN_TIME_INF) {
+            d = kn_diag_push(sink, KN_R_UNORDERED_EVENT, at(c, c->known.node), c->name,
+                             "column '%s' is known at '%s', which no chain of constraints ties to "
+                             "the moment '%s', so its availability cannot be proven",
+                             c->name, e->name, x->moment);
+        } else {
+            d = kn_diag_push(sink, KN_R_UNORDERED_EVENT, at(c, c->known.node), c->name,
+                             "column '%s' is known at '%s', which no chain of constraints bounds "
+                             "from above relative to the moment '%s' (it comes %s), so its "
+                             "availability cannot be proven",
+                             c->name, e->name, x->moment, words(x, T->event[KN_PART_KNOWN]));
+        }
         if (e->key) {
             kn_diag_note(sink, d, &e->key->pos, "'%s' is declared here; add `after` or `before` "
                          "with a maximum lag that ties it to the moment", e->name);
@@ -273,9 +287,10 @@ static void check_window(const cx *x, const kn_column *c, const kn_column_timing
         first = kn_printf(a, "the window of column '%s' may end after the moment: its end is %s",
                           c->name, words(x, T->window_end));
     } else {
-        first = kn_printf(a, "the window of column '%s' ends %s, after the newest record that "
-                          "can have landed by then",
-                          c->name, words(x, T->window_end));
+        first = kn_printf(a, "the window of column '%s' ends %s, %s the newest record that "
+                          "has landed by the moment",
+                          c->name, words(x, T->window_end),
+                          v == KN_VERDICT_LATE ? "after" : "possibly after");
     }
     const kn_source *src = KN_REF_SOURCE(c->source);
     const char *second = "";
