@@ -117,7 +117,7 @@ static void analyse(kn_ctx *ctx, kn_schema *s, const kn_options *o)
     kn_timeline *t = kn_timeline_solve(ctx->arena, ctx->sink, s, ctx->rulebook->strict_moment);
     kn_check_availability(ctx, s, t);
     kn_check_provenance(ctx, s);
-    /* identity (src/checks/identity.c) */
+    kn_check_identity(ctx, s, t);
     /* preparation (src/checks/preparation.c) */
     /* data checks with o->data (src/data/) */
 }
