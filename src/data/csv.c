@@ -206,26 +206,32 @@ static void append(kn_csv_reader *r, const unsigned char *s, size_t n)
     if (!r->field_keep || r->field_overflow || r->record_overflow) {
         return;
     }
-    if (n > r->opt.max_field - r->field_len) {
+    /* Keep the bytes that fit, so that what is kept of an overlong field
+     * does not depend on how the input was cut into blocks. */
+    size_t room_field = r->opt.max_field - r->field_len;
+    size_t room_record = r->opt.max_record - r->buf_len;
+    size_t take = n < room_field ? n : room_field;
+    take = take < room_record ? take : room_record;
+    buf_reserve(r, r->buf_len + take + 1);
+    memcpy(r->buf + r->buf_len, s, take);
+    r->buf_len += take;
+    r->field_len += take;
+    if (take == n) {
+        return;
+    }
+    if (room_field <= room_record) {
         problem(r, KN_CSV_FIELD_TOO_LONG, r->field_line, r->field_col, r->n_found + 1);
         if (r->err.problem == KN_CSV_FIELD_TOO_LONG) {
             r->err.count = r->opt.max_field;
         }
         r->field_overflow = true;
-        return;
-    }
-    if (n > r->opt.max_record - r->buf_len) {
+    } else {
         problem(r, KN_CSV_RECORD_TOO_LONG, r->rec_line, 1, r->n_found + 1);
         if (r->err.problem == KN_CSV_RECORD_TOO_LONG) {
             r->err.count = r->opt.max_record;
         }
         r->record_overflow = true;
-        return;
     }
-    buf_reserve(r, r->buf_len + n + 1);
-    memcpy(r->buf + r->buf_len, s, n);
-    r->buf_len += n;
-    r->field_len += n;
 }
 
 static void field_begin(kn_csv_reader *r, uint64_t abs)
