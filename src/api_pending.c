@@ -9,12 +9,6 @@ static kn_status pending(const char *what, FILE *err)
     return KN_EXIT_FAILED;
 }
 
-kn_status kn_sources(const kn_options *o, const char *const *schemas, size_t n, FILE *out, FILE *err)
-{
-    (void)o, (void)schemas, (void)n, (void)out;
-    return pending("sources", err);
-}
-
 kn_status kn_init(const kn_options *o, const char *csv, FILE *out, FILE *err)
 {
     (void)o, (void)csv, (void)out;

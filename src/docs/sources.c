@@ -1,0 +1,739 @@
+/* sources.c - `knowable sources SCHEMA...`: the register of feature sources
+ * that reviewers and data stewards read.  Loads each schema (with its
+ * includes), gathers every source once - a source is identified by the file
+ * that defines it and its name, so a shared register included by several
+ * schemas is listed once with all its uses - and writes external sources
+ * first (every provenance field, the required ones that are missing marked
+ * as missing), then internal ones, each followed by the columns that come
+ * from it, by which key and as of which event.  Markdown or JSON.  Reads the
+ * schema model only; pushes no diagnostics of its own. */
+#include <knowable/knowable.h>
+
+#include <setjmp.h>
+#include <string.h>
+
+#include "../report/diag.h"
+#include "../report/render.h"
+#include "../rulebook/rulebook.h"
+#include "../schema/schema.h"
+#include "../time/duration.h"
+#include "../util/arena.h"
+#include "../util/names.h"
+#include "../util/text.h"
+
+typedef enum use_via { VIA_SOURCE, VIA_JOIN, VIA_DERIVED } use_via;
+
+/* One column that takes values from a source. */
+typedef struct use {
+    size_t schema;          /* index into the loaded schemas */
+    const kn_column *c;
+    use_via via;
+    bool joined;            /* the column's join reads from this source */
+    const kn_column *input; /* VIA_DERIVED: the input that comes from it */
+} use;
+
+typedef struct entry {
+    const kn_source *src; /* the definition, as first loaded */
+    kn_vec *uses;         /* use */
+} entry;
+
+typedef struct reg {
+    kn_arena *a;
+    const kn_rulebook *rb;
+    kn_schema **schemas;
+    size_t n_schemas;
+    kn_name_map *by_id; /* "real path\nname" -> entry */
+    kn_vec *entries;    /* entry *, in order of first appearance */
+} reg;
+
+/* ---- gathering ---- */
+
+/* The opened path of the file a node comes from (display -> real). */
+static const char *real_file(const kn_schema *s, const char *display)
+{
+    for (size_t i = 0; i < s->n_files; i++) {
+        if (s->files[i].display == display || strcmp(s->files[i].display, display) == 0) {
+            return s->files[i].path;
+        }
+    }
+    return display;
+}
+
+static entry *entry_of(reg *r, const kn_schema *s, const kn_source *src)
+{
+    const char *id = kn_printf(r->a, "%s\n%s", real_file(s, src->key->pos.file), src->name);
+    entry *e = kn_names_get(r->by_id, id);
+    if (!e) {
+        e = kn_alloc(r->a, sizeof *e);
+        e->src = src;
+        e->uses = kn_vec_new(r->a, sizeof(use));
+        kn_names_put(r->by_id, id, e);
+        kn_vec_push(r->entries, &e);
+    }
+    return e;
+}
+
+static void add_use(reg *r, const kn_schema *s, const kn_source *src, use u)
+{
+    if (src) {
+        kn_vec_push(entry_of(r, s, src)->uses, &u);
+    }
+}
+
+/* The sources a column's value comes from directly, for derived columns. */
+static void direct_sources(const kn_column *c, const kn_source **out)
+{
+    out[0] = KN_REF_SOURCE(c->source);
+    out[1] = KN_REF_SOURCE(c->join.source);
+    if (out[1] == out[0]) {
+        out[1] = NULL;
+    }
+}
+
+/* A derived column takes its provenance from its inputs: walk them
+ * (iteratively, each column once per derived column) and record a use of
+ * every source met, naming the input that brings it in. */
+static void derived_uses(reg *r, size_t si, const kn_schema *s, const kn_column *c, unsigned char *seen,
+                         const kn_column **stack)
+{
+    memset(seen, 0, s->n_columns);
+    size_t top = 0;
+    seen[c->index] = 1;
+    for (size_t i = 0; i < c->n_derived; i++) {
+        const kn_column *in = KN_REF_COLUMN(c->derived_from[i]);
+        if (in && !seen[in->index]) {
+            seen[in->index] = 1;
+            stack[top++] = in;
+        }
+    }
+    while (top) {
+        const kn_column *in = stack[--top];
+        const kn_source *direct[2];
+        direct_sources(in, direct);
+        for (size_t k = 0; k < 2; k++) {
+            if (!direct[k]) {
+                continue;
+            }
+            entry *e = entry_of(r, s, direct[k]);
+            /* This column's uses of e are the newest ones: look back only
+             * as far as they go. */
+            bool dup = false;
+            for (size_t j = e->uses->len; j-- > 0 && !dup;) {
+                const use *u = &KN_VEC_AT(e->uses, use, j);
+                if (u->schema != si || u->c != c) {
+                    break;
+                }
+                dup = u->via == VIA_DERIVED;
+            }
+            if (!dup) {
+                kn_vec_push(e->uses, &(use){si, c, VIA_DERIVED, false, in});
+            }
+        }
+        for (size_t i = 0; i < in->n_derived; i++) {
+            const kn_column *next = KN_REF_COLUMN(in->derived_from[i]);
+            if (next && !seen[next->index]) {
+                seen[next->index] = 1;
+                stack[top++] = next;
+            }
+        }
+    }
+}
+
+static void gather(reg *r)
+{
+    for (size_t si = 0; si < r->n_schemas; si++) {
+        const kn_schema *s = r->schemas[si];
+        for (size_t i = 0; i < s->n_sources; i++) {
+            entry_of(r, s, s->sources[i]);
+        }
+        unsigned char *seen = kn_alloc(r->a, s->n_columns ? s->n_columns : 1);
+        const kn_column **stack = kn_alloc_array(r->a, s->n_columns ? s->n_columns : 1, sizeof *stack);
+        for (size_t i = 0; i < s->n_columns; i++) {
+            const kn_column *c = s->columns[i];
+            const kn_source *own = KN_REF_SOURCE(c->source), *joined = KN_REF_SOURCE(c->join.source);
+            if (own && own != joined) {
+                add_use(r, s, own, (use){si, c, VIA_SOURCE, c->join.present && !c->join.source.name, NULL});
+            }
+            if (joined) {
+                add_use(r, s, joined, (use){si, c, VIA_JOIN, true, NULL});
+            }
+            if (c->n_derived) {
+                derived_uses(r, si, s, c, seen, stack);
+            }
+        }
+    }
+}
+
+/* ---- field values ---- */
+
+static bool field_missing(const kn_source *src, kn_source_field f)
+{
+    const kn_node *n = src->field[f];
+    if (!n) {
+        return true;
+    }
+    return n->kind == KN_NODE_SCALAR && (kn_node_is_null(n) || n->u.scalar.len == 0);
+}
+
+static bool required(const reg *r, const kn_source *src, kn_source_field f)
+{
+    return src->kind == KN_SOURCE_EXTERNAL && r->rb->require_external[f];
+}
+
+/* A duration node as written: "PT2H" or "[PT1M, PT20M]". */
+static const char *written(reg *r, const kn_node *n)
+{
+    if (n->kind == KN_NODE_SCALAR) {
+        return n->u.scalar.text;
+    }
+    if (n->kind == KN_NODE_SEQ) {
+        const char *s = "[";
+        for (size_t i = 0; i < n->u.seq.n; i++) {
+            const kn_node *it = n->u.seq.items[i];
+            const char *t = it->kind == KN_NODE_SCALAR ? it->u.scalar.text : "?";
+            s = kn_printf(r->a, "%s%s%s", s, i ? ", " : "", kn_node_is_null(it) ? "null" : t);
+        }
+        return kn_printf(r->a, "%s]", s);
+    }
+    return "";
+}
+
+static const char *span_words(reg *r, int64_t lo, int64_t hi)
+{
+    char b1[48], b2[48];
+    if (lo == hi) {
+        return kn_printf(r->a, "%s", kn_duration_format(lo, b1, sizeof b1));
+    }
+    if (hi >= KN_TIME_INF) {
+        return kn_printf(r->a, "at least %s", kn_duration_format(lo, b1, sizeof b1));
+    }
+    return kn_printf(r->a, "%s to %s", kn_duration_format(lo, b1, sizeof b1), kn_duration_format(hi, b2, sizeof b2));
+}
+
+static const char *history_words(kn_history h)
+{
+    switch (h) {
+    case KN_HISTORY_APPEND:
+        return "append (records are added, never changed)";
+    case KN_HISTORY_VERSIONED:
+        return "versioned (old values are kept as versions)";
+    case KN_HISTORY_OVERWRITTEN:
+        return "overwritten (updated in place: past values are lost)";
+    case KN_HISTORY_UNSET:
+        break;
+    }
+    return NULL;
+}
+
+/* The register's rows: label, field, and the text of the value (NULL when
+ * not stated).  Values come from the input and are escaped when written. */
+typedef struct row {
+    const char *label;
+    kn_source_field field;
+    const char *value;
+} row;
+
+#define N_ROWS 11
+
+static size_t rows_of(reg *r, const kn_source *src, row *out)
+{
+    static const struct {
+        const char *label;
+        kn_source_field f;
+    } order[N_ROWS] = {
+        {"Provider", KN_SF_PROVIDER}, {"Licence", KN_SF_LICENSE},   {"Retrieved", KN_SF_RETRIEVED},
+        {"Version", KN_SF_VERSION},   {"Point-in-time", KN_SF_POINT_IN_TIME},
+        {"Latency", KN_SF_LATENCY},   {"Refresh", KN_SF_REFRESH},   {"History", KN_SF_HISTORY},
+        {"Documentation", KN_SF_DOCUMENTATION}, {"Owner", KN_SF_OWNER}, {"Contact", KN_SF_CONTACT},
+    };
+    bool external = src->kind == KN_SOURCE_EXTERNAL;
+    size_t n = 0;
+    for (size_t i = 0; i < N_ROWS; i++) {
+        kn_source_field f = order[i].f;
+        const char *v = NULL;
+        if (!field_missing(src, f)) {
+            switch (f) {
+            case KN_SF_PROVIDER:
+                v = src->provider;
+                break;
+            case KN_SF_LICENSE:
+                v = src->license;
+                break;
+            case KN_SF_RETRIEVED:
+                v = src->retrieved;
+                break;
+            case KN_SF_VERSION:
+                v = src->version;
+                break;
+            case KN_SF_POINT_IN_TIME:
+                v = src->point_in_time == 1   ? "yes: the provider can serve values as they stood at a past date"
+                    : src->point_in_time == 0 ? "no: only current values can be served"
+                                              : NULL;
+                break;
+            case KN_SF_LATENCY:
+                v = kn_printf(r->a, "%s (%s after the event)", written(r, src->field[f]),
+                              span_words(r, src->latency.lo, src->latency.hi));
+                break;
+            case KN_SF_REFRESH:
+                if (src->has_refresh) {
+                    char b[48];
+                    v = kn_printf(r->a, "%s (a record can wait up to %s for the next batch)", written(r, src->field[f]),
+                                  kn_duration_format(src->refresh, b, sizeof b));
+                }
+                break;
+            case KN_SF_HISTORY:
+                v = history_words(src->history);
+                break;
+            case KN_SF_DOCUMENTATION:
+                v = src->documentation;
+                break;
+            case KN_SF_OWNER:
+                v = src->owner;
+                break;
+            case KN_SF_CONTACT:
+                v = src->contact;
+                break;
+            default:
+                break;
+            }
+        }
+        /* Internal sources list only what they state (and their timing);
+         * external ones list every field, stated or not. */
+        if (!external && !v && f != KN_SF_LATENCY && f != KN_SF_HISTORY) {
+            continue;
+        }
+        out[n++] = (row){order[i].label, f, v};
+    }
+    return n;
+}
+
+static size_t missing_required(const reg *r, const kn_source *src, const char **names)
+{
+    size_t n = 0;
+    for (size_t f = 0; f < KN_SF_COUNT; f++) {
+        if (required(r, src, (kn_source_field)f) && field_missing(src, (kn_source_field)f)) {
+            names[n++] = kn_source_field_names[f];
+        }
+    }
+    return n;
+}
+
+static const char *dataset_of(const kn_schema *s)
+{
+    return s->dataset ? s->dataset : s->path;
+}
+
+/* ---- Markdown ---- */
+
+static void md(FILE *out, const char *s)
+{
+    kn_fput_markdown(out, s, strlen(s));
+}
+
+static void md_use_cells(FILE *out, const reg *r, const use *u)
+{
+    const kn_column *c = u->c;
+    fputs("| ", out);
+    md(out, dataset_of(r->schemas[u->schema]));
+    fputs(" | ", out);
+    md(out, c->name);
+    fputs(" | ", out);
+    md(out, kn_role_name(c->role));
+    fputs(" | ", out);
+    if (u->via == VIA_DERIVED) {
+        fputs("derived, through ", out);
+        md(out, u->input->name);
+    } else if (c->known.name) {
+        md(out, c->known.name);
+    } else if (c->window.present && c->window.anchor.name) {
+        char b1[48], b2[48];
+        fputs("window at ", out);
+        md(out, c->window.anchor.name);
+        fprintf(out, ", %s to %s", kn_duration_format(c->window.from.lo, b1, sizeof b1),
+                kn_duration_format(c->window.to.hi, b2, sizeof b2));
+    } else if (c->n_derived) {
+        fputs("derived", out);
+    } else {
+        fputs("not stated", out);
+    }
+    fputs(" | ", out);
+    if (!u->joined) {
+        fputs("not joined | |\n", out);
+        return;
+    }
+    for (size_t k = 0; k < c->join.n_keys; k++) {
+        if (k) {
+            fputs(", ", out);
+        }
+        md(out, c->join.keys[k].name);
+    }
+    if (!c->join.n_keys) {
+        fputs("not stated", out);
+    }
+    fputs(" | ", out);
+    if (c->join.as_of.name) {
+        md(out, c->join.as_of.name);
+    } else {
+        fputs("**latest value**", out);
+    }
+    fputs(" |\n", out);
+}
+
+static void md_source(FILE *out, reg *r, const entry *e)
+{
+    const kn_source *src = e->src;
+    fputs("### ", out);
+    md(out, src->name);
+    fputs("\n\n", out);
+    fputs("Defined in ", out);
+    md(out, src->key->pos.file);
+    fprintf(out, ", line %u.\n\n", src->key->pos.line);
+    const char *miss[KN_SF_COUNT];
+    size_t n_miss = missing_required(r, src, miss);
+    if (n_miss) {
+        fputs("**Provenance incomplete:** the rulebook requires ", out);
+        for (size_t i = 0; i < n_miss; i++) {
+            fprintf(out, "%s%s", i == 0 ? "" : i + 1 == n_miss ? " and " : ", ", miss[i]);
+        }
+        fputs(", which this source does not state.\n\n", out);
+    }
+    row rows[N_ROWS];
+    size_t n = rows_of(r, src, rows);
+    fputs("| Field | Value |\n|---|---|\n", out);
+    fprintf(out, "| Kind | %s |\n", src->kind == KN_SOURCE_EXTERNAL ? "external" : "internal");
+    if (!field_missing(src, KN_SF_DESCRIPTION) && src->description) {
+        fputs("| Description | ", out);
+        md(out, src->description);
+        fputs(" |\n", out);
+    }
+    for (size_t i = 0; i < n; i++) {
+        fprintf(out, "| %s | ", rows[i].label);
+        if (rows[i].value) {
+            md(out, rows[i].value);
+        } else if (required(r, src, rows[i].field)) {
+            fputs("**MISSING** (required)", out);
+        } else if (rows[i].field == KN_SF_LATENCY) {
+            fputs("not stated (taken as 0s)", out);
+        } else {
+            fputs("not stated", out);
+        }
+        fputs(" |\n", out);
+    }
+    fputc('\n', out);
+    if (!e->uses->len) {
+        fputs("No column of these schemas takes values from this source.\n\n", out);
+        return;
+    }
+    fputs("Columns from this source:\n\n", out);
+    fputs("| Dataset | Column | Role | Known from | Join key | As of |\n|---|---|---|---|---|---|\n", out);
+    for (size_t i = 0; i < e->uses->len; i++) {
+        md_use_cells(out, r, &KN_VEC_AT(e->uses, use, i));
+    }
+    fputc('\n', out);
+}
+
+static size_t count_kind(const reg *r, kn_source_kind k, size_t *incomplete)
+{
+    size_t n = 0;
+    const char *miss[KN_SF_COUNT];
+    for (size_t i = 0; i < r->entries->len; i++) {
+        const entry *e = KN_VEC_AT(r->entries, entry *, i);
+        if ((k == KN_SOURCE_EXTERNAL) == (e->src->kind == KN_SOURCE_EXTERNAL)) {
+            n++;
+            if (incomplete && missing_required(r, e->src, miss)) {
+                (*incomplete)++;
+            }
+        }
+    }
+    return n;
+}
+
+static void write_markdown(FILE *out, reg *r)
+{
+    fputs("# Register of feature sources\n\n", out);
+    fputs("Written by knowable " KN_VERSION_STRING " from ", out);
+    for (size_t i = 0; i < r->n_schemas; i++) {
+        const kn_schema *s = r->schemas[i];
+        fputs(i == 0 ? "" : i + 1 == r->n_schemas ? " and " : ", ", out);
+        md(out, s->path);
+        if (s->dataset) {
+            fputs(" (dataset ", out);
+            md(out, s->dataset);
+            fputc(')', out);
+        }
+    }
+    fputs(".", out);
+    bool any = false;
+    for (size_t f = 0; f < KN_SF_COUNT; f++) {
+        if (r->rb->require_external[f]) {
+            fprintf(out, "%s%s", any ? ", " : " Every external source must state ", kn_source_field_names[f]);
+            any = true;
+        }
+    }
+    if (any) {
+        fputs(" (", out);
+        if (strcmp(r->rb->origin, "(built-in)") == 0) {
+            fputs("the built-in rulebook", out);
+        } else {
+            fputs("rulebook ", out);
+            md(out, r->rb->origin);
+        }
+        fputs(").", out);
+    }
+    fputs("\n\n", out);
+    size_t incomplete = 0;
+    size_t n_ext = count_kind(r, KN_SOURCE_EXTERNAL, &incomplete);
+    size_t n_int = count_kind(r, KN_SOURCE_INTERNAL, NULL);
+    fprintf(out, "%zu external source%s (%zu with provenance missing), %zu internal source%s.\n\n", n_ext,
+            n_ext == 1 ? "" : "s", incomplete, n_int, n_int == 1 ? "" : "s");
+    for (int pass = 0; pass < 2; pass++) {
+        bool ext = pass == 0;
+        fputs(ext ? "## External sources\n\n" : "## Internal sources\n\n", out);
+        if (!(ext ? n_ext : n_int)) {
+            fputs("None.\n\n", out);
+        }
+        for (size_t i = 0; i < r->entries->len; i++) {
+            const entry *e = KN_VEC_AT(r->entries, entry *, i);
+            if (ext == (e->src->kind == KN_SOURCE_EXTERNAL)) {
+                md_source(out, r, e);
+            }
+        }
+    }
+}
+
+/* ---- JSON ---- */
+
+static void js_str_or_null(FILE *out, const char *s)
+{
+    if (s) {
+        kn_fput_json_str(out, s);
+    } else {
+        fputs("null", out);
+    }
+}
+
+static void js_seconds(FILE *out, int64_t us)
+{
+    if (us >= KN_TIME_INF || us <= -KN_TIME_INF) {
+        fputs("null", out);
+    } else {
+        fprintf(out, "%.17g", kn_time_seconds(us));
+    }
+}
+
+static void js_use(FILE *out, const reg *r, const use *u)
+{
+    const kn_schema *s = r->schemas[u->schema];
+    const kn_column *c = u->c;
+    fputs("{\"schema\": ", out);
+    kn_fput_json_str(out, s->path);
+    fputs(", \"dataset\": ", out);
+    js_str_or_null(out, s->dataset);
+    fputs(", \"column\": ", out);
+    kn_fput_json_str(out, c->name);
+    fputs(", \"role\": ", out);
+    kn_fput_json_str(out, kn_role_name(c->role));
+    fprintf(out, ", \"via\": \"%s\"", u->via == VIA_SOURCE ? "source" : u->via == VIA_JOIN ? "join.source" : "derived_from");
+    fputs(", \"input\": ", out);
+    js_str_or_null(out, u->input ? u->input->name : NULL);
+    fputs(", \"known\": ", out);
+    js_str_or_null(out, c->known.name);
+    fputs(", \"window\": ", out);
+    if (c->window.present && c->window.anchor.name) {
+        fputs("{\"anchor\": ", out);
+        kn_fput_json_str(out, c->window.anchor.name);
+        fputs(", \"from_seconds\": ", out);
+        js_seconds(out, c->window.from.lo);
+        fputs(", \"to_seconds\": ", out);
+        js_seconds(out, c->window.to.hi);
+        fputs("}", out);
+    } else {
+        fputs("null", out);
+    }
+    fputs(", \"join\": ", out);
+    if (u->joined) {
+        fputs("{\"key\": [", out);
+        for (size_t k = 0; k < c->join.n_keys; k++) {
+            fputs(k ? ", " : "", out);
+            kn_fput_json_str(out, c->join.keys[k].name);
+        }
+        fputs("], \"as_of\": ", out);
+        js_str_or_null(out, c->join.as_of.name);
+        fprintf(out, ", \"latest_value\": %s}", c->join.as_of.name ? "false" : "true");
+    } else {
+        fputs("null", out);
+    }
+    fputs("}", out);
+}
+
+static void js_source(FILE *out, reg *r, const entry *e)
+{
+    const kn_source *src = e->src;
+    fputs("    {\"name\": ", out);
+    kn_fput_json_str(out, src->name);
+    fprintf(out, ", \"kind\": \"%s\"", src->kind == KN_SOURCE_EXTERNAL ? "external" : "internal");
+    fputs(", \"file\": ", out);
+    kn_fput_json_str(out, src->key->pos.file);
+    fprintf(out, ", \"line\": %u, \"column\": %u", src->key->pos.line, src->key->pos.col);
+    static const kn_source_field strings[] = {KN_SF_DESCRIPTION, KN_SF_OWNER,   KN_SF_CONTACT,
+                                              KN_SF_PROVIDER,    KN_SF_LICENSE, KN_SF_RETRIEVED,
+                                              KN_SF_VERSION,     KN_SF_DOCUMENTATION};
+    const char *values[] = {src->description, src->owner,   src->contact, src->provider,
+                            src->license,     src->retrieved, src->version, src->documentation};
+    fputs(",\n     ", out);
+    for (size_t i = 0; i < sizeof strings / sizeof strings[0]; i++) {
+        fprintf(out, "%s\"%s\": ", i ? ", " : "", kn_source_field_names[strings[i]]);
+        js_str_or_null(out, field_missing(src, strings[i]) ? NULL : values[i]);
+    }
+    fputs(",\n     \"point_in_time\": ", out);
+    fputs(src->point_in_time == 1 ? "true" : src->point_in_time == 0 ? "false" : "null", out);
+    fputs(", \"latency\": ", out);
+    if (src->latency.present) {
+        fputs("{\"written\": ", out);
+        kn_fput_json_str(out, written(r, src->field[KN_SF_LATENCY]));
+        fputs(", \"min_seconds\": ", out);
+        js_seconds(out, src->latency.lo);
+        fputs(", \"max_seconds\": ", out);
+        js_seconds(out, src->latency.hi);
+        fputs("}", out);
+    } else {
+        fputs("null", out);
+    }
+    fputs(", \"refresh\": ", out);
+    if (src->has_refresh) {
+        fputs("{\"written\": ", out);
+        kn_fput_json_str(out, written(r, src->field[KN_SF_REFRESH]));
+        fputs(", \"max_seconds\": ", out);
+        js_seconds(out, src->refresh);
+        fputs("}", out);
+    } else {
+        fputs("null", out);
+    }
+    fputs(", \"history\": ", out);
+    js_str_or_null(out, src->history == KN_HISTORY_UNSET ? NULL : kn_history_name(src->history));
+    fputs(",\n     \"missing_required\": [", out);
+    const char *miss[KN_SF_COUNT];
+    size_t n_miss = missing_required(r, src, miss);
+    for (size_t i = 0; i < n_miss; i++) {
+        fprintf(out, "%s\"%s\"", i ? ", " : "", miss[i]);
+    }
+    fputs("],\n     \"uses\": [", out);
+    for (size_t i = 0; i < e->uses->len; i++) {
+        fputs(i ? ",\n       " : "\n       ", out);
+        js_use(out, r, &KN_VEC_AT(e->uses, use, i));
+    }
+    fputs(e->uses->len ? "\n     ]}" : "]}", out);
+}
+
+static void write_json(FILE *out, reg *r)
+{
+    fputs("{\"version\": 1, \"generator\": \"knowable " KN_VERSION_STRING "\",\n \"schemas\": [", out);
+    for (size_t i = 0; i < r->n_schemas; i++) {
+        fputs(i ? ", " : "", out);
+        fputs("{\"file\": ", out);
+        kn_fput_json_str(out, r->schemas[i]->path);
+        fputs(", \"dataset\": ", out);
+        js_str_or_null(out, r->schemas[i]->dataset);
+        fputs("}", out);
+    }
+    fputs("],\n \"rulebook\": ", out);
+    kn_fput_json_str(out, r->rb->origin);
+    fputs(", \"required_external\": [", out);
+    bool any = false;
+    for (size_t f = 0; f < KN_SF_COUNT; f++) {
+        if (r->rb->require_external[f]) {
+            fprintf(out, "%s\"%s\"", any ? ", " : "", kn_source_field_names[f]);
+            any = true;
+        }
+    }
+    fputs("],\n \"sources\": [", out);
+    bool first = true;
+    for (int pass = 0; pass < 2; pass++) {
+        for (size_t i = 0; i < r->entries->len; i++) {
+            const entry *e = KN_VEC_AT(r->entries, entry *, i);
+            if ((pass == 0) == (e->src->kind == KN_SOURCE_EXTERNAL)) {
+                fputs(first ? "\n" : ",\n", out);
+                first = false;
+                js_source(out, r, e);
+            }
+        }
+    }
+    fputs(first ? "]}\n" : "\n ]}\n", out);
+}
+
+/* ---- entry point ---- */
+
+static kn_rulebook *rulebook(kn_arena *a, kn_sink *sink, const kn_options *o, const char *schema)
+{
+    kn_rulebook *rb = kn_rulebook_new(a);
+    if (!kn_rulebook_load_default(rb, a, sink)) {
+        return rb;
+    }
+    if (o->n_rulebooks) {
+        for (size_t i = 0; i < o->n_rulebooks; i++) {
+            kn_rulebook_load(rb, a, sink, o->rulebooks[i]);
+        }
+    } else if (schema) {
+        char *found = kn_rulebook_discover(a, schema);
+        if (found) {
+            kn_rulebook_load(rb, a, sink, found);
+        }
+    }
+    return rb;
+}
+
+kn_status kn_sources(const kn_options *o, const char *const *schemas, size_t n, FILE *out, FILE *err)
+{
+    if (o->format != KN_FORMAT_MARKDOWN && o->format != KN_FORMAT_JSON && o->format != KN_FORMAT_TEXT) {
+        fputs("knowable: the sources register is written as markdown or json\n", err);
+        return KN_EXIT_FAILED;
+    }
+    kn_arena *a = kn_arena_new();
+    if (!a) {
+        fputs("knowable: out of memory\n", err);
+        return KN_EXIT_FAILED;
+    }
+    jmp_buf oom;
+    if (setjmp(oom)) {
+        kn_arena_free(a);
+        fputs("knowable: out of memory\n", err);
+        return KN_EXIT_FAILED;
+    }
+    kn_arena_set_oom(a, &oom);
+
+    kn_status status = KN_EXIT_OK;
+    kn_sink *sink = kn_sink_new(a);
+    kn_render_opts ro = {o->color, o->quiet, false, n};
+    kn_rulebook *rb = rulebook(a, sink, o, n ? schemas[0] : NULL);
+    reg r = {a, rb, kn_alloc_array(a, n ? n : 1, sizeof(kn_schema *)), n, kn_names_new(a),
+             kn_vec_new(a, sizeof(entry *))};
+    bool ok = !kn_sink_fatal(sink);
+    if (ok) {
+        kn_rulebook_apply(rb, sink);
+        kn_load_options lo = {0};
+        lo.root = o->root;
+        kn_yaml_limits_default(&lo.limits);
+        lo.rulebook = rb;
+        for (size_t i = 0; i < n; i++) {
+            r.schemas[i] = kn_schema_load(a, sink, schemas[i], &lo);
+            if (!r.schemas[i] || !r.schemas[i]->shape_ok) {
+                ok = false;
+            }
+        }
+    }
+    if (!ok || kn_sink_fatal(sink)) {
+        kn_sink_finish(sink);
+        kn_render_text(err, sink, &ro);
+        fputs("knowable: the schema has errors (above); fix them before writing its register of sources\n", err);
+        status = KN_EXIT_FAILED;
+    } else {
+        gather(&r);
+        if (o->format == KN_FORMAT_JSON) {
+            write_json(out, &r);
+        } else {
+            write_markdown(out, &r);
+        }
+    }
+    kn_arena_free(a);
+    return status;
+}

@@ -1,0 +1,1 @@
+broken.schema.yaml

@@ -1,0 +1,1 @@
+--format json ../../../examples/parcel-delays.knowable.yaml

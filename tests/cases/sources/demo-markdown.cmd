@@ -1,0 +1,1 @@
+../../../examples/parcel-delays.knowable.yaml

@@ -1,0 +1,1 @@
+--format json hostile.schema.yaml

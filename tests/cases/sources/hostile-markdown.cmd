@@ -1,0 +1,1 @@
+hostile.schema.yaml

@@ -1,0 +1,1 @@
+--rulebook strict-rules.yaml returns.schema.yaml

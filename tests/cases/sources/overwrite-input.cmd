@@ -1,0 +1,1 @@
+-o returns.schema.yaml returns.schema.yaml

@@ -1,0 +1,1 @@
+--format sarif returns.schema.yaml

@@ -1,0 +1,1 @@
+--format json returns.schema.yaml demand.schema.yaml

@@ -1,0 +1,1 @@
+returns.schema.yaml demand.schema.yaml
