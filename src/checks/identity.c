@@ -45,6 +45,24 @@ static const char *clip(kn_arena *a, const char *s, size_t max)
     return kn_printf(a, "%.*s...", (int)max, s);
 }
 
+/* True when a rulebook position names a real file (the built-in rulebook
+ * is compiled in: its positions name no file a reader or SARIF can open). */
+static bool in_real_file(const kn_pos *p)
+{
+    return p && p->file && p->file[0] != '(' && p->line > 0;
+}
+
+/* Adds the note that shows where a rulebook pattern comes from. */
+static void note_pattern(const cx *x, kn_diag *d, const kn_pos *pattern_pos, const kn_column *c, const char *words)
+{
+    if (in_real_file(pattern_pos)) {
+        kn_diag_note(x->ctx->sink, d, pattern_pos, "%s", words);
+    } else if (pattern_pos) {
+        kn_diag_note(x->ctx->sink, d, &c->key->pos, "%s (the built-in rulebook, rules/default.yaml line %u)", words,
+                     (unsigned)pattern_pos->line);
+    }
+}
+
 /* Matches a rulebook pattern against a column's name or description.  A
  * match that hits a limit is reported at the value (bad-pattern, with the
  * pattern's place in the rulebook) and counts as no match. */
@@ -63,11 +81,9 @@ static bool rulebook_match(const cx *x, kn_regex *re, const char *pattern, const
                               "the rulebook pattern '%s' could not be checked against '%s': %s", clip(a, pattern, 60),
                               clip(a, text, 60), kn_regex_problem(re));
     kn_diag_key(x->ctx->sink, d, "limit %s", pattern);
-    if (pattern_pos) {
-        kn_diag_note(x->ctx->sink, d, pattern_pos,
-                     "the pattern is defined here; nested quantifiers such as (a+)+ backtrack without end on "
-                     "long values and should be rewritten");
-    }
+    note_pattern(x, d, pattern_pos, c,
+                 "the pattern is defined here; nested quantifiers such as (a+)+ backtrack without end on long "
+                 "values and should be rewritten");
     return false;
 }
 
@@ -553,7 +569,8 @@ static void check_suspicious(const cx *x, const kn_column *c)
                                       "feature '%s' has a %s that suggests a value known only later ('%s'): %s",
                                       c->name, on_name ? "name" : "description", hit, nr->why);
             kn_diag_key(sink, d, "%s %s", on_name ? "name" : "description", nr->pattern);
-            kn_diag_note(sink, d, &nr->pos, "the rulebook's pattern '%s'", clip(x->ctx->arena, nr->pattern, 80));
+            note_pattern(x, d, &nr->pos, c,
+                         kn_printf(x->ctx->arena, "the rulebook's pattern '%s'", clip(x->ctx->arena, nr->pattern, 80)));
             kn_diag_note(sink, d, &c->key->pos,
                          "if '%s' is in fact settled by the moment, declare when it is known and waive this "
                          "finding with the reason",
