@@ -126,7 +126,7 @@ void *kn_alloc(kn_arena *a, size_t size)
         }
         n->used = 0;
         n->size = want;
-        if (want > CHUNK_SIZE / 4 && c) {
+        if (size > CHUNK_SIZE / 4 && c) {
             /* A large block goes behind the current chunk so the chunk's
              * remaining space is still used by small allocations. */
             n->next = c->next;
