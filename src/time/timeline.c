@@ -72,6 +72,7 @@ typedef struct scratch {
     size_t *pred, *cnt, *queue, *stamp;
     bool *inq, *seen;
     size_t token;
+    size_t work; /* relaxations tried by the negative-cycle searches so far */
 } scratch;
 
 static size_t ev_index(const kn_timeline *t, const kn_event *e)
@@ -317,6 +318,7 @@ static cycle_result find_cycle(kn_timeline *t, scratch *sc, kn_contradiction *ou
                     len++;
                 }
             }
+            sc->work++;
             if (--budget == 0) {
                 return pred_cycle_any(t, sc, out, ids) ? CYCLE : CYCLE_UNLOCATED;
             }
@@ -349,7 +351,10 @@ static size_t latest_step(const kn_contradiction *c)
 static void find_contradictions(kn_timeline *t, scratch *sc)
 {
     t->cyc = kn_alloc_array(t->arena, MAX_CONTRADICTIONS + 1, sizeof *t->cyc);
-    while (t->n_cyc < MAX_CONTRADICTIONS) {
+    /* All the searches together stay within a few times events x
+     * constraints, however many contradictions a hostile file holds. */
+    size_t limit = sat_mul(sat_mul(t->n_ev + 1, t->n_edges + 1), 4);
+    while (t->n_cyc < MAX_CONTRADICTIONS && sc->work < limit) {
         kn_contradiction c = {0};
         size_t *ids = NULL;
         cycle_result r = find_cycle(t, sc, &c, &ids);

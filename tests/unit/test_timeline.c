@@ -19,6 +19,7 @@
 #include <string.h>
 
 #include "../../src/checks/checks.h"
+#include "../../src/docs/docs.h"
 #include "../../src/time/timeline.h"
 
 #define MIN KN_US_PER_MIN
@@ -1041,6 +1042,74 @@ static void test_huge_lags_do_not_overflow(void **state)
     assert_true(kn_timeline_contradictory(t));
 }
 
+
+/* --- the text report ----------------------------------------------------- */
+
+static char *report(kn_timeline *t)
+{
+    char *buf = NULL;
+    size_t len = 0;
+    FILE *f = open_memstream(&buf, &len);
+    assert_non_null(f);
+    kn_timeline_write_text(f, W->s, t);
+    fclose(f);
+    char *copy = kn_strdup(W->a, buf);
+    free(buf);
+    return copy;
+}
+
+static void test_text_report_aligned(void **state)
+{
+    (void)state;
+    parcel p = parcel_events();
+    moment(p.dispatch);
+    W->s->dataset = "parcel_eta";
+    known_col("order_value", p.order);
+    known_col("delivery_rating", p.delivered);
+    kn_column *label = known_col("late", p.delivered);
+    label->role = KN_ROLE_TARGET;
+    kn_timeline *t = solve(false);
+    char *out = report(t);
+    assert_contains(out, "Timeline of 'parcel_eta': moment 'dispatch'");
+    assert_contains(out, "  event           earliest   latest\n");
+    assert_contains(out, "  order_placed    -3d        -30min\n");
+    assert_contains(out, "  dispatch        0s         0s       the moment\n");
+    assert_contains(out, "  delivered       +2h 10min  +10d 6h\n");
+    assert_contains(out, "  order_value      feature  -3d        -30min   available         known at order_placed\n");
+    assert_contains(out, "  delivery_rating  feature  +2h 10min  +10d 6h  after the moment  known at delivered\n");
+    assert_contains(out, "  late             target");
+    /* no trailing blanks */
+    assert_null(strstr(out, " \n"));
+}
+
+static void test_text_report_escapes_names(void **state)
+{
+    (void)state;
+    kn_event *m = ev("dis\x1b[2Jpatch");
+    moment(m);
+    known_col("bell\a", m);
+    kn_timeline *t = solve(false);
+    char *out = report(t);
+    assert_null(strchr(out, '\x1b'));
+    assert_null(strchr(out, '\a'));
+    assert_contains(out, "dis\\e[2Jpatch");
+}
+
+static void test_text_report_contradiction(void **state)
+{
+    (void)state;
+    kn_event *a = ev("oven_on");
+    kn_event *b = ev("oven_off");
+    after(b, a, HOUR, 2 * HOUR);
+    before(b, a, 0, INF);
+    moment(a);
+    char *out = report(solve(false));
+    assert_contains(out, "contradict each other (1 contradiction)");
+    assert_contains(out, "'oven_off' is not after 'oven_on' (events.oven_off.before)");
+    assert_null(strstr(out, "Events, relative"));
+    assert_contains(report(NULL), "does not name a defined event");
+}
+
 int main(void)
 {
 #define T(f) cmocka_unit_test_setup_teardown(f, setup, teardown)
@@ -1079,6 +1148,9 @@ int main(void)
         T(test_range_words),
         T(test_no_moment_no_timeline),
         T(test_huge_lags_do_not_overflow),
+        T(test_text_report_aligned),
+        T(test_text_report_escapes_names),
+        T(test_text_report_contradiction),
     };
 #undef T
     return cmocka_run_group_tests(tests, NULL, NULL);
