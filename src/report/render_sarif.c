@@ -59,6 +59,14 @@ static void put_uri(FILE *out, const char *path)
     fputc('"', out);
 }
 
+/* Positions inside text compiled into knowable (the built-in rulebook,
+ * whose display name the loader writes in parentheses) name no file that
+ * a code host could show; such locations keep their message only. */
+static bool in_a_file(const kn_pos *p)
+{
+    return p->file[0] && p->file[0] != '(';
+}
+
 static void put_physical(FILE *out, int indent, const kn_pos *p)
 {
     fprintf(out, "%*s\"physicalLocation\": {\n", indent, "");
@@ -129,7 +137,7 @@ static void put_result(FILE *out, const kn_diag *d, bool last)
     fprintf(out, "          \"level\": \"%s\",\n          ", level_of(d->severity));
     put_text(out, "message", d->message);
     fputs(",\n", out);
-    if (d->pos.file[0]) {
+    if (in_a_file(&d->pos)) {
         fputs("          \"locations\": [\n            {\n", out);
         put_physical(out, 14, &d->pos);
         fputs("\n            }\n          ],\n", out);
@@ -139,7 +147,7 @@ static void put_result(FILE *out, const kn_diag *d, bool last)
         for (size_t i = 0; i < d->n_notes; i++) {
             const kn_note *n = &d->notes[i];
             fprintf(out, "            {\n              \"id\": %zu,\n", i + 1);
-            if (n->pos.file[0]) {
+            if (in_a_file(&n->pos)) {
                 put_physical(out, 14, &n->pos);
                 fputs(",\n", out);
             }

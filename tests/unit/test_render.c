@@ -111,6 +111,9 @@ static void sarif_uris_are_relative_and_encoded(void **state)
     fixture *f = *state;
     push(f, "./team a/c:d%.yaml", 7, "x", "m");
     push(f, "/abs/path.yaml", 0, "y", "whole file");
+    kn_diag *d = push(f, "b.yaml", 9, "z", "with a note in compiled-in text");
+    kn_pos builtin = {"(built-in rules/default.yaml)", 12, 3, 0};
+    kn_diag_note(f->s, d, &builtin, "the rule that asks for it");
     kn_sink_finish(f->s);
     char *out = render(kn_render_sarif, f, false);
     assert_non_null(strstr(out, "\"uri\": \"team%20a/c%3Ad%25.yaml\""));
@@ -119,6 +122,9 @@ static void sarif_uris_are_relative_and_encoded(void **state)
     /* Line 0 means the whole file: no region at all. */
     assert_null(strstr(out, "\"startLine\": 0"));
     assert_non_null(strstr(out, "\"columnKind\": \"unicodeCodePoints\""));
+    /* Text compiled into knowable has no file to point at: message only. */
+    assert_null(strstr(out, "built-in"));
+    assert_non_null(strstr(out, "\"message\": {\"text\": \"the rule that asks for it\"}"));
     free(out);
 }
 
