@@ -118,7 +118,7 @@ static void analyse(kn_ctx *ctx, kn_schema *s, const kn_options *o)
     kn_check_availability(ctx, s, t);
     kn_check_provenance(ctx, s);
     kn_check_identity(ctx, s, t);
-    /* preparation (src/checks/preparation.c) */
+    kn_check_preparation(ctx, s, t);
     /* data checks with o->data (src/data/) */
 }
 
