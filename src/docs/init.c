@@ -167,12 +167,12 @@ static void infer(colstat *c, kn_regex *id_names)
     }
     c->timestamp = c->type == KN_TYPE_TIMESTAMP || c->type == KN_TYPE_DATE;
 
-    /* Nearly unique: at least 95% of the sampled values distinct, over a
+    /* Nearly unique: at least 98% of the sampled values distinct, over a
      * sample large enough to mean something; only for codes and whole
      * numbers (unique measurements and instants are common). */
     bool code_like = c->type == KN_TYPE_TEXT || c->type == KN_TYPE_CATEGORY ||
                      (c->type == KN_TYPE_NUMBER && c->not_integer == 0);
-    bool unique = c->offered >= 20 && 100 * c->distinct >= 95 * c->offered;
+    bool unique = c->offered >= 20 && 100 * c->distinct >= 98 * c->offered;
     if (id_names && c->len && c->type != KN_TYPE_BOOLEAN && !c->timestamp &&
         !(c->type == KN_TYPE_NUMBER && c->not_integer)) {
         c->identifier_by_name = kn_regex_match(id_names, c->name, c->len, NULL) == KN_MATCH_FOUND;

@@ -24,6 +24,7 @@ import csv
 import io
 import json
 import os
+import random
 import subprocess
 import sys
 import tempfile
@@ -150,6 +151,23 @@ def main():
         for f in sorted(os.listdir(HERE)):
             if f.endswith(".csv"):
                 roundtrip(exe, os.path.join(HERE, f), tmp)
+        # Seeded random header names from an alphabet of what YAML and CSV
+        # treat specially (invented for this test, not data).
+        rng = random.Random(8)
+        alphabet = (list(":#&*!|>'\"%@`{}[],-?~ \t\n\r\\") + ["\x00"[:0] + chr(c) for c in range(1, 32)]
+                    + ["\x7f", "\x85", "\u00e9", "\u2028", "\u2029", "\ufeff", "\ufffe", "\uffff",
+                       "\U0001f6b2", "a", "b", "_", "0"])
+        names = []
+        while len(names) < 300:
+            n = "".join(rng.choice(alphabet) for _ in range(rng.randint(1, 12)))
+            if n not in names:
+                names.append(n)
+        gen = os.path.join(tmp, "random-headers.csv")
+        with open(gen, "w", newline="", encoding="utf-8") as f:
+            w = csv.writer(f, quoting=csv.QUOTE_ALL)
+            w.writerow(names)
+            w.writerow([str(i) for i in range(len(names))])
+        roundtrip(exe, gen, tmp)
         r = run([exe, "init", os.path.join(tmp, "no-such-file.csv")])
         check(r.returncode == 2, "missing file: exit %d, want 2" % r.returncode)
         empty = os.path.join(tmp, "empty.csv")
