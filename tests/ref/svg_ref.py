@@ -97,6 +97,13 @@ def check_schema(exe, schema, tmp):
     check(root.tag == Q + "svg", "%s: root is %s, not svg" % (schema, root.tag))
     check(root.get("version") == "1.1", "%s: version is not 1.1" % schema)
     check(first.startswith(b"<?xml version=\"1.0\" encoding=\"UTF-8\""), "%s: no XML declaration" % schema)
+    if "contradict each other" in report:
+        # Nothing can be placed: the picture must say so instead of drawing rows.
+        words = " ".join(t.text or "" for t in root.iter(Q + "text"))
+        check("contradict each other" in words, "%s: contradiction not stated" % schema)
+        check(not [g for g in root.iter(Q + "g") if g.get("class") in ("event", "column")],
+              "%s: rows drawn for a contradictory timeline" % schema)
+        return
 
     ids = {el.get("id") for el in root.iter() if el.get("id")}
     for el in root.iter():
