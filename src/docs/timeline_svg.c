@@ -55,9 +55,9 @@ typedef enum group {
 
 static const char *const group_heading[G_COUNT] = {
     "Columns available at the moment",
-    "Columns late in some cases (part of the range is after the moment)",
-    "Columns late in every case (after the moment)",
-    "Columns not ordered relative to the moment (no bound)",
+    "Columns late in some cases: part of the range is after the moment",
+    "Columns late in every case: after the moment",
+    "Columns not ordered relative to the moment: no bound",
     "Columns not placed",
 };
 
@@ -592,6 +592,26 @@ static void legend(svg *g, double y)
     fputs("</g>\n", f);
 }
 
+/* "Columns: 5 available, 1 late in some cases, 5 late (one of them the
+ * target), 4 not placed." */
+static const char *summary(svg *g, const kn_schema *s, const kn_timeline *t, const size_t *n_group)
+{
+    const char *out = "Columns:";
+    const char *sep = " ";
+    for (int k = 0; k < G_COUNT; k++) {
+        if (!n_group[k]) {
+            continue;
+        }
+        out = kn_printf(g->a, "%s%s%zu %s", out, sep, n_group[k], group_word[k]);
+        sep = ", ";
+        const kn_column *target = KN_REF_COLUMN(s->prediction.target);
+        if (target && group_of(kn_timeline_column_timing(t, target)) == (group)k) {
+            out = kn_printf(g->a, "%s (%s the target)", out, n_group[k] == 1 ? "that is" : "one of them");
+        }
+    }
+    return s->n_columns ? kn_printf(g->a, "%s.", out) : "No columns.";
+}
+
 /* ---- the document ------------------------------------------------------- */
 
 static void open_doc(FILE *f, double height, const char *title)
@@ -670,10 +690,10 @@ void kn_timeline_write_svg(FILE *out, const kn_schema *s, const kn_timeline *t)
     for (int k = 0; k < G_COUNT; k++) {
         n_headings += n_group[k] > 0;
     }
-    double top = 168;
+    double top = 184;
     double rows_h = HEADING_ROW * (double)n_headings + EVENT_ROW * (double)n_ev_rows +
                     COLUMN_ROW * (double)s->n_columns;
-    double height = top + rows_h + 36;
+    double height = top + rows_h + 52;
     open_doc(out, height, title);
     defs(out);
 
@@ -689,7 +709,8 @@ void kn_timeline_write_svg(FILE *out, const kn_schema *s, const kn_timeline *t)
                "counts as late (strict_moment)."
              : "Time axis on a signed logarithmic scale. A value recorded exactly at the moment "
                "counts as available.");
-    legend(&g, 92);
+    text(out, NAME_X, 84, 12, "font-weight=\"bold\"", summary(&g, s, t, n_group));
+    legend(&g, 108);
 
     double y_axis_label = top - 8;
     double y_plot_top = top - 4, y_plot_bottom = top + rows_h;
@@ -731,6 +752,8 @@ void kn_timeline_write_svg(FILE *out, const kn_schema *s, const kn_timeline *t)
         fputs("</g>\n", out);
     }
 
+    text(out, x0, y_plot_bottom + 30, 11, "text-anchor=\"middle\" font-weight=\"bold\"",
+         kn_printf(g.a, "the moment: %s", cut(g.a, m->name, 40)));
     /* The moment line goes over the rows. */
     fprintf(out,
             "<line class=\"moment\" x1=\"%.1f\" y1=\"%.1f\" x2=\"%.1f\" y2=\"%.1f\" "
