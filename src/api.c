@@ -163,6 +163,11 @@ kn_status kn_check(const kn_options *o, const char *const *schemas, size_t n, FI
     kn_sink_finish(sink);
     /* After finish: waivers and baselines act on the final list.
      * (waivers.c and baseline.c add their calls here.) */
+    for (size_t i = 0; i < n; i++) {
+        if (loaded[i] && loaded[i]->shape_ok) {
+            kn_check_waivers(&ctx, loaded[i]);
+        }
+    }
     if (o->baseline && !kn_baseline_apply(sink, o->baseline, err)) {
         kn_arena_free(a);
         return KN_EXIT_FAILED;
