@@ -61,6 +61,7 @@ struct kn_timeline {
     kn_contradiction *cyc;
     size_t n_cyc;
     bool contradictory;
+    bool search_cut; /* stopped at MAX_CONTRADICTIONS or the work limit */
 
     kn_column_timing *col;
     size_t n_col;
@@ -353,8 +354,13 @@ static void find_contradictions(kn_timeline *t, scratch *sc)
     t->cyc = kn_alloc_array(t->arena, MAX_CONTRADICTIONS + 1, sizeof *t->cyc);
     /* All the searches together stay within a few times events x
      * constraints, however many contradictions a hostile file holds. */
-    size_t limit = sat_mul(sat_mul(t->n_ev + 1, t->n_edges + 1), 4);
-    while (t->n_cyc < MAX_CONTRADICTIONS && sc->work < limit) {
+    size_t limit = sat_mul(sat_mul(t->n_ev + 1, t->n_edges + 1), 8);
+    limit = limit > SIZE_MAX - 1000000 ? SIZE_MAX : limit + 1000000;
+    while (t->n_cyc < MAX_CONTRADICTIONS) {
+        if (sc->work >= limit) {
+            t->search_cut = true;
+            break;
+        }
         kn_contradiction c = {0};
         size_t *ids = NULL;
         cycle_result r = find_cycle(t, sc, &c, &ids);
@@ -369,6 +375,9 @@ static void find_contradictions(kn_timeline *t, scratch *sc)
         c.at = latest_step(&c);
         t->edges[ids[c.at]].off = true;
         t->cyc[t->n_cyc++] = c;
+    }
+    if (t->n_cyc == MAX_CONTRADICTIONS) {
+        t->search_cut = true;
     }
 }
 
@@ -920,6 +929,11 @@ size_t kn_timeline_contradictions(const kn_timeline *t, const kn_contradiction *
 {
     *out = t ? t->cyc : NULL;
     return t ? t->n_cyc : 0;
+}
+
+bool kn_timeline_search_complete(const kn_timeline *t)
+{
+    return t && !t->search_cut;
 }
 
 const kn_event *kn_timeline_moment(const kn_timeline *t)

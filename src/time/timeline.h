@@ -62,6 +62,10 @@ bool kn_timeline_contradictory(const kn_timeline *t);
 /* The contradictions found (arena memory owned by the timeline). */
 size_t kn_timeline_contradictions(const kn_timeline *t, const kn_contradiction **out);
 
+/* False when the search for further contradictions stopped early (after
+ * 100 of them, or at its work limit of about 8 x events x constraints). */
+bool kn_timeline_search_complete(const kn_timeline *t);
+
 const kn_event *kn_timeline_moment(const kn_timeline *t);
 bool kn_timeline_strict(const kn_timeline *t);
 

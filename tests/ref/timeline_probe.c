@@ -10,7 +10,7 @@
  *   consistent
  *   then N lines "LO HI" (t(X) - t(moment); "-inf" / "inf" when unbounded)
  * and otherwise:
- *   contradictions K
+ *   contradictions K complete|cut  (cut: the search stopped early)
  *   then one line per contradiction: "WEIGHT AT E1:U1 E2:U2 ..." where Ei is
  *   the input line (0-based) of each constraint round the cycle and Ui is 1
  *   when its upper bound is used, 0 for its lower bound. */
@@ -113,7 +113,7 @@ int main(void)
     } else {
         const kn_contradiction *cy;
         size_t k = kn_timeline_contradictions(t, &cy);
-        printf("contradictions %zu\n", k);
+        printf("contradictions %zu %s\n", k, kn_timeline_search_complete(t) ? "complete" : "cut");
         for (size_t i = 0; i < k; i++) {
             printf("%" PRId64 " %zu", cy[i].weight, cy[i].at);
             for (size_t j = 0; j < cy[i].n_steps; j++) {

@@ -259,7 +259,9 @@ static void assert_note(const kn_diag *d, const char *text, uint32_t line)
 
 static void assert_contains(const char *s, const char *part)
 {
-    if (!strstr(s, part)) {
+    if (!s) {
+        fail_msg("no text, looking for \"%s\"", part);
+    } else if (!strstr(s, part)) {
         fail_msg("\"%s\" does not contain \"%s\"", s, part);
     }
 }
