@@ -885,16 +885,16 @@ static char *join_path(ld *l, const char *dir, const char *rel)
 
 static char *real_path(ld *l, const char *path)
 {
-    char *r = realpath(path, NULL);
-    if (!r) {
+    /* A buffer of our own: a heap result would leak if the copy below
+     * ran out of memory and jumped. */
+    char r[PATH_MAX];
+    if (!realpath(path, r)) {
         if (errno == ENOMEM) {
             kn_arena_oom(l->a);
         }
         return NULL;
     }
-    char *copy = kn_strdup(l->a, r);
-    free(r);
-    return copy;
+    return kn_strdup(l->a, r);
 }
 
 static bool inside_root(ld *l, const char *real)
