@@ -62,7 +62,7 @@ static const char timeline_help[] =
 static const char init_help[] =
     "usage: knowable init DATA.csv [-o FILE]\n\n"
     "A draft schema from a CSV sample's header and values, with placeholders to fill in.\n";
-static const char json_schema_help[] = "usage: knowable json-schema\n\nA JSON Schema (draft-07) of the schema file format.\n";
+static const char json_schema_help[] = "usage: knowable json-schema [-o FILE]\n\nA JSON Schema (draft-07) of the schema file format.\n";
 
 typedef struct args {
     kn_options opt;
@@ -300,6 +300,12 @@ static kn_status run_timeline(args *ar, FILE *out)
     return st;
 }
 
+static kn_status run_json_schema(args *ar, FILE *out)
+{
+    (void)ar;
+    return kn_json_schema(out, stderr);
+}
+
 static const char *help_for(const char *cmd)
 {
     static const struct {
@@ -390,7 +396,10 @@ static int dispatch(int argc, char **argv)
         }
         return with_output(&ar, run_init);
     }
-    return kn_json_schema(stdout, stderr);
+    if (ar.n_positional) {
+        return bad("%s takes no files", "json-schema");
+    }
+    return with_output(&ar, run_json_schema);
 }
 
 int main(int argc, char **argv)
