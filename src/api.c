@@ -111,7 +111,6 @@ static bool write_baseline(kn_arena *a, const kn_sink *sink, const kn_options *o
  * family of rules adds its one call here, in pipeline order. */
 static void analyse(kn_ctx *ctx, kn_schema *s, const kn_options *o)
 {
-    (void)o;
     /* timeline + availability (src/time/timeline.c, src/checks/availability.c);
      * t is NULL when the moment did not resolve, and later families read it. */
     kn_timeline *t = kn_timeline_solve(ctx->arena, ctx->sink, s, ctx->rulebook->strict_moment);
@@ -119,7 +118,9 @@ static void analyse(kn_ctx *ctx, kn_schema *s, const kn_options *o)
     kn_check_provenance(ctx, s);
     kn_check_identity(ctx, s, t);
     kn_check_preparation(ctx, s, t);
-    /* data checks with o->data (src/data/) */
+    if (o->data) {
+        kn_check_data(ctx, s, o->data, o->max_rows, o->seed);
+    }
 }
 
 kn_status kn_check(const kn_options *o, const char *const *schemas, size_t n, FILE *out, FILE *err)

@@ -39,4 +39,13 @@ void kn_check_preparation(kn_ctx *c, const kn_schema *s, const kn_timeline *t);
  * waiver-without-reason, waiver-expired, waiver-unused. */
 void kn_check_waivers(kn_ctx *c, kn_schema *s);
 
+/* data.c: `check --data` - the schema against one CSV file (SPEC §4.7):
+ * column-not-in-schema, column-not-in-data, value-mismatch, csv-malformed,
+ * lone-feature-separates, missingness-predicts, identifier-segment-predicts,
+ * timestamp-after-moment, rows-shared-across-split, entity-in-both-splits,
+ * small-quasi-identifier-groups.  Reads csv_path once; the statistics run
+ * on a reservoir sample of at most max_rows rows (0: 1,000,000) drawn with
+ * seed.  An unreadable file is reported and marks the sink fatal. */
+void kn_check_data(kn_ctx *c, const kn_schema *s, const char *csv_path, long long max_rows, uint64_t seed);
+
 #endif
