@@ -63,6 +63,10 @@ typedef struct loader {
     kn_node *root;
     bool failed;
     size_t documents;
+    /* The last mark turned into an offset: marks arrive in document order,
+     * so walking on from it keeps a long line from costing its length for
+     * every node on it. */
+    size_t last_line, last_col, last_off;
 } loader;
 
 static void index_lines(loader *ld)
@@ -85,14 +89,19 @@ static void index_lines(loader *ld)
 }
 
 /* The one place where libyaml's 0-based marks become 1-based positions. */
-static kn_pos mark_pos(const loader *ld, yaml_mark_t m)
+static kn_pos mark_pos(loader *ld, yaml_mark_t m)
 {
     kn_pos p;
     p.file = ld->display;
     p.line = (uint32_t)(m.line + 1);
     p.col = (uint32_t)(m.column + 1);
     size_t off = m.line < ld->ln.n ? ld->ln.start[m.line] : ld->len;
-    for (size_t c = 0; c < m.column && off < ld->len && ld->buf[off] != '\n'; c++) {
+    size_t c = 0;
+    if (m.line == ld->last_line && m.column >= ld->last_col && ld->last_off > off) {
+        c = ld->last_col;
+        off = ld->last_off;
+    }
+    for (; c < m.column && off < ld->len && ld->buf[off] != '\n'; c++) {
         unsigned char b = (unsigned char)ld->buf[off++];
         if (b >= 0xc0) {
             while (off < ld->len && ((unsigned char)ld->buf[off] & 0xc0) == 0x80) {
@@ -101,6 +110,9 @@ static kn_pos mark_pos(const loader *ld, yaml_mark_t m)
         }
     }
     p.offset = off;
+    ld->last_line = m.line;
+    ld->last_col = c;
+    ld->last_off = off;
     return p;
 }
 
