@@ -130,6 +130,13 @@ static void term_escape(const char *s, size_t len, emit_fn emit, void *ctx)
             if (n == 2 && c == 0xc2 && p[i + 1] < 0xa0) {
                 n = 0;
             }
+            /* Bidirectional controls (U+200E, U+200F, U+202A..U+202E,
+             * U+2066..U+2069) reorder the text a reader sees. */
+            if (n == 3 && c == 0xe2 &&
+                ((p[i + 1] == 0x80 && (p[i + 2] == 0x8e || p[i + 2] == 0x8f || (p[i + 2] >= 0xaa && p[i + 2] <= 0xae))) ||
+                 (p[i + 1] == 0x81 && p[i + 2] >= 0xa6 && p[i + 2] <= 0xa9))) {
+                n = 0;
+            }
             if (n) {
                 emit(ctx, s + i, n);
                 i += n;
