@@ -60,8 +60,9 @@ static const char timeline_help[] =
     "Each event's range relative to the moment, then each column's availability and verdict.\n"
     "--svg FILE also draws the picture.\n";
 static const char init_help[] =
-    "usage: knowable init DATA.csv [-o FILE]\n\n"
-    "A draft schema from a CSV sample's header and values, with placeholders to fill in.\n";
+    "usage: knowable init DATA.csv [-o FILE] [--max-rows N]\n\n"
+    "A draft schema from a CSV sample's header and values (the first N rows, default\n"
+    "10,000), with placeholders to fill in.\n";
 static const char json_schema_help[] = "usage: knowable json-schema [-o FILE]\n\nA JSON Schema (draft-07) of the schema file format.\n";
 
 typedef struct args {

@@ -88,7 +88,8 @@ static const char *offset(kn_arena *a, int64_t v)
     return kn_printf(a, "%s%s", v > 0 ? "+" : "", b);
 }
 
-static const char *verdict_words(const kn_column_timing *T)
+static const char *verdict_words(kn_arena *a, const kn_timeline *t, const kn_column *c,
+                                 const kn_column_timing *T)
 {
     if (!T || !T->ordered) {
         return "not placed: on or behind a derivation cycle";
@@ -104,6 +105,14 @@ static const char *verdict_words(const kn_column_timing *T)
         return "unordered: no upper bound relative to the moment";
     case KN_VERDICT_UNKNOWN:
         break;
+    }
+    /* A derived column is placed only when all its inputs are. */
+    for (size_t i = 0; i < c->n_derived; i++) {
+        const kn_column *in = KN_REF_COLUMN(c->derived_from[i]);
+        const kn_column_timing *TI = in ? kn_timeline_column_timing(t, in) : NULL;
+        if (!TI || !TI->computed) {
+            return kn_printf(a, "not placed: its input '%s' is not placed", esc(a, c->derived_from[i].name));
+        }
     }
     bool any = false;
     for (int p = 0; p < KN_PART_COUNT; p++) {
@@ -222,7 +231,7 @@ void kn_timeline_write_text(FILE *out, const kn_schema *s, const kn_timeline *t)
             lo = offset(a, T->range.lo);
             hi = offset(a, T->range.hi);
         }
-        const char *row[] = {esc(a, c->name), kn_role_name(c->role), lo, hi, verdict_words(T),
+        const char *row[] = {esc(a, c->name), kn_role_name(c->role), lo, hi, verdict_words(a, t, c, T),
                              basis(a, c, T)};
         add_row(&co, row);
     }
