@@ -137,6 +137,25 @@ static void default_names_catch_post_outcome_shapes(void **state)
     assert_int_equal(kn_regex_match(f->rb->identifier_code, "idle_minutes", 12, NULL), KN_MATCH_NONE);
 }
 
+/* The example house rulebook that ships with the project (tests run in
+ * tests/, so it is one folder up). */
+static void strict_rulebook_loads_over_the_default(void **state)
+{
+    fx *f = *state;
+    assert_true(kn_rulebook_load_default(f->rb, f->a, f->sink));
+    size_t base = f->rb->n_names;
+    assert_true(kn_rulebook_load(f->rb, f->a, f->sink, "../rules/strict.yaml"));
+    assert_false(kn_sink_fatal(f->sink));
+    assert_true(f->rb->strict_moment);
+    assert_true(f->rb->n_names > base);
+    assert_int_equal(f->rb->severity[rule("suspicious-name")], KN_SEV_ERROR);
+    assert_true(f->rb->require_feature_known);
+    assert_true(f->rb->require_feature_source);
+    assert_true(f->rb->require_external[KN_SF_VERSION]);
+    assert_int_equal(f->rb->thresholds.min_group_size, 10);
+    assert_int_equal(kn_regex_match(f->rb->identifier_code, "frame_vin", 9, NULL), KN_MATCH_FOUND);
+}
+
 static void severity_override_and_off(void **state)
 {
     fx *f = *state;
@@ -351,6 +370,7 @@ int main(void)
     const struct CMUnitTest tests[] = {
         cmocka_unit_test_setup_teardown(default_rulebook_loads, setup, teardown),
         cmocka_unit_test_setup_teardown(default_names_catch_post_outcome_shapes, setup, teardown),
+        cmocka_unit_test_setup_teardown(strict_rulebook_loads_over_the_default, setup, teardown),
         cmocka_unit_test_setup_teardown(severity_override_and_off, setup, teardown),
         cmocka_unit_test_setup_teardown(later_file_overrides_earlier_and_names_accumulate, setup, teardown),
         cmocka_unit_test_setup_teardown(extends_is_read_first, setup, teardown),
