@@ -44,7 +44,15 @@ typedef struct reg {
     size_t n_schemas;
     kn_name_map *by_id; /* "real path\nname" -> entry */
     kn_vec *entries;    /* entry *, in order of first appearance */
+    entry **of_source;  /* the current schema's sources (by index) -> entry */
+    size_t walked;      /* inputs visited tracing derived columns */
+    bool truncated;     /* the tracing stopped at DERIVED_WALK_LIMIT */
 } reg;
+
+/* Tracing derived columns visits each input once per derived column; long
+ * chains make that quadratic, so the walk is capped (a register of a
+ * hostile schema must still be written in bounded time). */
+#define DERIVED_WALK_LIMIT 20000000u
 
 /* ---- gathering ---- */
 
@@ -91,22 +99,25 @@ static void direct_sources(const kn_column *c, const kn_source **out)
 }
 
 /* A derived column takes its provenance from its inputs: walk them
- * (iteratively, each column once per derived column) and record a use of
+ * (iteratively, each column once per derived column: seen[] holds the
+ * stamp of the derived column that last reached it) and record a use of
  * every source met, naming the input that brings it in. */
-static void derived_uses(reg *r, size_t si, const kn_schema *s, const kn_column *c, unsigned char *seen,
-                         const kn_column **stack)
+static void derived_uses(reg *r, size_t si, const kn_column *c, size_t *seen, const kn_column **stack)
 {
-    memset(seen, 0, s->n_columns);
-    size_t top = 0;
-    seen[c->index] = 1;
+    size_t top = 0, stamp = c->index + 1;
+    seen[c->index] = stamp;
     for (size_t i = 0; i < c->n_derived; i++) {
         const kn_column *in = KN_REF_COLUMN(c->derived_from[i]);
-        if (in && !seen[in->index]) {
-            seen[in->index] = 1;
+        if (in && seen[in->index] != stamp) {
+            seen[in->index] = stamp;
             stack[top++] = in;
         }
     }
     while (top) {
+        if (++r->walked > DERIVED_WALK_LIMIT) {
+            r->truncated = true;
+            return;
+        }
         const kn_column *in = stack[--top];
         const kn_source *direct[2];
         direct_sources(in, direct);
@@ -114,7 +125,7 @@ static void derived_uses(reg *r, size_t si, const kn_schema *s, const kn_column 
             if (!direct[k]) {
                 continue;
             }
-            entry *e = entry_of(r, s, direct[k]);
+            entry *e = r->of_source[direct[k]->index];
             /* This column's uses of e are the newest ones: look back only
              * as far as they go. */
             bool dup = false;
@@ -131,8 +142,8 @@ static void derived_uses(reg *r, size_t si, const kn_schema *s, const kn_column 
         }
         for (size_t i = 0; i < in->n_derived; i++) {
             const kn_column *next = KN_REF_COLUMN(in->derived_from[i]);
-            if (next && !seen[next->index]) {
-                seen[next->index] = 1;
+            if (next && seen[next->index] != stamp) {
+                seen[next->index] = stamp;
                 stack[top++] = next;
             }
         }
@@ -143,10 +154,11 @@ static void gather(reg *r)
 {
     for (size_t si = 0; si < r->n_schemas; si++) {
         const kn_schema *s = r->schemas[si];
+        r->of_source = kn_alloc_array(r->a, s->n_sources ? s->n_sources : 1, sizeof(entry *));
         for (size_t i = 0; i < s->n_sources; i++) {
-            entry_of(r, s, s->sources[i]);
+            r->of_source[i] = entry_of(r, s, s->sources[i]);
         }
-        unsigned char *seen = kn_alloc(r->a, s->n_columns ? s->n_columns : 1);
+        size_t *seen = kn_alloc_array(r->a, s->n_columns ? s->n_columns : 1, sizeof *seen);
         const kn_column **stack = kn_alloc_array(r->a, s->n_columns ? s->n_columns : 1, sizeof *stack);
         for (size_t i = 0; i < s->n_columns; i++) {
             const kn_column *c = s->columns[i];
@@ -157,8 +169,8 @@ static void gather(reg *r)
             if (joined) {
                 add_use(r, s, joined, (use){si, c, VIA_JOIN, true, NULL});
             }
-            if (c->n_derived) {
-                derived_uses(r, si, s, c, seen, stack);
+            if (c->n_derived && !r->truncated) {
+                derived_uses(r, si, c, seen, stack);
             }
         }
     }
@@ -486,6 +498,11 @@ static void write_markdown(FILE *out, reg *r)
     size_t n_int = count_kind(r, KN_SOURCE_INTERNAL, NULL);
     fprintf(out, "%zu external source%s (%zu with provenance missing), %zu internal source%s.\n\n", n_ext,
             n_ext == 1 ? "" : "s", incomplete, n_int, n_int == 1 ? "" : "s");
+    if (r->truncated) {
+        fputs("**Derived columns were traced only in part:** the schemas chain more derivations than the register "
+              "follows; the columns listed as derived are not all of them.\n\n",
+              out);
+    }
     for (int pass = 0; pass < 2; pass++) {
         bool ext = pass == 0;
         fputs(ext ? "## External sources\n\n" : "## Internal sources\n\n", out);
@@ -646,7 +663,7 @@ static void write_json(FILE *out, reg *r)
             any = true;
         }
     }
-    fputs("],\n \"sources\": [", out);
+    fprintf(out, "], \"derived_fully_traced\": %s,\n \"sources\": [", r->truncated ? "false" : "true");
     bool first = true;
     for (int pass = 0; pass < 2; pass++) {
         for (size_t i = 0; i < r->entries->len; i++) {
@@ -705,8 +722,13 @@ kn_status kn_sources(const kn_options *o, const char *const *schemas, size_t n, 
     kn_sink *sink = kn_sink_new(a);
     kn_render_opts ro = {o->color, o->quiet, false, n};
     kn_rulebook *rb = rulebook(a, sink, o, n ? schemas[0] : NULL);
-    reg r = {a, rb, kn_alloc_array(a, n ? n : 1, sizeof(kn_schema *)), n, kn_names_new(a),
-             kn_vec_new(a, sizeof(entry *))};
+    reg r = {0};
+    r.a = a;
+    r.rb = rb;
+    r.schemas = kn_alloc_array(a, n ? n : 1, sizeof(kn_schema *));
+    r.n_schemas = n;
+    r.by_id = kn_names_new(a);
+    r.entries = kn_vec_new(a, sizeof(entry *));
     bool ok = !kn_sink_fatal(sink);
     if (ok) {
         kn_rulebook_apply(rb, sink);
