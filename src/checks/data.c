@@ -425,6 +425,20 @@ static void setup_segments(dx *x, col *c)
     }
 }
 
+/* The `columns:` key of the schema's main file. */
+static const kn_pos *columns_pos(const kn_schema *s)
+{
+    if (s->root && s->root->kind == KN_NODE_MAP) {
+        for (size_t i = 0; i < s->root->u.map.n; i++) {
+            const kn_node *k = s->root->u.map.pairs[i].key;
+            if (k->kind == KN_NODE_SCALAR && strcmp(k->u.scalar.text, "columns") == 0) {
+                return &k->pos;
+            }
+        }
+    }
+    return &s->root->pos;
+}
+
 /* Matches the header against the schema and lays out the sample's cells.
  * Returns false when nothing can be checked. */
 static void read_header(dx *x, const kn_csv_row *h)
@@ -461,8 +475,8 @@ static void read_header(dx *x, const kn_csv_row *h)
             } else {
                 d = kn_diag_push(x->sink, KN_R_COLUMN_NOT_IN_SCHEMA, &p, name,
                                  "the data has a column '%s' that the schema does not declare", name);
-                kn_diag_note(x->sink, d, &s->root->pos,
-                             "declare it under columns: in %s (role: excluded if the model never sees it)", s->path);
+                kn_diag_note(x->sink, d, columns_pos(s),
+                             "declare it under columns: (role: excluded if the model never sees it)");
             }
             kn_diag_key(x->sink, d, "undeclared %s", name);
             continue;
@@ -1240,8 +1254,8 @@ static void split_checks(dx *x, const sample *sm)
                                       o.shared_keys, ec->name, o.test_rows_shared, o.test_rows);
             kn_diag_key(x->sink, d, "entity both %s", ec->name);
             kn_diag_note(x->sink, d, kn_column_pos(ec, s->prediction.entity.node),
-                         "the entity is named here; split by it (split.method: group) so one entity's rows stay on "
-                         "one side");
+                         "the entity is named here; assign the split by entity (split.method: group) so that each "
+                         "entity's rows stay on one side");
             note_sample(x, d, sm->n);
         }
     }
