@@ -467,7 +467,9 @@ static const kn_explain_text texts[] = {
     },
     EXPLAIN(UNUSED_SOURCE) = {
         "A source defined under sources that no column uses, neither as its "
-        "source nor as a join's source.",
+        "source nor as a join's source. Only sources defined in the schema's "
+        "own file are reported: a shared register included by many schemas "
+        "holds sources that other tables use.",
         "It does no harm to the model, but the sources register then lists data "
         "the table does not contain, or a column that reads from this source "
         "fails to say so and misses its latency. It is a note so that registers "
