@@ -17,21 +17,7 @@
 
 static kn_rulebook *rulebook(kn_arena *a, kn_sink *sink, const kn_options *o, const char *schema)
 {
-    kn_rulebook *rb = kn_rulebook_new(a);
-    if (!kn_rulebook_load_default(rb, a, sink)) {
-        return rb;
-    }
-    if (o->n_rulebooks) {
-        for (size_t i = 0; i < o->n_rulebooks; i++) {
-            kn_rulebook_load(rb, a, sink, o->rulebooks[i]);
-        }
-    } else {
-        char *found = kn_rulebook_discover(a, schema);
-        if (found) {
-            kn_rulebook_load(rb, a, sink, found);
-        }
-    }
-    return rb;
+    return kn_rulebook_for(a, sink, o->rulebooks, o->n_rulebooks, schema);
 }
 
 kn_status kn_timeline_report(const kn_options *o, const char *schema, FILE *out, FILE *svg,

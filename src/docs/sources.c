@@ -682,21 +682,7 @@ static void write_json(FILE *out, reg *r)
 
 static kn_rulebook *rulebook(kn_arena *a, kn_sink *sink, const kn_options *o, const char *schema)
 {
-    kn_rulebook *rb = kn_rulebook_new(a);
-    if (!kn_rulebook_load_default(rb, a, sink)) {
-        return rb;
-    }
-    if (o->n_rulebooks) {
-        for (size_t i = 0; i < o->n_rulebooks; i++) {
-            kn_rulebook_load(rb, a, sink, o->rulebooks[i]);
-        }
-    } else if (schema) {
-        char *found = kn_rulebook_discover(a, schema);
-        if (found) {
-            kn_rulebook_load(rb, a, sink, found);
-        }
-    }
-    return rb;
+    return kn_rulebook_for(a, sink, o->rulebooks, o->n_rulebooks, schema);
 }
 
 kn_status kn_sources(const kn_options *o, const char *const *schemas, size_t n, FILE *out, FILE *err)
