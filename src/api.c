@@ -39,25 +39,6 @@ static const char *today(kn_arena *a, const kn_options *o)
     return kn_printf(a, "%04d-%02d-%02d", tm.tm_year + 1900, tm.tm_mon + 1, tm.tm_mday);
 }
 
-/* Loads the built-in rulebook and then the user's (or the discovered one). */
-static kn_rulebook *load_rulebook(kn_arena *a, kn_sink *sink, const kn_options *o, const char *first_schema)
-{
-    kn_rulebook *rb = kn_rulebook_new(a);
-    if (!kn_rulebook_load_default(rb, a, sink)) {
-        return rb;
-    }
-    if (o->n_rulebooks) {
-        for (size_t i = 0; i < o->n_rulebooks; i++) {
-            kn_rulebook_load(rb, a, sink, o->rulebooks[i]);
-        }
-    } else if (first_schema) {
-        char *found = kn_rulebook_discover(a, first_schema);
-        if (found) {
-            kn_rulebook_load(rb, a, sink, found);
-        }
-    }
-    return rb;
-}
 
 static void render(FILE *out, kn_sink *sink, const kn_options *o, size_t n_schemas)
 {
@@ -139,7 +120,7 @@ kn_status kn_check(const kn_options *o, const char *const *schemas, size_t n, FI
     kn_arena_set_oom(a, &oom);
 
     kn_sink *sink = kn_sink_new(a);
-    kn_rulebook *rb = load_rulebook(a, sink, o, n ? schemas[0] : NULL);
+    kn_rulebook *rb = kn_rulebook_for(a, sink, o->rulebooks, o->n_rulebooks, n ? schemas[0] : NULL);
     kn_status status = KN_EXIT_OK;
     if (kn_sink_fatal(sink)) {
         kn_sink_finish(sink);
@@ -187,6 +168,30 @@ kn_status kn_check(const kn_options *o, const char *const *schemas, size_t n, FI
     return status;
 }
 
+/* Writes text indented by two spaces, wrapped at 78 columns. */
+static void put_wrapped(FILE *out, const char *text)
+{
+    const size_t width = 76;
+    const char *p = text;
+    while (*p) {
+        while (*p == ' ') {
+            p++;
+        }
+        size_t len = strlen(p), take = len;
+        if (len > width) {
+            take = width;
+            while (take > 0 && p[take] != ' ') {
+                take--;
+            }
+            if (take == 0) {
+                take = width;
+            }
+        }
+        fprintf(out, "  %.*s\n", (int)take, p);
+        p += take;
+    }
+}
+
 kn_status kn_explain(const char *rule, FILE *out, FILE *err)
 {
     kn_rule r;
@@ -207,9 +212,14 @@ kn_status kn_explain(const char *rule, FILE *out, FILE *err)
     }
     const kn_rule_info *info = kn_rule_get(r);
     const kn_explain_text *t = kn_rule_explain(r);
-    fprintf(out, "%s (%s, default %s)\n\n%s.\n\n", info->id, info->family, kn_severity_name(info->severity),
-            info->summary);
-    fprintf(out, "What it finds\n  %s\n\nWhy it matters\n  %s\n\nExample\n", t->finds, t->why);
+    fprintf(out, "%s (%s, default %s)\n\n  %c%s.\n", info->id, info->family, kn_severity_name(info->severity),
+            info->summary[0] >= 'a' && info->summary[0] <= 'z' ? info->summary[0] - 'a' + 'A' : info->summary[0],
+            info->summary + 1);
+    fputs("\nWhat it finds\n", out);
+    put_wrapped(out, t->finds);
+    fputs("\nWhy it matters\n", out);
+    put_wrapped(out, t->why);
+    fputs("\nExample\n", out);
     const char *p = t->example;
     while (*p) {
         const char *nl = strchr(p, '\n');
@@ -217,7 +227,8 @@ kn_status kn_explain(const char *rule, FILE *out, FILE *err)
         fprintf(out, "    %.*s\n", (int)len, p);
         p += len + (nl ? 1 : 0);
     }
-    fprintf(out, "\nHow to fix it\n  %s\n", t->fix);
+    fputs("\nHow to fix it\n", out);
+    put_wrapped(out, t->fix);
     return KN_EXIT_OK;
 }
 
@@ -236,7 +247,7 @@ kn_status kn_rules(const kn_options *o, FILE *out, FILE *err)
     }
     kn_arena_set_oom(a, &oom);
     kn_sink *sink = kn_sink_new(a);
-    kn_rulebook *rb = load_rulebook(a, sink, o, NULL);
+    kn_rulebook *rb = kn_rulebook_for(a, sink, o->rulebooks, o->n_rulebooks, NULL);
     if (kn_sink_fatal(sink)) {
         kn_sink_finish(sink);
         render(out, sink, o, 0);
