@@ -1123,6 +1123,20 @@ static void resolve(ld *l, namespace_ *ns, kn_ref *r, const char *context)
     }
 }
 
+/* resolve() for the references of one named object: the context words
+ * ("column 'name'") are only spelt out when a reference fails, so a clean
+ * schema of many columns pays one lookup per reference and nothing more. */
+static void resolve_in(ld *l, namespace_ *ns, kn_ref *r, const char *what, const char *name)
+{
+    if (!r->name) {
+        return;
+    }
+    r->target = kn_names_get(ns->map, r->name);
+    if (!r->target) {
+        resolve(l, ns, r, kn_printf(l->a, "%s '%s'", what, esc(l, name)));
+    }
+}
+
 static void mark_event(kn_ref *r)
 {
     if (r->target) {
@@ -1178,24 +1192,23 @@ static void resolve_all(ld *l)
             !c->proxy_of.name && !c->n_waivers) {
             continue;
         }
-        const char *ctx = kn_printf(l->a, "column '%s'", esc(l, c->name));
-        resolve(l, &ev, &c->known, ctx);
+        resolve_in(l, &ev, &c->known, "column", c->name);
         mark_event(&c->known);
-        resolve(l, &so, &c->source, ctx);
+        resolve_in(l, &so, &c->source, "column", c->name);
         mark_source(&c->source);
         for (size_t j = 0; j < c->join.n_keys; j++) {
-            resolve(l, &co, &c->join.keys[j], ctx);
+            resolve_in(l, &co, &c->join.keys[j], "column", c->name);
         }
-        resolve(l, &ev, &c->join.as_of, ctx);
+        resolve_in(l, &ev, &c->join.as_of, "column", c->name);
         mark_event(&c->join.as_of);
-        resolve(l, &so, &c->join.source, ctx);
+        resolve_in(l, &so, &c->join.source, "column", c->name);
         mark_source(&c->join.source);
         for (size_t j = 0; j < c->n_derived; j++) {
-            resolve(l, &co, &c->derived_from[j], ctx);
+            resolve_in(l, &co, &c->derived_from[j], "column", c->name);
         }
-        resolve(l, &ev, &c->window.anchor, ctx);
+        resolve_in(l, &ev, &c->window.anchor, "column", c->name);
         mark_event(&c->window.anchor);
-        resolve(l, &co, &c->proxy_of, ctx);
+        resolve_in(l, &co, &c->proxy_of, "column", c->name);
         for (size_t j = 0; j < c->n_waivers; j++) {
             kn_waiver *w = &c->waivers[j];
             if (!w->rule_ref.name) {
@@ -1205,6 +1218,7 @@ static void resolve_all(ld *l)
             if (kn_rule_find(w->rule_ref.name, strlen(w->rule_ref.name), &r)) {
                 w->rule = (int)r;
             } else {
+                const char *ctx = kn_printf(l->a, "column '%s'", esc(l, c->name));
                 const char *ids[KN_RULE_COUNT];
                 for (size_t k = 0; k < KN_RULE_COUNT; k++) {
                     ids[k] = kn_rule_get((kn_rule)k)->id;

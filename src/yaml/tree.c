@@ -562,8 +562,18 @@ bool kn_node_is_null(const kn_node *n)
     if (!n->plain) {
         return false;
     }
+    /* By length first: this runs for every value the loader looks at. */
     const char *s = n->u.scalar.text;
-    return !*s || !strcmp(s, "~") || !strcmp(s, "null") || !strcmp(s, "Null") || !strcmp(s, "NULL");
+    switch (n->u.scalar.len) {
+    case 0:
+        return true;
+    case 1:
+        return s[0] == '~';
+    case 4:
+        return !strcmp(s, "null") || !strcmp(s, "Null") || !strcmp(s, "NULL");
+    default:
+        return false;
+    }
 }
 
 bool kn_node_bool(const kn_node *n, bool *out)
