@@ -1,0 +1,20 @@
+#!/bin/sh
+# tests/bench/run.sh BUILD - the speed benchmarks of SPEC §8, one command:
+# generates schemas of 1,000, 10,000 and 100,000 columns (300 events, 100
+# sources), builds tests/bench/bare_parse.c (a bare libyaml event parse)
+# next to BUILD's knowable, and compares `knowable check` with the bare parse
+# on each file: best wall time and CPU time of several runs, and instruction
+# counts under valgrind --tool=callgrind (repeatable).  Then the timeline
+# solver on 100 to 10,000 events (BUILD/tests/timeline_bench) when it is
+# built.  Prints a Markdown table.  BENCH_CALLGRIND=0 skips callgrind;
+# BENCH_SIZES="1000 10000" picks the sizes.
+set -eu
+build=${1:?usage: tests/bench/run.sh BUILD}
+here=$(cd "$(dirname "$0")" && pwd)
+out=$build/bench
+mkdir -p "$out"
+cc=${CC:-cc}
+# shellcheck disable=SC2046
+$cc -O2 -std=c11 -o "$out/bare_parse" "$here/bare_parse.c" $(pkg-config --cflags --libs yaml-0.1)
+exec /usr/bin/python3 "$here/bench.py" "$build/knowable" "$out/bare_parse" "$out" "$here/gen_schema.py" \
+    "$build/tests/timeline_bench"
