@@ -492,7 +492,9 @@ bool kn_read_file(kn_arena *a, const char *path, size_t max, char **out,
             kn_defer_run(a, d);
             return false;
         }
-        cap = (size_t)st.st_size + 1;
+        /* One byte for the NUL and one so that reading the whole file does
+         * not look like running out of room (which would double the buffer). */
+        cap = (size_t)st.st_size + 2;
     }
     char *buf = kn_alloc(a, cap);
     for (;;) {
