@@ -30,7 +30,11 @@ while [ "$n" -le "$limit" ]; do
     KNOWABLE_FAIL_ALLOC=$n "$knowable" "$@" >"$tmp/out" 2>"$tmp/err"
     rc=$?
     if [ "$rc" = "$want" ] && cmp -s "$tmp/out" "$tmp/want.out" && cmp -s "$tmp/err" "$tmp/want.err"; then
-        echo "allocations 1..$((n - 1)) each failed cleanly (exit 2, \"out of memory\"); $((n - 1)) allocations in all, $bad problems"
+        if [ "$bad" = 0 ]; then
+            echo "each of the $((n - 1)) allocations failed in turn, cleanly (exit 2, \"out of memory\", no sanitizer report)"
+        else
+            echo "$bad of the $((n - 1)) allocation failures did not end cleanly"
+        fi
         [ "$bad" = 0 ] && [ "$n" -gt 1 ] && exit 0
         [ "$n" -gt 1 ] || echo "no allocation was counted: is this an -Dalloc_fail=true build?"
         exit 1
