@@ -67,6 +67,7 @@ typedef struct loader {
      * so walking on from it keeps a long line from costing its length for
      * every node on it. */
     size_t last_line, last_col, last_off;
+    bool ascii; /* no byte >= 0x80: libyaml's mark index is the byte offset */
 } loader;
 
 static void index_lines(loader *ld)
@@ -95,6 +96,11 @@ static kn_pos mark_pos(loader *ld, yaml_mark_t m)
     p.file = ld->display;
     p.line = (uint32_t)(m.line + 1);
     p.col = (uint32_t)(m.column + 1);
+    if (ld->ascii) {
+        /* libyaml counts characters in mark.index; in ASCII they are bytes. */
+        p.offset = m.index < ld->len ? m.index : ld->len;
+        return p;
+    }
     size_t off = m.line < ld->ln.n ? ld->ln.start[m.line] : ld->len;
     size_t c = 0;
     if (m.line == ld->last_line && m.column >= ld->last_col && ld->last_off > off) {
@@ -384,6 +390,13 @@ kn_node *kn_yaml_parse(kn_arena *a, kn_sink *sink, const char *display,
     ld.len = len;
     ld.lim = lim;
     index_lines(&ld);
+    ld.ascii = true;
+    for (size_t i = 0; i < len; i++) {
+        if ((unsigned char)buf[i] >= 0x80) {
+            ld.ascii = false;
+            break;
+        }
+    }
     ld.frames = kn_vec_new(a, sizeof(frame));
     ld.children = kn_vec_new(a, sizeof(kn_node *));
     ld.weights = kn_vec_new(a, sizeof(uint64_t));
