@@ -1,13 +1,21 @@
 /* arena.c - bump allocation in chunks, deferred cleanups, and the single
  * out-of-memory path (a longjmp to the entry point's handler). */
+#define _DEFAULT_SOURCE /* madvise's MADV_HUGEPAGE */
 #include "arena.h"
 
 #include <stdint.h>
 #include <stdio.h>
 #include <stdlib.h>
 #include <string.h>
+#include <sys/mman.h>
 
 #define CHUNK_SIZE (64u * 1024u)
+/* Chunks double from CHUNK_SIZE up to this size, so that a large schema
+ * takes a few big chunks; those are aligned to (and asked for as) 2 MiB
+ * pages where the system offers them, which spares one page fault per
+ * 4 KiB touched (half the time of a 100,000-column check went to those). */
+#define BIG_CHUNK_SIZE (4u * 1024u * 1024u)
+#define HUGE_PAGE (2u * 1024u * 1024u)
 
 typedef struct chunk {
     struct chunk *next;
@@ -19,6 +27,7 @@ struct kn_arena {
     chunk *head;
     kn_defer *defers;
     jmp_buf *oom;
+    size_t next_chunk; /* size of the next regular chunk (0: CHUNK_SIZE) */
 };
 
 #ifdef KN_ALLOC_FAIL
@@ -50,6 +59,25 @@ static void *sys_malloc(size_t n)
         return NULL;
     }
     return malloc(n);
+}
+
+/* A chunk of n bytes; one of BIG_CHUNK_SIZE is aligned for huge pages. */
+static void *sys_chunk(size_t n, bool big)
+{
+    if (!big) {
+        return sys_malloc(n);
+    }
+    if (kn_alloc_fail_now()) {
+        return NULL;
+    }
+    void *p = NULL;
+    if (posix_memalign(&p, HUGE_PAGE, n) != 0) {
+        return NULL;
+    }
+#ifdef MADV_HUGEPAGE
+    (void)madvise(p, n & ~(size_t)(HUGE_PAGE - 1), MADV_HUGEPAGE);
+#endif
+    return p;
 }
 
 static void *sys_realloc(void *p, size_t n)
@@ -116,16 +144,21 @@ void *kn_alloc(kn_arena *a, size_t size)
     }
     chunk *c = a->head;
     if (!c || c->size - c->used < size) {
-        size_t want = size > CHUNK_SIZE / 4 ? size : CHUNK_SIZE;
+        size_t regular = a->next_chunk ? a->next_chunk : CHUNK_SIZE;
+        size_t want = size > CHUNK_SIZE / 4 ? size : regular - sizeof(chunk);
         if (want > SIZE_MAX - sizeof(chunk)) {
             kn_arena_oom(a);
         }
-        chunk *n = sys_malloc(sizeof(chunk) + want);
+        bool big = size <= CHUNK_SIZE / 4 && regular == BIG_CHUNK_SIZE;
+        chunk *n = sys_chunk(sizeof(chunk) + want, big);
         if (!n) {
             kn_arena_oom(a);
         }
         n->used = 0;
         n->size = want;
+        if (size <= CHUNK_SIZE / 4 && regular < BIG_CHUNK_SIZE) {
+            a->next_chunk = regular * 2;
+        }
         if (size > CHUNK_SIZE / 4 && c) {
             /* A large block goes behind the current chunk so the chunk's
              * remaining space is still used by small allocations. */
