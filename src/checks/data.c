@@ -24,6 +24,7 @@
 #include <stdio.h>
 #include <stdlib.h>
 #include <string.h>
+#include <sys/stat.h>
 
 #define PCRE2_CODE_UNIT_WIDTH 8
 #include <pcre2.h>
@@ -48,6 +49,7 @@ enum {
     N_BINS = 10,                /* quantile bins of a numeric feature against a categorical target */
     HEAD_CELLS = 5,             /* line, row hash, entity hash, QI hash, target|side|flags */
     EXAMPLE_MAX = 40,           /* bytes of a value quoted in a message */
+    TABLE_MAX = 1 << 22,        /* contingency cells counted in an array */
 };
 
 #define ID_OTHER UINT32_MAX /* a value first seen after its dictionary filled up */
@@ -55,6 +57,91 @@ enum {
 static const char privacy_note[] =
     "this is a screening aid, not a privacy review: what protection the data needs is decided by applicable law "
     "and your organisation's privacy practice";
+
+/* ---- hashing and numbers on the hot path -------------------------------- */
+
+/* The splitmix64 finaliser: every output bit depends on every input bit. */
+static uint64_t mix64(uint64_t h)
+{
+    h ^= h >> 30;
+    h *= 0xbf58476d1ce4e5b9ull;
+    h ^= h >> 27;
+    h *= 0x94d049bb133111ebull;
+    h ^= h >> 31;
+    return h;
+}
+
+/* One multiply-fold step: the 128-bit product of a and b, high half
+ * xor low half (the mixing step of wyhash, Wang Yi, 2019). */
+static uint64_t mum(uint64_t a, uint64_t b)
+{
+    __extension__ typedef unsigned __int128 u128;
+    u128 r = (u128)a * b;
+    return (uint64_t)(r >> 64) ^ (uint64_t)r;
+}
+
+/* A 64-bit hash of s[0..len) chained onto h, eight bytes per multiply (the
+ * byte-wise FNV-1a of kn_stats_hash cost a tenth of the time budget on
+ * wide files).  The length goes in too, so ("ab", "c") and ("a", "bc")
+ * differ when fields are chained.  Callers finish with mix64. */
+static uint64_t hash_chain(uint64_t h, const char *s, size_t len)
+{
+    h = mum(h ^ 0xa0761d6478bd642full, len ^ 0xe7037ed1a0b428dbull);
+    while (len >= 8) {
+        uint64_t w;
+        memcpy(&w, s, 8);
+        h = mum(h ^ w, 0x8ebc6af09c88c6e3ull);
+        s += 8;
+        len -= 8;
+    }
+    if (len) {
+        uint64_t w = 0;
+        memcpy(&w, s, len);
+        h = mum(h ^ w, 0x589965cc75374cc3ull);
+    }
+    return h;
+}
+
+/* Plain decimals of up to 15 digits ([+-]digits[.digits]) converted
+ * exactly: the digits form an integer below 2^53 and 10^k (k <= 15) is
+ * exact, so one IEEE division gives the correctly rounded value, the same
+ * double strtod gives (Clinger's fast path).  Anything else, or a text
+ * with more digits, goes to kn_value_number. */
+static kn_value_status parse_number(const char *s, size_t len, double *out)
+{
+    static const double pow10[] = {1e0, 1e1, 1e2, 1e3, 1e4, 1e5, 1e6, 1e7, 1e8, 1e9, 1e10, 1e11, 1e12, 1e13, 1e14, 1e15};
+    size_t i = 0;
+    bool neg = false;
+    if (len && (s[0] == '-' || s[0] == '+')) {
+        neg = s[0] == '-';
+        i = 1;
+    }
+    uint64_t m = 0;
+    size_t digits = 0, frac = 0, int_digits = 0;
+    bool dot = false;
+    for (; i < len; i++) {
+        unsigned char ch = (unsigned char)s[i];
+        if (ch >= '0' && ch <= '9') {
+            m = m * 10 + (ch - '0');
+            digits++;
+            if (dot) {
+                frac++;
+            } else {
+                int_digits++;
+            }
+        } else if (ch == '.' && !dot) {
+            dot = true;
+        } else {
+            break;
+        }
+    }
+    if (i == len && int_digits > 0 && digits <= 15 && (!dot || frac > 0)) {
+        double v = (double)m / pow10[frac];
+        *out = neg ? -v : v;
+        return KN_VALUE_OK;
+    }
+    return kn_value_number(s, len, out);
+}
 
 /* ---- a capped dictionary: value text -> id (1-based; 0 is "missing") ---- */
 
@@ -110,7 +197,7 @@ static void dict_grow(dict *d)
 /* The id of s[0..len), adding it while the caps allow; ID_OTHER after. */
 static uint32_t dict_id(dict *d, const char *s, size_t len)
 {
-    uint64_t h = kn_stats_hash(s, len, 0);
+    uint64_t h = mix64(hash_chain(0, s, len));
     size_t mask = d->cap - 1, i = h & mask;
     for (; d->slots[i]; i = (i + 1) & mask) {
         uint32_t id = d->slots[i];
@@ -217,12 +304,10 @@ typedef struct dx {
     pcre2_match_context *mctx;
 
     /* the sample */
-    size_t stride; /* cells per row */
-    size_t n_cells; /* head cells included; the missing bits follow */
+    size_t n_cells; /* head cells included */
     size_t n_mbits;
-    uint64_t *rows;
+    struct store *store; /* the sample, one array per cell */
     size_t rows_cap, max_kept;
-    kn_defer *rows_defer;
     kn_reservoir rs;
     uint64_t seen;   /* good rows */
     long long max_rows;
@@ -289,14 +374,41 @@ static void note_sample(dx *x, kn_diag *d, size_t kept)
     }
 }
 
-static uint64_t *row_at(dx *x, size_t slot)
+/* The sample, column by column (the statistics read one column at a time,
+ * so a column's values sit together in memory): cell[i][slot] for the head
+ * cells and the features' cells, miss[b][slot] for the missing flags.  The
+ * arrays are heap memory, grown together and freed by one deferred
+ * cleanup. */
+typedef struct store {
+    uint64_t **cell;
+    size_t n_cells;
+    uint8_t **miss;
+    size_t n_miss;
+} store;
+
+#define CELL(x, i, slot) ((x)->store->cell[i][slot])
+#define MISS(x, b, slot) ((x)->store->miss[b][slot])
+
+static void free_store(void *p)
 {
-    return x->rows + slot * x->stride;
+    store *st = p;
+    for (size_t i = 0; i < st->n_cells; i++) {
+        free(st->cell[i]);
+    }
+    for (size_t i = 0; i < st->n_miss; i++) {
+        free(st->miss[i]);
+    }
 }
 
-static void free_ptr(void *p)
+static void store_new(dx *x)
 {
-    free(p);
+    store *st = kn_alloc(x->a, sizeof *st);
+    st->cell = kn_alloc_array(x->a, x->n_cells, sizeof *st->cell);
+    st->miss = kn_alloc_array(x->a, x->n_mbits + 1, sizeof *st->miss);
+    st->n_cells = x->n_cells;
+    st->n_miss = x->n_mbits;
+    kn_arena_defer(x->a, free_store, st);
+    x->store = st;
 }
 
 static void free_mctx(void *p)
@@ -314,9 +426,11 @@ static void close_file(void *p)
     fclose(p);
 }
 
-/* Makes room for sample slot `slot`, doubling the row store. */
-static uint64_t *reserve(dx *x, size_t slot)
+/* Makes room for sample slot `slot`, doubling every array.  The slot is not
+ * cleared: read_row writes every cell of a kept row. */
+static void reserve(dx *x, size_t slot)
 {
+    store *st = x->store;
     if (slot >= x->rows_cap) {
         size_t cap = x->rows_cap ? x->rows_cap * 2 : 1024;
         if (cap > x->max_kept) {
@@ -325,35 +439,26 @@ static uint64_t *reserve(dx *x, size_t slot)
         if (cap <= slot) {
             cap = slot + 1;
         }
-        x->rows = kn_xrealloc(x->a, x->rows, cap * x->stride * sizeof *x->rows);
-        x->rows_defer->ptr = x->rows;
+        for (size_t i = 0; i < st->n_cells; i++) {
+            st->cell[i] = kn_xrealloc(x->a, st->cell[i], cap * sizeof **st->cell);
+        }
+        for (size_t i = 0; i < st->n_miss; i++) {
+            st->miss[i] = kn_xrealloc(x->a, st->miss[i], cap);
+        }
         x->rows_cap = cap;
     }
-    return row_at(x, slot);
 }
 
-static double cell_d(const uint64_t *r, size_t i)
+static double cell_d(const dx *x, size_t i, size_t slot)
 {
     double d;
-    memcpy(&d, &r[i], sizeof d);
+    memcpy(&d, &CELL(x, i, slot), sizeof d);
     return d;
 }
 
-static void set_cell_d(uint64_t *r, size_t i, double d)
+static void set_cell_d(dx *x, size_t i, size_t slot, double d)
 {
-    memcpy(&r[i], &d, sizeof d);
-}
-
-static bool missing_bit(const dx *x, const uint64_t *r, size_t b)
-{
-    const uint64_t *bits = r + x->n_cells;
-    return (bits[b / 64] >> (b % 64)) & 1u;
-}
-
-static void set_missing_bit(const dx *x, uint64_t *r, size_t b)
-{
-    uint64_t *bits = r + x->n_cells;
-    bits[b / 64] |= (uint64_t)1 << (b % 64);
+    memcpy(&CELL(x, i, slot), &d, sizeof d);
 }
 
 /* Head cell 4: target id (bits 0-31), split side (32-39: 0 none, 1 train,
@@ -364,14 +469,14 @@ static void set_missing_bit(const dx *x, uint64_t *r, size_t b)
 #define H_QI 3
 #define H_META 4
 
-static uint32_t meta_target(const uint64_t *r)
+static uint32_t meta_target(const dx *x, size_t slot)
 {
-    return (uint32_t)(r[H_META] & UINT32_MAX);
+    return (uint32_t)(CELL(x, H_META, slot) & UINT32_MAX);
 }
 
-static unsigned meta_side(const uint64_t *r)
+static unsigned meta_side(const dx *x, size_t slot)
 {
-    return (unsigned)((r[H_META] >> 32) & 0xff);
+    return (unsigned)((CELL(x, H_META, slot) >> 32) & 0xff);
 }
 
 /* ---- header ------------------------------------------------------------- */
@@ -566,7 +671,7 @@ static void read_header(dx *x, const kn_csv_row *h)
                        (c->decl->type == KN_TYPE_TIMESTAMP || c->decl->type == KN_TYPE_DATE);
         }
     }
-    x->stride = x->n_cells + (x->n_mbits + 63) / 64;
+    store_new(x);
 }
 
 /* ---- one row -------------------------------------------------------------- */
@@ -597,7 +702,7 @@ static bool is_digit(unsigned char ch)
 }
 
 /* Stores the letter and digit runs of an identifier value. */
-static void store_runs(col *c, uint64_t *r, const char *s, size_t len)
+static void store_runs(dx *x, col *c, size_t slot, const char *s, size_t len)
 {
     size_t i = 0, n = 0;
     while (i < len && n < MAX_RUNS) {
@@ -613,14 +718,16 @@ static void store_runs(col *c, uint64_t *r, const char *s, size_t len)
         }
         segment *g = &c->segs[n++];
         g->kinds |= letter ? 1u : 2u;
-        if (r) {
-            r[g->cell] = dict_id(g->d, s + i, j - i);
+        if (slot != KN_RESERVOIR_SKIP) {
+            CELL(x, g->cell, slot) = dict_id(g->d, s + i, j - i);
         }
         i = j;
     }
 }
 
-static void check_value(dx *x, col *c, const kn_csv_row *row, uint64_t *r, int64_t moment_us, bool have_moment)
+/* Checks one field over every row and stores it when the row is kept
+ * (slot != KN_RESERVOIR_SKIP). */
+static void check_value(dx *x, col *c, const kn_csv_row *row, size_t slot, int64_t moment_us, bool have_moment)
 {
     const kn_column *k = c->decl;
     const kn_csv_field *f = &row->fields[c->field];
@@ -630,7 +737,7 @@ static void check_value(dx *x, col *c, const kn_csv_row *row, uint64_t *r, int64
     size_t text_len = f->len;
     switch (k->type) {
     case KN_TYPE_NUMBER:
-        st = kn_value_number(f->ptr, f->len, &num);
+        st = parse_number(f->ptr, f->len, &num);
         break;
     case KN_TYPE_BOOLEAN: {
         bool b;
@@ -660,7 +767,7 @@ static void check_value(dx *x, col *c, const kn_csv_row *row, uint64_t *r, int64
     default:
         st = kn_value_is_missing(f->ptr, f->len) ? KN_VALUE_MISSING : KN_VALUE_OK;
         if (st == KN_VALUE_OK && c->use == USE_EITHER) {
-            if (kn_value_number(f->ptr, f->len, &num) != KN_VALUE_OK) {
+            if (parse_number(f->ptr, f->len, &num) != KN_VALUE_OK) {
                 c->not_numbers++;
             }
         }
@@ -688,32 +795,35 @@ static void check_value(dx *x, col *c, const kn_csv_row *row, uint64_t *r, int64
         }
     }
 
+    if (c->segs && slot != KN_RESERVOIR_SKIP) {
+        for (size_t i = 0; i < c->n_segs; i++) {
+            CELL(x, c->segs[i].cell, slot) = 0;
+        }
+    }
     if (c->segs && st != KN_VALUE_MISSING) {
         if (c->runs) {
-            store_runs(c, r, f->ptr, f->len);
-        } else if (matched && r) {
+            store_runs(x, c, slot, f->ptr, f->len);
+        } else if (matched && slot != KN_RESERVOIR_SKIP) {
             PCRE2_SIZE *ov = pcre2_get_ovector_pointer(c->md);
             uint32_t n_ov = pcre2_get_ovector_count(c->md);
             for (size_t i = 0; i < c->n_segs; i++) {
                 segment *g = &c->segs[i];
                 if (g->group < n_ov && ov[2 * g->group] != PCRE2_UNSET) {
-                    r[g->cell] = dict_id(g->d, f->ptr + ov[2 * g->group], ov[2 * g->group + 1] - ov[2 * g->group]);
+                    CELL(x, g->cell, slot) = dict_id(g->d, f->ptr + ov[2 * g->group], ov[2 * g->group + 1] - ov[2 * g->group]);
                 }
             }
         }
     }
 
-    if (!r || !c->feature) {
+    if (slot == KN_RESERVOIR_SKIP || !c->feature) {
         return;
     }
-    if (st == KN_VALUE_MISSING) {
-        set_missing_bit(x, r, c->mbit);
-    }
+    MISS(x, c->mbit, slot) = st == KN_VALUE_MISSING;
     if (c->use == USE_NUMBER || c->use == USE_EITHER) {
-        set_cell_d(r, c->num_cell, st == KN_VALUE_OK ? num : NAN);
+        set_cell_d(x, c->num_cell, slot, st == KN_VALUE_OK ? num : NAN);
     }
     if (c->use == USE_CATEGORY || c->use == USE_EITHER) {
-        r[c->cat_cell] = st == KN_VALUE_MISSING ? 0 : dict_id(c->d, text, text_len);
+        CELL(x, c->cat_cell, slot) = st == KN_VALUE_MISSING ? 0 : dict_id(c->d, text, text_len);
     }
 }
 
@@ -763,11 +873,12 @@ static void read_row(dx *x, const kn_csv_row *row)
 {
     x->seen++;
     size_t slot = kn_reservoir_offer(&x->rs);
-    uint64_t *r = NULL;
     if (slot != KN_RESERVOIR_SKIP) {
-        r = reserve(x, slot);
-        memset(r, 0, x->stride * sizeof *r);
-        r[H_LINE] = row->line;
+        reserve(x, slot);
+        CELL(x, H_LINE, slot) = row->line;
+        CELL(x, H_ROW, slot) = 0;
+        CELL(x, H_ENTITY, slot) = 0;
+        CELL(x, H_QI, slot) = 0;
     }
     int64_t moment_us = 0;
     bool have_moment = false;
@@ -776,9 +887,9 @@ static void read_row(dx *x, const kn_csv_row *row)
         have_moment = kn_value_timestamp(f->ptr, f->len, &moment_us, NULL) == KN_VALUE_OK;
     }
     for (size_t i = 0; i < x->n_cols; i++) {
-        check_value(x, &x->cols[i], row, r, moment_us, have_moment);
+        check_value(x, &x->cols[i], row, slot, moment_us, have_moment);
     }
-    if (!r) {
+    if (slot == KN_RESERVOIR_SKIP) {
         return;
     }
     uint64_t meta = 0;
@@ -803,29 +914,27 @@ static void read_row(dx *x, const kn_csv_row *row)
         const kn_csv_field *f = &row->fields[x->entity->field];
         if (!kn_value_is_missing(f->ptr, f->len)) {
             meta |= (uint64_t)1 << 40;
-            r[H_ENTITY] = kn_stats_hash(f->ptr, f->len, 0);
+            CELL(x, H_ENTITY, slot) = mix64(hash_chain(0, f->ptr, f->len));
         }
     }
     if (x->n_qi) {
-        kn_row_hash rh;
-        kn_row_hash_init(&rh);
+        uint64_t h = 0;
         for (size_t i = 0; i < x->n_qi; i++) {
             const kn_csv_field *f = &row->fields[x->qi_fields[i]];
-            kn_row_hash_field(&rh, f->ptr, f->len);
+            h = hash_chain(h, f->ptr, f->len);
         }
-        r[H_QI] = kn_row_hash_final(&rh);
+        CELL(x, H_QI, slot) = mix64(h);
         meta |= (uint64_t)1 << 41;
     }
     if (x->n_features) {
-        kn_row_hash rh;
-        kn_row_hash_init(&rh);
+        uint64_t h = 0;
         for (size_t i = 0; i < x->n_features; i++) {
             const kn_csv_field *f = &row->fields[x->feature_fields[i]];
-            kn_row_hash_field(&rh, f->ptr, f->len);
+            h = hash_chain(h, f->ptr, f->len);
         }
-        r[H_ROW] = kn_row_hash_final(&rh);
+        CELL(x, H_ROW, slot) = mix64(h);
     }
-    r[H_META] = meta;
+    CELL(x, H_META, slot) = meta;
 }
 
 /* ---- findings over every row ------------------------------------------- */
@@ -835,8 +944,13 @@ static void report_csv_problem(dx *x, const kn_csv_error *e, bool fatal)
     kn_pos p = csv_pos(x, e->line, e->column > UINT32_MAX ? 0 : (uint32_t)e->column);
     char *msg = kn_csv_error_message(x->a, e);
     if (fatal) {
-        kn_diag *d = kn_diag_push(x->sink, KN_R_CSV_MALFORMED, &p, "", "%s; the rest of the file is not read", msg);
+        kn_diag *d = e->problem == KN_CSV_NO_HEADER
+                         ? kn_diag_push(x->sink, KN_R_CSV_MALFORMED, &p, "", "%s", msg)
+                         : kn_diag_push(x->sink, KN_R_CSV_MALFORMED, &p, "", "%s; the rest of the file is not read", msg);
         kn_diag_key(x->sink, d, "fatal %d", (int)e->problem);
+        if (e->problem == KN_CSV_READ_FAILED) {
+            kn_sink_mark_fatal(x->sink);
+        }
         return;
     }
     bad_kind *b = &x->bad[e->problem];
@@ -925,15 +1039,20 @@ typedef struct sample {
     bool binary, categorical;
     uint32_t positive; /* binary: the positive class's id */
     bool *pos;         /* per labelled row */
-    const char **ytext;
+    uint32_t *yid;
+    double *score;     /* scratch, one per labelled row */
+    uint32_t *xid;     /* scratch */
+    uint64_t *pairs;   /* scratch */
+    uint32_t *table;   /* scratch contingency table */
+    size_t table_cap;
 } sample;
 
 static dx *sort_ctx;
 
 static int by_line(const void *pa, const void *pb)
 {
-    uint64_t a = row_at(sort_ctx, *(const size_t *)pa)[H_LINE];
-    uint64_t b = row_at(sort_ctx, *(const size_t *)pb)[H_LINE];
+    uint64_t a = CELL(sort_ctx, H_LINE, *(const size_t *)pa);
+    uint64_t b = CELL(sort_ctx, H_LINE, *(const size_t *)pb);
     return (a > b) - (a < b);
 }
 
@@ -960,7 +1079,10 @@ static void prepare_sample(dx *x, sample *sm)
     }
     sm->labelled = kn_alloc_array(x->a, sm->n + 1, sizeof *sm->labelled);
     sm->pos = kn_alloc_array(x->a, sm->n + 1, sizeof *sm->pos);
-    sm->ytext = kn_alloc_array(x->a, sm->n + 1, sizeof *sm->ytext);
+    sm->yid = kn_alloc_array(x->a, sm->n + 1, sizeof *sm->yid);
+    sm->score = kn_alloc_array(x->a, sm->n + 1, sizeof *sm->score);
+    sm->xid = kn_alloc_array(x->a, sm->n + 1, sizeof *sm->xid);
+    sm->pairs = kn_alloc_array(x->a, sm->n + 1, sizeof *sm->pairs);
     if (dict_levels(x->tdict) == 2) {
         sm->binary = true;
         const dict *t = x->tdict;
@@ -974,13 +1096,12 @@ static void prepare_sample(dx *x, sample *sm)
         sm->categorical = true;
     }
     for (size_t i = 0; i < sm->n; i++) {
-        const uint64_t *r = row_at(x, sm->order[i]);
-        uint32_t y = meta_target(r);
+        uint32_t y = meta_target(x, sm->order[i]);
         if (y == 0 || y == ID_OTHER) {
             continue;
         }
         sm->pos[sm->n_lab] = y == sm->positive;
-        sm->ytext[sm->n_lab] = x->tdict->text[y];
+        sm->yid[sm->n_lab] = y;
         sm->labelled[sm->n_lab++] = sm->order[i];
     }
     if (sm->binary) {
@@ -1010,23 +1131,100 @@ static kn_pos header_pos(const dx *x, const col *c)
     return csv_pos(x, 1, c->hcol);
 }
 
-/* U(target | x) over the labelled rows; x labels come from label(). */
-static bool uncertainty(dx *x, const sample *sm, const char *const *labels, kn_uncertainty *u)
+static int by_u64(const void *pa, const void *pb)
 {
-    kn_contingency *t = kn_contingency_new(x->a, 0);
-    for (size_t i = 0; i < sm->n_lab; i++) {
-        kn_contingency_add(t, labels[i], strlen(labels[i]), sm->ytext[i], strlen(sm->ytext[i]));
-    }
-    return kn_contingency_uncertainty(t, u) && !u->high_cardinality;
+    uint64_t a = *(const uint64_t *)pa, b = *(const uint64_t *)pb;
+    return (a > b) - (a < b);
 }
 
-static void numeric_feature(dx *x, const sample *sm, col *c, const char **labels)
+/* Adds one cell of the contingency table to I(Y; X). */
+static double mi_term(double nxy, double n, double nx, double ny)
+{
+    return nxy / n * (log(nxy) + log(n) - log(nx) - log(ny));
+}
+
+/* The uncertainty coefficient U(target | X) = I(target; X) / H(target)
+ * (Theil's U) over the labelled rows, X given per row as an id below nx:
+ * the same formula as kn_contingency_uncertainty (natural logarithms, I
+ * clamped to [0, H]), counted on ids rather than strings.  Small tables are
+ * counted in an array, large ones by sorting the (x, y) pairs. */
+static bool uncertainty(dx *x, sample *sm, const uint32_t *xid, size_t nx, kn_uncertainty *u)
+{
+    size_t n = sm->n_lab, ny = x->tdict->n;
+    memset(u, 0, sizeof *u);
+    if (n == 0) {
+        return false;
+    }
+    size_t *cx = kn_alloc_array(x->a, nx, sizeof *cx);
+    size_t *cy = kn_alloc_array(x->a, ny, sizeof *cy);
+    for (size_t i = 0; i < n; i++) {
+        cx[xid[i]]++;
+        cy[sm->yid[i]]++;
+    }
+    double dn = (double)n, h_y = 0, mi = 0;
+    for (size_t y = 0; y < ny; y++) {
+        if (cy[y]) {
+            double p = (double)cy[y] / dn;
+            h_y -= p * log(p);
+            u->y_levels++;
+        }
+    }
+    for (size_t i = 0; i < nx; i++) {
+        u->x_levels += cx[i] != 0;
+    }
+    if (nx <= TABLE_MAX / ny) {
+        size_t cells = nx * ny;
+        if (sm->table_cap < cells) {
+            sm->table = kn_alloc_array(x->a, cells, sizeof *sm->table);
+            sm->table_cap = cells;
+        } else {
+            memset(sm->table, 0, cells * sizeof *sm->table);
+        }
+        for (size_t i = 0; i < n; i++) {
+            sm->table[(size_t)xid[i] * ny + sm->yid[i]]++;
+        }
+        for (size_t i = 0; i < cells; i++) {
+            if (sm->table[i]) {
+                mi += mi_term((double)sm->table[i], dn, (double)cx[i / ny], (double)cy[i % ny]);
+            }
+        }
+    } else {
+        for (size_t i = 0; i < n; i++) {
+            sm->pairs[i] = (uint64_t)xid[i] << 32 | sm->yid[i];
+        }
+        qsort(sm->pairs, n, sizeof *sm->pairs, by_u64);
+        for (size_t i = 0; i < n;) {
+            size_t j = i;
+            while (j < n && sm->pairs[j] == sm->pairs[i]) {
+                j++;
+            }
+            mi += mi_term((double)(j - i), dn, (double)cx[sm->pairs[i] >> 32], (double)cy[sm->pairs[i] & UINT32_MAX]);
+            i = j;
+        }
+    }
+    if (h_y < 0) {
+        h_y = 0;
+    }
+    if (mi < 0) {
+        mi = 0;
+    }
+    if (mi > h_y) {
+        mi = h_y;
+    }
+    u->n = n;
+    u->h_y = h_y;
+    u->mi = mi;
+    u->u = h_y > 0 ? mi / h_y : 0.0;
+    return true;
+}
+
+static void numeric_feature(dx *x, sample *sm, col *c)
 {
     const kn_thresholds *th = &x->ctx->rulebook->thresholds;
-    double *score = kn_alloc_array(x->a, sm->n_lab + 1, sizeof *score);
+    double *score = sm->score;
     size_t have = 0;
     for (size_t i = 0; i < sm->n_lab; i++) {
-        score[i] = cell_d(row_at(x, sm->labelled[i]), c->num_cell);
+        score[i] = cell_d(x, c->num_cell, sm->labelled[i]);
         have += !isnan(score[i]);
     }
     if (have == 0) {
@@ -1063,20 +1261,19 @@ static void numeric_feature(dx *x, const sample *sm, col *c, const char **labels
     for (size_t b = 1; b < N_BINS; b++) {
         cut[b - 1] = sorted[(m * b) / N_BINS];
     }
-    static const char *const bins[N_BINS] = {"b0", "b1", "b2", "b3", "b4", "b5", "b6", "b7", "b8", "b9"};
     for (size_t i = 0; i < sm->n_lab; i++) {
         if (isnan(score[i])) {
-            labels[i] = "";
+            sm->xid[i] = 0;
             continue;
         }
         size_t b = 0;
         while (b < N_BINS - 1 && score[i] >= cut[b]) {
             b++;
         }
-        labels[i] = bins[b];
+        sm->xid[i] = (uint32_t)b + 1;
     }
     kn_uncertainty u;
-    if (!uncertainty(x, sm, labels, &u) || u.u < th->uncertainty) {
+    if (!uncertainty(x, sm, sm->xid, N_BINS + 1, &u) || u.u < th->uncertainty) {
         return;
     }
     kn_diag *d = kn_diag_push(x->sink, KN_R_LONE_FEATURE_SEPARATES, &p, c->name,
@@ -1088,18 +1285,18 @@ static void numeric_feature(dx *x, const sample *sm, col *c, const char **labels
     note_sample(x, d, sm->n);
 }
 
-static void categorical_feature(dx *x, const sample *sm, col *c, const char **labels)
+static void categorical_feature(dx *x, sample *sm, col *c)
 {
     const kn_thresholds *th = &x->ctx->rulebook->thresholds;
     if (c->d->full) {
         return;
     }
     for (size_t i = 0; i < sm->n_lab; i++) {
-        uint32_t id = (uint32_t)row_at(x, sm->labelled[i])[c->cat_cell];
-        labels[i] = c->d->text[id];
+        uint32_t id = (uint32_t)CELL(x, c->cat_cell, sm->labelled[i]);
+        sm->xid[i] = id;
     }
     kn_uncertainty u;
-    if (!uncertainty(x, sm, labels, &u) || u.x_levels < 2 || u.n < ROWS_PER_LEVEL * u.x_levels ||
+    if (!uncertainty(x, sm, sm->xid, c->d->n, &u) || u.x_levels < 2 || u.n < ROWS_PER_LEVEL * u.x_levels ||
         u.u < th->uncertainty) {
         return;
     }
@@ -1114,15 +1311,15 @@ static void categorical_feature(dx *x, const sample *sm, col *c, const char **la
     note_sample(x, d, sm->n);
 }
 
-static void missingness(dx *x, const sample *sm, col *c, const char **labels)
+static void missingness(dx *x, sample *sm, col *c)
 {
     const kn_thresholds *th = &x->ctx->rulebook->thresholds;
     size_t miss = 0, miss_pos = 0;
     for (size_t i = 0; i < sm->n_lab; i++) {
-        bool m = missing_bit(x, row_at(x, sm->labelled[i]), c->mbit);
+        bool m = MISS(x, c->mbit, sm->labelled[i]);
         miss += m;
         miss_pos += m && sm->pos[i];
-        labels[i] = m ? "missing" : "present";
+        sm->xid[i] = m;
     }
     if (miss == 0 || miss == sm->n_lab) {
         return;
@@ -1130,22 +1327,29 @@ static void missingness(dx *x, const sample *sm, col *c, const char **labels)
     kn_pos p = header_pos(x, c);
     kn_diag *d;
     if (sm->binary) {
-        double *score = kn_alloc_array(x->a, sm->n_lab, sizeof *score);
+        /* The Mann-Whitney AUC of a 0/1 score in closed form: with p and q
+         * the shares of positives and of negatives that miss the value,
+         * P(pos > neg) + P(tie) / 2 = p (1 - q) + (p q + (1 - p)(1 - q)) / 2
+         * = (1 + p - q) / 2. */
+        size_t n_pos = 0;
         for (size_t i = 0; i < sm->n_lab; i++) {
-            score[i] = labels[i][0] == 'm' ? 1.0 : 0.0;
+            n_pos += sm->pos[i];
         }
-        kn_auc auc;
-        if (!kn_stats_auc(x->a, score, sm->pos, sm->n_lab, &auc) || auc.separation < th->missingness_auc) {
+        double share_pos = (double)miss_pos / (double)n_pos;
+        double share_neg = (double)(miss - miss_pos) / (double)(sm->n_lab - n_pos);
+        double auc = (1.0 + share_pos - share_neg) / 2.0;
+        double separation = auc > 0.5 ? auc : 1.0 - auc;
+        if (separation < th->missingness_auc) {
             return;
         }
         d = kn_diag_push(x->sink, KN_R_MISSINGNESS_PREDICTS, &p, c->name,
                          "whether '%s' is missing predicts %s: AUC of the missing indicator %.3f (threshold %g); "
                          "%zu of %zu rows miss it, %zu of them with %s = %s",
-                         c->name, target_name(x), auc.separation, th->missingness_auc, miss, sm->n_lab, miss_pos,
+                         c->name, target_name(x), separation, th->missingness_auc, miss, sm->n_lab, miss_pos,
                          target_name(x), positive_text(x, sm));
     } else {
         kn_uncertainty u;
-        if (!uncertainty(x, sm, labels, &u) || u.u < th->uncertainty) {
+        if (!uncertainty(x, sm, sm->xid, 2, &u) || u.u < th->uncertainty) {
             return;
         }
         d = kn_diag_push(x->sink, KN_R_MISSINGNESS_PREDICTS, &p, c->name,
@@ -1164,7 +1368,7 @@ static const char *ordinal(kn_arena *a, size_t i)
     return i < sizeof words / sizeof *words ? words[i] : kn_printf(a, "#%zu", i + 1);
 }
 
-static void segments(dx *x, const sample *sm, col *c, const char **labels)
+static void segments(dx *x, sample *sm, col *c)
 {
     const kn_thresholds *th = &x->ctx->rulebook->thresholds;
     for (size_t gi = 0; gi < c->n_segs; gi++) {
@@ -1174,11 +1378,11 @@ static void segments(dx *x, const sample *sm, col *c, const char **labels)
             continue;
         }
         for (size_t i = 0; i < sm->n_lab; i++) {
-            uint32_t id = (uint32_t)row_at(x, sm->labelled[i])[g->cell];
-            labels[i] = id == ID_OTHER ? "" : g->d->text[id];
+            uint32_t id = (uint32_t)CELL(x, g->cell, sm->labelled[i]);
+            sm->xid[i] = id == ID_OTHER ? 0 : id;
         }
         kn_uncertainty u;
-        if (!uncertainty(x, sm, labels, &u) || u.n < ROWS_PER_LEVEL * u.x_levels || u.u < th->segment_uncertainty) {
+        if (!uncertainty(x, sm, sm->xid, g->d->n, &u) || u.n < ROWS_PER_LEVEL * u.x_levels || u.u < th->segment_uncertainty) {
             continue;
         }
         const char *what;
@@ -1214,16 +1418,16 @@ static void split_checks(dx *x, const sample *sm)
     kn_overlap *rows = x->n_features ? kn_overlap_new(x->a) : NULL;
     kn_overlap *ents = x->entity ? kn_overlap_new(x->a) : NULL;
     for (size_t i = 0; i < sm->n; i++) {
-        const uint64_t *r = row_at(x, sm->order[i]);
-        unsigned side = meta_side(r);
+        size_t slot = sm->order[i];
+        unsigned side = meta_side(x, slot);
         if (side == 0) {
             continue;
         }
         if (rows) {
-            kn_overlap_add(rows, r[H_ROW], side == 2, r[H_LINE]);
+            kn_overlap_add(rows, CELL(x, H_ROW, slot), side == 2, CELL(x, H_LINE, slot));
         }
-        if (ents && (r[H_META] >> 40 & 1)) {
-            kn_overlap_add(ents, r[H_ENTITY], side == 2, r[H_LINE]);
+        if (ents && (CELL(x, H_META, slot) >> 40 & 1)) {
+            kn_overlap_add(ents, CELL(x, H_ENTITY, slot), side == 2, CELL(x, H_LINE, slot));
         }
     }
     kn_overlap_result o;
@@ -1272,8 +1476,8 @@ static void kanon(dx *x, const sample *sm)
     }
     kn_groups *g = kn_groups_new(x->a);
     for (size_t i = 0; i < sm->n; i++) {
-        const uint64_t *r = row_at(x, sm->order[i]);
-        kn_groups_add(g, r[H_QI], r[H_LINE]);
+        size_t slot = sm->order[i];
+        kn_groups_add(g, CELL(x, H_QI, slot), CELL(x, H_LINE, slot));
     }
     kn_kanon ka;
     kn_groups_kanon(g, (size_t)k, &ka);
@@ -1307,20 +1511,19 @@ static void statistics(dx *x)
 {
     sample sm = {0};
     prepare_sample(x, &sm);
-    const char **labels = kn_alloc_array(x->a, sm.n + 1, sizeof *labels);
     if (sm.n_lab && (sm.binary || sm.categorical)) {
         for (size_t i = 0; i < x->n_cols; i++) {
             col *c = &x->cols[i];
             if (c->feature) {
                 bool numeric = c->use == USE_NUMBER || (c->use == USE_EITHER && c->not_numbers == 0);
                 if (numeric) {
-                    numeric_feature(x, &sm, c, labels);
+                    numeric_feature(x, &sm, c);
                 } else {
-                    categorical_feature(x, &sm, c, labels);
+                    categorical_feature(x, &sm, c);
                 }
-                missingness(x, &sm, c, labels);
+                missingness(x, &sm, c);
             } else if (c->segs) {
-                segments(x, &sm, c, labels);
+                segments(x, &sm, c);
             }
         }
     }
@@ -1351,6 +1554,13 @@ void kn_check_data(kn_ctx *c, const kn_schema *s, const char *csv_path, long lon
         return;
     }
     fd->ptr = f;
+    struct stat sb;
+    if (fstat(fileno(f), &sb) == 0 && S_ISDIR(sb.st_mode)) {
+        kn_pos p = csv_pos(&x, 0, 0);
+        kn_diag_push(x.sink, KN_R_CSV_MALFORMED, &p, "", "cannot read the data file: it is a folder");
+        kn_sink_mark_fatal(x.sink);
+        return;
+    }
 
     kn_defer *md = kn_arena_defer(x.a, free_mctx, NULL);
     x.mctx = pcre2_match_context_create(NULL);
@@ -1373,7 +1583,6 @@ void kn_check_data(kn_ctx *c, const kn_schema *s, const char *csv_path, long lon
         return;
     }
     read_header(&x, &row);
-    x.rows_defer = kn_arena_defer(x.a, free_ptr, NULL);
     kn_reservoir_init(&x.rs, x.max_kept, seed);
     while ((st = kn_csv_next_row(rd, &row, &err)) != KN_CSV_END) {
         if (st == KN_CSV_FAILED) {
