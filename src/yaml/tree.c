@@ -72,21 +72,38 @@ typedef struct loader {
 
 static void index_lines(loader *ld)
 {
+    /* memchr rather than a loop over bytes: this reads the whole file twice. */
+    const char *end = ld->buf + ld->len;
     size_t n = 1;
-    for (size_t i = 0; i < ld->len; i++) {
-        if (ld->buf[i] == '\n') {
-            n++;
-        }
+    for (const char *p = ld->buf; p < end && (p = memchr(p, '\n', (size_t)(end - p))) != NULL; p++) {
+        n++;
     }
     ld->ln.start = kn_alloc_array(ld->arena, n, sizeof(size_t));
     ld->ln.n = n;
     size_t k = 0;
     ld->ln.start[k++] = 0;
-    for (size_t i = 0; i < ld->len; i++) {
-        if (ld->buf[i] == '\n') {
-            ld->ln.start[k++] = i + 1;
+    for (const char *p = ld->buf; p < end && (p = memchr(p, '\n', (size_t)(end - p))) != NULL; p++) {
+        ld->ln.start[k++] = (size_t)(p - ld->buf) + 1;
+    }
+}
+
+/* True when no byte of buf has its high bit set (eight bytes at a time). */
+static bool all_ascii(const char *buf, size_t len)
+{
+    size_t i = 0;
+    for (; i + 8 <= len; i += 8) {
+        uint64_t w;
+        memcpy(&w, buf + i, 8);
+        if (w & 0x8080808080808080ull) {
+            return false;
         }
     }
+    for (; i < len; i++) {
+        if ((unsigned char)buf[i] >= 0x80) {
+            return false;
+        }
+    }
+    return true;
 }
 
 /* The one place where libyaml's 0-based marks become 1-based positions. */
@@ -390,13 +407,7 @@ kn_node *kn_yaml_parse(kn_arena *a, kn_sink *sink, const char *display,
     ld.len = len;
     ld.lim = lim;
     index_lines(&ld);
-    ld.ascii = true;
-    for (size_t i = 0; i < len; i++) {
-        if ((unsigned char)buf[i] >= 0x80) {
-            ld.ascii = false;
-            break;
-        }
-    }
+    ld.ascii = all_ascii(buf, len);
     ld.frames = kn_vec_new(a, sizeof(frame));
     ld.children = kn_vec_new(a, sizeof(kn_node *));
     ld.weights = kn_vec_new(a, sizeof(uint64_t));
