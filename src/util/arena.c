@@ -20,6 +20,7 @@
 typedef struct chunk {
     struct chunk *next;
     size_t used, size;
+    bool mapped; /* fresh pages from mmap: already zero, released by munmap */
     max_align_t data[];
 } chunk;
 
@@ -61,23 +62,39 @@ static void *sys_malloc(size_t n)
     return malloc(n);
 }
 
-/* A chunk of n bytes; one of BIG_CHUNK_SIZE is aligned for huge pages. */
-static void *sys_chunk(size_t n, bool big)
+/* A chunk of n bytes.  A big one (n = BIG_CHUNK_SIZE) is mapped fresh,
+ * aligned to HUGE_PAGE: its pages come zeroed from the kernel, so kn_alloc
+ * need not clear what it hands out from it. */
+static chunk *sys_chunk(size_t n, bool big)
 {
     if (!big) {
-        return sys_malloc(n);
+        chunk *c = sys_malloc(n);
+        if (c) {
+            c->mapped = false;
+        }
+        return c;
     }
     if (kn_alloc_fail_now()) {
         return NULL;
     }
-    void *p = NULL;
-    if (posix_memalign(&p, HUGE_PAGE, n) != 0) {
+    size_t span = n + HUGE_PAGE;
+    char *m = mmap(NULL, span, PROT_READ | PROT_WRITE, MAP_PRIVATE | MAP_ANONYMOUS, -1, 0);
+    if (m == MAP_FAILED) {
         return NULL;
     }
+    size_t head = (HUGE_PAGE - (uintptr_t)m % HUGE_PAGE) % HUGE_PAGE;
+    if (head) {
+        munmap(m, head);
+    }
+    if (span - head > n) {
+        munmap(m + head + n, span - head - n);
+    }
 #ifdef MADV_HUGEPAGE
-    (void)madvise(p, n & ~(size_t)(HUGE_PAGE - 1), MADV_HUGEPAGE);
+    (void)madvise(m + head, n, MADV_HUGEPAGE);
 #endif
-    return p;
+    chunk *c = (chunk *)(void *)(m + head);
+    c->mapped = true;
+    return c;
 }
 
 static void *sys_realloc(void *p, size_t n)
@@ -114,7 +131,11 @@ void kn_arena_free(kn_arena *a)
     chunk *c = a->head;
     while (c) {
         chunk *next = c->next;
-        free(c);
+        if (c->mapped) {
+            munmap(c, sizeof(chunk) + c->size);
+        } else {
+            free(c);
+        }
         c = next;
     }
     free(a);
@@ -172,7 +193,9 @@ void *kn_alloc(kn_arena *a, size_t size)
     }
     void *p = (char *)c->data + c->used;
     c->used += size;
-    memset(p, 0, size);
+    if (!c->mapped) {
+        memset(p, 0, size);
+    }
     return p;
 }
 
