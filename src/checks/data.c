@@ -152,6 +152,7 @@ typedef struct dict {
     size_t cap;      /* power of two */
     const char **text;
     size_t *len;
+    uint64_t *word;  /* the first 8 bytes, zero-padded: short values compare as one word */
     size_t n;        /* ids in use, id 0 included */
     size_t text_cap;
     size_t bytes, max_levels;
@@ -168,6 +169,7 @@ static dict *dict_new(kn_arena *a, size_t max_levels)
     d->text_cap = 8;
     d->text = kn_alloc_array(a, d->text_cap, sizeof *d->text);
     d->len = kn_alloc_array(a, d->text_cap, sizeof *d->len);
+    d->word = kn_alloc_array(a, d->text_cap, sizeof *d->word);
     d->text[0] = "";
     d->n = 1;
     d->max_levels = max_levels;
@@ -197,11 +199,14 @@ static void dict_grow(dict *d)
 /* The id of s[0..len), adding it while the caps allow; ID_OTHER after. */
 static uint32_t dict_id(dict *d, const char *s, size_t len)
 {
-    uint64_t h = mix64(hash_chain(0, s, len));
+    uint64_t w = 0, h;
+    memcpy(&w, s, len < 8 ? len : 8);
+    h = len <= 8 ? mix64(w ^ ((uint64_t)len << 58) ^ 0x9e3779b97f4a7c15ull) : mix64(hash_chain(0, s, len));
     size_t mask = d->cap - 1, i = h & mask;
     for (; d->slots[i]; i = (i + 1) & mask) {
         uint32_t id = d->slots[i];
-        if (d->hashes[i] == h && d->len[id] == len && memcmp(d->text[id], s, len) == 0) {
+        if (d->hashes[i] == h && d->len[id] == len && d->word[id] == w &&
+            (len <= 8 || memcmp(d->text[id] + 8, s + 8, len - 8) == 0)) {
             return id;
         }
     }
@@ -213,15 +218,19 @@ static uint32_t dict_id(dict *d, const char *s, size_t len)
         size_t cap = d->text_cap * 2;
         const char **text = kn_alloc_array(d->a, cap, sizeof *text);
         size_t *lens = kn_alloc_array(d->a, cap, sizeof *lens);
+        uint64_t *words = kn_alloc_array(d->a, cap, sizeof *words);
         memcpy(text, d->text, d->n * sizeof *text);
         memcpy(lens, d->len, d->n * sizeof *lens);
+        memcpy(words, d->word, d->n * sizeof *words);
         d->text = text;
         d->len = lens;
+        d->word = words;
         d->text_cap = cap;
     }
     uint32_t id = (uint32_t)d->n++;
     d->text[id] = kn_strndup(d->a, s, len);
     d->len[id] = len;
+    d->word[id] = w;
     d->bytes += len;
     d->slots[i] = id;
     d->hashes[i] = h;
@@ -380,23 +389,32 @@ static void note_sample(dx *x, kn_diag *d, size_t kept)
  * arrays are heap memory, grown together and freed by one deferred
  * cleanup. */
 typedef struct store {
-    uint64_t **cell;
+    uint64_t ***cell; /* cell[i][block][row in block] */
     size_t n_cells;
-    uint8_t **miss;
+    uint8_t ***miss;
     size_t n_miss;
+    size_t n_blocks, cap_blocks;
 } store;
 
-#define CELL(x, i, slot) ((x)->store->cell[i][slot])
-#define MISS(x, b, slot) ((x)->store->miss[b][slot])
+/* Rows per block: blocks are added as the sample grows and never moved, so
+ * growing costs no copy and no transient second copy of the sample. */
+#define BLOCK_BITS 14
+#define BLOCK_ROWS ((size_t)1 << BLOCK_BITS)
+#define CELL(x, i, slot) ((x)->store->cell[i][(slot) >> BLOCK_BITS][(slot) & (BLOCK_ROWS - 1)])
+#define MISS(x, b, slot) ((x)->store->miss[b][(slot) >> BLOCK_BITS][(slot) & (BLOCK_ROWS - 1)])
 
 static void free_store(void *p)
 {
     store *st = p;
-    for (size_t i = 0; i < st->n_cells; i++) {
-        free(st->cell[i]);
-    }
-    for (size_t i = 0; i < st->n_miss; i++) {
-        free(st->miss[i]);
+    /* Up to cap_blocks: a block half-allocated when memory ran out is freed
+     * too (block pointers start NULL). */
+    for (size_t b = 0; b < st->cap_blocks; b++) {
+        for (size_t i = 0; i < st->n_cells; i++) {
+            free(st->cell[i][b]);
+        }
+        for (size_t i = 0; i < st->n_miss; i++) {
+            free(st->miss[i][b]);
+        }
     }
 }
 
@@ -426,26 +444,37 @@ static void close_file(void *p)
     fclose(p);
 }
 
-/* Makes room for sample slot `slot`, doubling every array.  The slot is not
- * cleared: read_row writes every cell of a kept row. */
+/* Makes room for sample slot `slot`, adding a block to every array when
+ * the slot starts one (the reservoir fills slots in order before it
+ * replaces any).  The slot is not cleared: read_row writes every cell of a
+ * kept row. */
 static void reserve(dx *x, size_t slot)
 {
     store *st = x->store;
-    if (slot >= x->rows_cap) {
-        size_t cap = x->rows_cap ? x->rows_cap * 2 : 1024;
-        if (cap > x->max_kept) {
-            cap = x->max_kept;
+    while (slot >= x->rows_cap) {
+        if (st->n_blocks == st->cap_blocks) {
+            size_t cap = st->cap_blocks ? st->cap_blocks * 2 : 8;
+            for (size_t i = 0; i < st->n_cells; i++) {
+                uint64_t **b = kn_alloc_array(x->a, cap, sizeof *b);
+                memcpy(b, st->cell[i], st->n_blocks * sizeof *b);
+                st->cell[i] = b;
+            }
+            for (size_t i = 0; i < st->n_miss; i++) {
+                uint8_t **b = kn_alloc_array(x->a, cap, sizeof *b);
+                memcpy(b, st->miss[i], st->n_blocks * sizeof *b);
+                st->miss[i] = b;
+            }
+            st->cap_blocks = cap;
         }
-        if (cap <= slot) {
-            cap = slot + 1;
-        }
+        size_t b = st->n_blocks;
         for (size_t i = 0; i < st->n_cells; i++) {
-            st->cell[i] = kn_xrealloc(x->a, st->cell[i], cap * sizeof **st->cell);
+            st->cell[i][b] = kn_xrealloc(x->a, NULL, BLOCK_ROWS * sizeof ***st->cell);
         }
         for (size_t i = 0; i < st->n_miss; i++) {
-            st->miss[i] = kn_xrealloc(x->a, st->miss[i], cap);
+            st->miss[i][b] = kn_xrealloc(x->a, NULL, BLOCK_ROWS);
         }
-        x->rows_cap = cap;
+        st->n_blocks++;
+        x->rows_cap += BLOCK_ROWS;
     }
 }
 
