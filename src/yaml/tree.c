@@ -279,10 +279,13 @@ static void close_collection(loader *ld)
     ld->frames->len--;
     kn_node *n = f.node;
     size_t count = ld->children->len - f.first;
-    kn_node **kids = &KN_VEC_AT(ld->children, kn_node *, f.first);
+    /* Before any child has been pushed the stack has no storage at all. */
+    kn_node **kids = count ? &KN_VEC_AT(ld->children, kn_node *, f.first) : NULL;
     if (n->kind == KN_NODE_SEQ) {
         n->u.seq.items = kn_alloc_array(ld->arena, count, sizeof(kn_node *));
-        memcpy(n->u.seq.items, kids, count * sizeof(kn_node *));
+        if (count) {
+            memcpy(n->u.seq.items, kids, count * sizeof(kn_node *));
+        }
         n->u.seq.n = count;
     } else {
         size_t pairs = count / 2;
