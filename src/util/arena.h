@@ -50,7 +50,8 @@ char *kn_strndup(kn_arena *a, const char *s, size_t len);
 char *kn_strdup(kn_arena *a, const char *s);
 char *kn_printf(kn_arena *a, const char *fmt, ...)
     __attribute__((format(printf, 2, 3)));
-char *kn_vprintf(kn_arena *a, const char *fmt, va_list ap);
+char *kn_vprintf(kn_arena *a, const char *fmt, va_list ap)
+    __attribute__((format(printf, 2, 0)));
 
 /* Registers fn(ptr) to run at kn_arena_free.  Register first, acquire the
  * resource second, then store it in the returned record's ptr. */
