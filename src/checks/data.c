@@ -456,12 +456,16 @@ static void reserve(dx *x, size_t slot)
             size_t cap = st->cap_blocks ? st->cap_blocks * 2 : 8;
             for (size_t i = 0; i < st->n_cells; i++) {
                 uint64_t **b = kn_alloc_array(x->a, cap, sizeof *b);
-                memcpy(b, st->cell[i], st->n_blocks * sizeof *b);
+                if (st->n_blocks) {
+                    memcpy(b, st->cell[i], st->n_blocks * sizeof *b);
+                }
                 st->cell[i] = b;
             }
             for (size_t i = 0; i < st->n_miss; i++) {
                 uint8_t **b = kn_alloc_array(x->a, cap, sizeof *b);
-                memcpy(b, st->miss[i], st->n_blocks * sizeof *b);
+                if (st->n_blocks) {
+                    memcpy(b, st->miss[i], st->n_blocks * sizeof *b);
+                }
                 st->miss[i] = b;
             }
             st->cap_blocks = cap;
