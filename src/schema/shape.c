@@ -139,7 +139,7 @@ const kn_shape kn_shape_included = {"included file", included_keys, N(included_k
 int kn_shape_find(const kn_shape *s, const char *key)
 {
     for (size_t i = 0; i < s->n_keys; i++) {
-        if (strcmp(s->keys[i].name, key) == 0) {
+        if (s->keys[i].name[0] == key[0] && strcmp(s->keys[i].name, key) == 0) {
             return (int)i;
         }
     }

@@ -303,7 +303,11 @@ void *kn_vec_push(kn_vec *v, const void *elem)
         v->cap = cap;
     }
     void *slot = (char *)v->data + v->len * v->elem;
-    memcpy(slot, elem, v->elem);
+    if (v->elem == sizeof(void *)) {
+        memcpy(slot, elem, sizeof(void *)); /* a constant size: no call (most vectors hold pointers) */
+    } else {
+        memcpy(slot, elem, v->elem);
+    }
     v->len++;
     return slot;
 }

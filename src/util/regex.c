@@ -145,6 +145,11 @@ static bool valid_utf8(const char *s, size_t len)
     const unsigned char *p = (const unsigned char *)s;
     size_t i = 0;
     while (i < len) {
+        uint64_t w;
+        if (i + 8 <= len && (memcpy(&w, p + i, 8), (w & 0x8080808080808080ull) == 0)) {
+            i += 8; /* eight ASCII bytes */
+            continue;
+        }
         if (p[i] < 0x80) {
             i++;
             continue;
