@@ -80,6 +80,29 @@ static uint64_t mum(uint64_t a, uint64_t b)
     return (uint64_t)(r >> 64) ^ (uint64_t)r;
 }
 
+static uint64_t load32(const char *s)
+{
+    uint32_t w;
+    memcpy(&w, s, 4);
+    return w;
+}
+
+/* The bytes of a text of at most 8 bytes as one word, without a
+ * variable-length copy: two overlapping 4-byte loads, or the first,
+ * middle and last byte below 4 bytes (as wyhash reads short keys).  Given
+ * the length, the word determines the text. */
+static uint64_t short_word(const char *s, size_t len)
+{
+    if (len >= 4) {
+        return load32(s) | load32(s + len - 4) << 32;
+    }
+    if (len > 0) {
+        return (uint64_t)(unsigned char)s[0] | (uint64_t)(unsigned char)s[len / 2] << 8 |
+               (uint64_t)(unsigned char)s[len - 1] << 16;
+    }
+    return 0;
+}
+
 /* A 64-bit hash of s[0..len) chained onto h, eight bytes per multiply (the
  * byte-wise FNV-1a of kn_stats_hash cost a tenth of the time budget on
  * wide files).  The length goes in too, so ("ab", "c") and ("a", "bc")
@@ -95,9 +118,7 @@ static uint64_t hash_chain(uint64_t h, const char *s, size_t len)
         len -= 8;
     }
     if (len) {
-        uint64_t w = 0;
-        memcpy(&w, s, len);
-        h = mum(h ^ w, 0x589965cc75374cc3ull);
+        h = mum(h ^ short_word(s, len), 0x589965cc75374cc3ull);
     }
     return h;
 }
@@ -152,7 +173,7 @@ typedef struct dict {
     size_t cap;      /* power of two */
     const char **text;
     size_t *len;
-    uint64_t *word;  /* the first 8 bytes, zero-padded: short values compare as one word */
+    uint64_t *word;  /* short_word of a value of up to 8 bytes, else its first 8 bytes */
     size_t n;        /* ids in use, id 0 included */
     size_t text_cap;
     size_t bytes, max_levels;
@@ -199,8 +220,12 @@ static void dict_grow(dict *d)
 /* The id of s[0..len), adding it while the caps allow; ID_OTHER after. */
 static uint32_t dict_id(dict *d, const char *s, size_t len)
 {
-    uint64_t w = 0, h;
-    memcpy(&w, s, len < 8 ? len : 8);
+    uint64_t w, h;
+    if (len <= 8) {
+        w = short_word(s, len);
+    } else {
+        memcpy(&w, s, 8);
+    }
     h = len <= 8 ? mix64(w ^ ((uint64_t)len << 58) ^ 0x9e3779b97f4a7c15ull) : mix64(hash_chain(0, s, len));
     size_t mask = d->cap - 1, i = h & mask;
     for (; d->slots[i]; i = (i + 1) & mask) {
@@ -752,7 +777,8 @@ static void store_runs(dx *x, col *c, size_t slot, const char *s, size_t len)
         segment *g = &c->segs[n++];
         g->kinds |= letter ? 1u : 2u;
         if (slot != KN_RESERVOIR_SKIP) {
-            CELL(x, g->cell, slot) = dict_id(g->d, s + i, j - i);
+            /* A segment with too many values is not tested: stop looking. */
+            CELL(x, g->cell, slot) = g->d->full ? ID_OTHER : dict_id(g->d, s + i, j - i);
         }
         i = j;
     }
@@ -841,7 +867,7 @@ static void check_value(dx *x, col *c, const kn_csv_row *row, size_t slot, int64
             uint32_t n_ov = pcre2_get_ovector_count(c->md);
             for (size_t i = 0; i < c->n_segs; i++) {
                 segment *g = &c->segs[i];
-                if (g->group < n_ov && ov[2 * g->group] != PCRE2_UNSET) {
+                if (g->group < n_ov && ov[2 * g->group] != PCRE2_UNSET && !g->d->full) {
                     CELL(x, g->cell, slot) = dict_id(g->d, f->ptr + ov[2 * g->group], ov[2 * g->group + 1] - ov[2 * g->group]);
                 }
             }
@@ -856,7 +882,7 @@ static void check_value(dx *x, col *c, const kn_csv_row *row, size_t slot, int64
         set_cell_d(x, c->num_cell, slot, st == KN_VALUE_OK ? num : NAN);
     }
     if (c->use == USE_CATEGORY || c->use == USE_EITHER) {
-        CELL(x, c->cat_cell, slot) = st == KN_VALUE_MISSING ? 0 : dict_id(c->d, text, text_len);
+        CELL(x, c->cat_cell, slot) = st == KN_VALUE_MISSING ? 0 : c->d->full ? ID_OTHER : dict_id(c->d, text, text_len);
     }
 }
 
