@@ -307,6 +307,41 @@ static kn_status run_json_schema(args *ar, FILE *out)
     return kn_json_schema(out, stderr);
 }
 
+/* The command closest to a mistyped one (one edit or a shared prefix of
+ * three letters), for "did you mean". */
+static const char *near_command(const char *word)
+{
+    static const char *const cmds[] = {"check", "explain", "rules", "sources", "timeline", "init", "json-schema", "help"};
+    for (size_t i = 0; i < sizeof cmds / sizeof *cmds; i++) {
+        const char *c = cmds[i];
+        size_t lw = strlen(word), lc = strlen(c);
+        if (lw >= 3 && strncmp(word, c, 3) == 0) {
+            return c;
+        }
+        /* one substitution, insertion or deletion */
+        size_t i1 = 0, i2 = 0, edits = 0;
+        while (i1 < lw && i2 < lc && edits <= 1) {
+            if (word[i1] == c[i2]) {
+                i1++, i2++;
+            } else {
+                edits++;
+                if (lw > lc) {
+                    i1++;
+                } else if (lc > lw) {
+                    i2++;
+                } else {
+                    i1++, i2++;
+                }
+            }
+        }
+        edits += (lw - i1) + (lc - i2);
+        if (edits <= 1) {
+            return c;
+        }
+    }
+    return NULL;
+}
+
 static const char *help_for(const char *cmd)
 {
     static const struct {
@@ -347,6 +382,10 @@ static int dispatch(int argc, char **argv)
     }
     const char *h = help_for(cmd);
     if (!h) {
+        const char *near = near_command(cmd);
+        if (near) {
+            return bad("no command '%s'; did you mean '%s'?", cmd, near);
+        }
         return bad("no command '%s'", cmd);
     }
     static args ar;
