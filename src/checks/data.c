@@ -46,6 +46,7 @@ enum {
     ROWS_PER_LEVEL = 5,         /* U is only trusted with this many rows per level */
     MIN_CLASS_ROWS = 5,         /* AUC needs this many rows of each class */
     MAX_RUNS = 6,               /* letter/digit positions followed per identifier */
+    MAX_SEGMENTS = 16,          /* named groups followed per identifier format */
     N_BINS = 10,                /* quantile bins of a numeric feature against a categorical target */
     HEAD_CELLS = 5,             /* line, row hash, entity hash, QI hash, target|side|flags */
     EXAMPLE_MAX = 40,           /* bytes of a value quoted in a message */
@@ -561,6 +562,9 @@ static void setup_segments(dx *x, col *c)
     uint32_t count = 0;
     if (k->format_code) {
         pcre2_pattern_info(k->format_code, PCRE2_INFO_NAMECOUNT, &count);
+    }
+    if (count > MAX_SEGMENTS) {
+        count = MAX_SEGMENTS;
     }
     if (count > 0) {
         uint32_t entry = 0;
