@@ -1662,4 +1662,7 @@ void kn_check_data(kn_ctx *c, const kn_schema *s, const char *csv_path, long lon
     report_bad_rows(&x);
     report_streamed(&x);
     statistics(&x);
+    if (x.seen > x.max_kept) {
+        kn_sink_set_sample(x.sink, (unsigned long long)x.max_kept, (unsigned long long)x.seen);
+    }
 }

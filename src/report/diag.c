@@ -12,6 +12,7 @@ struct kn_sink {
     kn_severity severity[KN_RULE_COUNT];
     bool fatal;
     bool finished;
+    unsigned long long sample_kept, sample_total;
 };
 
 uint64_t kn_hash_bytes(uint64_t h, const void *p, size_t n)
@@ -239,4 +240,17 @@ void kn_sink_mark_fatal(kn_sink *s)
 bool kn_sink_fatal(const kn_sink *s)
 {
     return s->fatal;
+}
+
+void kn_sink_set_sample(kn_sink *s, unsigned long long kept, unsigned long long total)
+{
+    s->sample_kept = kept;
+    s->sample_total = total;
+}
+
+bool kn_sink_sample(const kn_sink *s, unsigned long long *kept, unsigned long long *total)
+{
+    *kept = s->sample_kept;
+    *total = s->sample_total;
+    return s->sample_total > s->sample_kept;
 }

@@ -124,6 +124,12 @@ bool kn_sink_fatal(const kn_sink *s);
 
 kn_arena *kn_sink_arena(const kn_sink *s);
 
+/* The data checks record that their statistics used a sample of kept of
+ * total rows, so the summary can say so; kn_sink_sample returns false when
+ * every row was used. */
+void kn_sink_set_sample(kn_sink *s, unsigned long long kept, unsigned long long total);
+bool kn_sink_sample(const kn_sink *s, unsigned long long *kept, unsigned long long *total);
+
 /* 64-bit FNV-1a, used for fingerprints and hashing. */
 uint64_t kn_hash_bytes(uint64_t h, const void *p, size_t n);
 #define KN_HASH_INIT 0xcbf29ce484222325ull

@@ -28,8 +28,11 @@ static void put_pos(FILE *out, const kn_pos *p, bool color)
         fputs(BOLD, out);
     }
     kn_fput_term(out, p->file, strlen(p->file));
-    if (p->line) {
+    if (p->line && p->col) {
         fprintf(out, ":%u:%u:", p->line, p->col);
+    } else if (p->line) {
+        /* A whole line (a CSV row): FILE:LINE: as in the GNU format. */
+        fprintf(out, ":%u:", p->line);
     } else {
         fputc(':', out);
     }
@@ -93,7 +96,12 @@ void kn_render_summary(FILE *out, const kn_sink *s, const kn_render_opts *o)
     if (b) {
         fprintf(out, " (%zu matched the baseline)", b);
     }
-    fprintf(out, " in %zu schema%s\n", o->n_schemas, o->n_schemas == 1 ? "" : "s");
+    fprintf(out, " in %zu schema%s", o->n_schemas, o->n_schemas == 1 ? "" : "s");
+    unsigned long long kept, total;
+    if (kn_sink_sample(s, &kept, &total)) {
+        fprintf(out, "; data statistics on a sample of %llu of %llu rows", kept, total);
+    }
+    fputc('\n', out);
 }
 
 void kn_render_text(FILE *out, const kn_sink *s, const kn_render_opts *o)
