@@ -25,6 +25,10 @@ typedef struct cx {
     kn_ctx *ctx;
     const kn_schema *s;
     const kn_timeline *t;
+    /* All suspicious-name patterns for names (0) and descriptions (1) as
+     * one alternation: a column none of them matches costs one match
+     * instead of one per pattern.  NULL when they cannot be combined. */
+    kn_regex *any[2];
 } cx;
 
 static const kn_pos *at(const kn_column *c, const kn_node *n)
@@ -550,10 +554,20 @@ static void check_suspicious(const cx *x, const kn_column *c)
     }
     const kn_rulebook *rb = x->ctx->rulebook;
     kn_sink *sink = x->ctx->sink;
-    for (size_t i = 0; i < rb->n_names; i++) {
+    bool maybe[2];
+    for (int side = 0; side < 2; side++) {
+        const char *text = side == 0 ? c->name : c->description;
+        /* Only a clean "no match" of the combined pattern skips the
+         * patterns one by one (a limit hit is reported by them). */
+        maybe[side] = text && (!x->any[side] || kn_regex_match(x->any[side], text, strlen(text), NULL) != KN_MATCH_NONE);
+    }
+    for (size_t i = 0; i < rb->n_names && (maybe[0] || maybe[1]); i++) {
         const kn_name_rule *nr = &rb->names[i];
         for (int side = 0; side < 2; side++) {
             bool on_name = side == 0;
+            if (!maybe[side]) {
+                continue;
+            }
             if (on_name ? nr->applies_to == KN_APPLIES_DESCRIPTION : nr->applies_to == KN_APPLIES_NAME) {
                 continue;
             }
@@ -634,9 +648,41 @@ static void check_anonymization(const cx *x, const kn_column *c)
     kn_diag_note(sink, d, &c->key->pos, "%s", privacy_note);
 }
 
+/* The alternation of every names pattern that applies to a side, each in a
+ * group of its own so that inline options stay inside it.  Patterns with
+ * named groups or back references could clash once combined: then NULL. */
+static kn_regex *combined(kn_arena *a, const kn_rulebook *rb, bool description)
+{
+    const char *alt = NULL;
+    size_t n = 0;
+    for (size_t i = 0; i < rb->n_names; i++) {
+        const kn_name_rule *nr = &rb->names[i];
+        if (nr->applies_to == (description ? KN_APPLIES_NAME : KN_APPLIES_DESCRIPTION)) {
+            continue;
+        }
+        for (const char *q = strchr(nr->pattern, '\\'); q && q[1]; q = strchr(q + 2, '\\')) {
+            if ((q[1] >= '1' && q[1] <= '9') || q[1] == 'g' || q[1] == 'k') {
+                return NULL; /* a back reference would change meaning */
+            }
+        }
+        if (strstr(nr->pattern, "(?<") || strstr(nr->pattern, "(?P") || strstr(nr->pattern, "(?'")) {
+            return NULL;
+        }
+        alt = alt ? kn_printf(a, "%s|(?:%s)", alt, nr->pattern) : kn_printf(a, "(?:%s)", nr->pattern);
+        n++;
+    }
+    if (n < 2) {
+        return NULL;
+    }
+    kn_regex_error err;
+    return kn_regex_compile(a, alt, strlen(alt), &err);
+}
+
 void kn_check_identity(kn_ctx *ctx, const kn_schema *s, const kn_timeline *t)
 {
-    cx x = {ctx, s, t};
+    cx x = {ctx, s, t, {NULL, NULL}};
+    x.any[0] = combined(ctx->arena, ctx->rulebook, false);
+    x.any[1] = combined(ctx->arena, ctx->rulebook, true);
     for (size_t i = 0; i < s->n_columns; i++) {
         const kn_column *c = s->columns[i];
         check_structured(&x, c);
