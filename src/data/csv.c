@@ -361,7 +361,7 @@ static int parse_record(kn_csv_reader *r)
                 break;
             }
             st = S_UNQUOTED;
-            /* fall through */
+            __attribute__((fallthrough));
         case S_UNQUOTED: {
             const unsigned char *q = p;
             while (q < end && !special_unquoted[*q]) {

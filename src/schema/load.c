@@ -335,7 +335,7 @@ static bool check_value(ld *l, const owner *o, const kn_key_spec *k, kn_node *v)
         if (is_name(v)) {
             return true;
         }
-        /* fall through */
+        __attribute__((fallthrough));
     case KN_V_NAMES:
     case KN_V_PATHS:
         if (v->kind != KN_NODE_SEQ) {

@@ -63,6 +63,7 @@ typedef struct loader {
     kn_node *root;
     bool failed;
     size_t documents;
+    size_t aliases; /* alias events seen so far */
     /* The last mark turned into an offset: marks arrive in document order,
      * so walking on from it keeps a long line from costing its length for
      * every node on it. */
@@ -204,9 +205,14 @@ static void add_child(loader *ld, kn_node *n, uint64_t weight, const kn_pos *at)
     frame *f = &KN_VEC_AT(ld->frames, frame, ld->frames->len - 1);
     f->weight += weight;
     if (f->weight > ld->lim->max_nodes) {
-        fail(ld, at,
-             "this document would hold more than %zu nodes with its aliases expanded "
-             "(an alias bomb?); it is refused without being expanded", ld->lim->max_nodes);
+        if (ld->aliases) {
+            fail(ld, at,
+                 "this document would hold more than %zu nodes with its aliases expanded "
+                 "(an alias bomb?); it is refused without being expanded", ld->lim->max_nodes);
+        } else {
+            fail(ld, at, "this document holds more than %zu nodes, the most a schema may have",
+                 ld->lim->max_nodes);
+        }
         return;
     }
     kn_vec_push(ld->children, &n);
@@ -331,6 +337,7 @@ static void on_alias(loader *ld, const yaml_event_t *e)
 {
     const char *name = (const char *)e->data.alias.anchor;
     kn_pos pos = mark_pos(ld, e->start_mark);
+    ld->aliases++;
     const char *shown = kn_escape_term(ld->arena, name, strlen(name));
     for (size_t i = 0; i < ld->frames->len; i++) {
         const char *open = KN_VEC_AT(ld->frames, frame, i).anchor;
