@@ -1,6 +1,7 @@
 /* api.c - the public entry points (include/knowable/knowable.h).  Each one
  * makes an arena, installs the out-of-memory jump target, runs the stages
  * of the pipeline in order and frees the arena on every path. */
+#include "entry.h"
 #include <knowable/knowable.h>
 
 #include <setjmp.h>
@@ -106,18 +107,7 @@ static void analyse(kn_ctx *ctx, kn_schema *s, const kn_options *o)
 
 kn_status kn_check(const kn_options *o, const char *const *schemas, size_t n, FILE *out, FILE *err)
 {
-    kn_arena *a = kn_arena_new();
-    if (!a) {
-        fputs("knowable: out of memory\n", err);
-        return KN_EXIT_FAILED;
-    }
-    jmp_buf oom;
-    if (setjmp(oom)) {
-        kn_arena_free(a);
-        fputs("knowable: out of memory\n", err);
-        return KN_EXIT_FAILED;
-    }
-    kn_arena_set_oom(a, &oom);
+    KN_ENTRY_ARENA(a, err);
 
     kn_sink *sink = kn_sink_new(a);
     kn_rulebook *rb = kn_rulebook_for(a, sink, o->rulebooks, o->n_rulebooks, n ? schemas[0] : NULL);
@@ -234,18 +224,7 @@ kn_status kn_explain(const char *rule, FILE *out, FILE *err)
 
 kn_status kn_rules(const kn_options *o, FILE *out, FILE *err)
 {
-    kn_arena *a = kn_arena_new();
-    if (!a) {
-        fputs("knowable: out of memory\n", err);
-        return KN_EXIT_FAILED;
-    }
-    jmp_buf oom;
-    if (setjmp(oom)) {
-        kn_arena_free(a);
-        fputs("knowable: out of memory\n", err);
-        return KN_EXIT_FAILED;
-    }
-    kn_arena_set_oom(a, &oom);
+    KN_ENTRY_ARENA(a, err);
     kn_sink *sink = kn_sink_new(a);
     kn_rulebook *rb = kn_rulebook_for(a, sink, o->rulebooks, o->n_rulebooks, NULL);
     if (kn_sink_fatal(sink)) {

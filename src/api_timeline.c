@@ -3,6 +3,7 @@
  * report (src/docs/timeline_text.c).  Problems with the schema itself are
  * written to err in the usual diagnostic format; `knowable check` is the
  * place to read the findings. */
+#include "entry.h"
 #include <knowable/knowable.h>
 
 #include <setjmp.h>
@@ -23,18 +24,7 @@ static kn_rulebook *rulebook(kn_arena *a, kn_sink *sink, const kn_options *o, co
 kn_status kn_timeline_report(const kn_options *o, const char *schema, FILE *out, FILE *svg,
                              FILE *err)
 {
-    kn_arena *a = kn_arena_new();
-    if (!a) {
-        fputs("knowable: out of memory\n", err);
-        return KN_EXIT_FAILED;
-    }
-    jmp_buf oom;
-    if (setjmp(oom)) {
-        kn_arena_free(a);
-        fputs("knowable: out of memory\n", err);
-        return KN_EXIT_FAILED;
-    }
-    kn_arena_set_oom(a, &oom);
+    KN_ENTRY_ARENA(a, err);
 
     kn_status status = KN_EXIT_OK;
     kn_sink *sink = kn_sink_new(a);

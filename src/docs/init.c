@@ -12,6 +12,7 @@
  *
  * Header names the schema cannot hold (empty, repeated, or longer than a
  * YAML scalar may be) are written as comments that say why. */
+#include "../entry.h"
 #include <knowable/knowable.h>
 
 #include <errno.h>
@@ -485,18 +486,7 @@ static void close_file(void *p)
 
 kn_status kn_init(const kn_options *o, const char *csv, FILE *out, FILE *err)
 {
-    kn_arena *a = kn_arena_new();
-    if (!a) {
-        fputs("knowable: out of memory\n", err);
-        return KN_EXIT_FAILED;
-    }
-    jmp_buf oom;
-    if (setjmp(oom)) {
-        kn_arena_free(a);
-        fputs("knowable: out of memory\n", err);
-        return KN_EXIT_FAILED;
-    }
-    kn_arena_set_oom(a, &oom);
+    KN_ENTRY_ARENA(a, err);
     kn_status status = KN_EXIT_FAILED;
 
     kn_regex *id_names = identifier_pattern(a, o, err);

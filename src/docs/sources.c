@@ -7,6 +7,7 @@
  * as missing), then internal ones, each followed by the columns that come
  * from it, by which key and as of which event.  Markdown or JSON.  Reads the
  * schema model only; pushes no diagnostics of its own. */
+#include "../entry.h"
 #include <knowable/knowable.h>
 
 #include <setjmp.h>
@@ -691,18 +692,7 @@ kn_status kn_sources(const kn_options *o, const char *const *schemas, size_t n, 
         fputs("knowable: the sources register is written as markdown or json\n", err);
         return KN_EXIT_FAILED;
     }
-    kn_arena *a = kn_arena_new();
-    if (!a) {
-        fputs("knowable: out of memory\n", err);
-        return KN_EXIT_FAILED;
-    }
-    jmp_buf oom;
-    if (setjmp(oom)) {
-        kn_arena_free(a);
-        fputs("knowable: out of memory\n", err);
-        return KN_EXIT_FAILED;
-    }
-    kn_arena_set_oom(a, &oom);
+    KN_ENTRY_ARENA(a, err);
 
     kn_status status = KN_EXIT_OK;
     kn_sink *sink = kn_sink_new(a);
