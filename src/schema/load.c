@@ -794,6 +794,9 @@ static void load_column(ld *l, const kn_shape *sh, kn_column *c)
 
 static void load_columns(ld *l, const kn_key_spec *spec, kn_node *map)
 {
+    if (kn_names_count(l->s->column_names) == 0) {
+        l->s->column_names = kn_names_new_sized(l->a, map->u.map.n);
+    }
     for (size_t i = 0; i < map->u.map.n; i++) {
         kn_node *k = map->u.map.pairs[i].key, *v = map->u.map.pairs[i].value;
         if (!is_name(k)) {

@@ -19,15 +19,24 @@ struct kn_name_map {
     size_t order_cap;
 };
 
-kn_name_map *kn_names_new(kn_arena *a)
+kn_name_map *kn_names_new_sized(kn_arena *a, size_t n)
 {
     kn_name_map *m = kn_alloc(a, sizeof *m);
     m->arena = a;
-    m->cap = 16;
+    size_t cap = 16;
+    while (cap / 4 * 3 < n + 1 && cap < ((size_t)1 << 40)) {
+        cap *= 2;
+    }
+    m->cap = cap;
     m->slots = kn_alloc_array(a, m->cap, sizeof(slot));
-    m->order_cap = 16;
+    m->order_cap = n > 16 ? n : 16;
     m->order = kn_alloc_array(a, m->order_cap, sizeof(char *));
     return m;
+}
+
+kn_name_map *kn_names_new(kn_arena *a)
+{
+    return kn_names_new_sized(a, 0);
 }
 
 static uint64_t hash_name(const char *s)

@@ -11,6 +11,8 @@
 typedef struct kn_name_map kn_name_map;
 
 kn_name_map *kn_names_new(kn_arena *a);
+/* A map sized for about n names, so that filling it never rehashes. */
+kn_name_map *kn_names_new_sized(kn_arena *a, size_t n);
 /* Inserts name -> value; returns false (and leaves the map) when the name
  * is already present.  name is borrowed: it must outlive the map. */
 bool kn_names_put(kn_name_map *m, const char *name, void *value);

@@ -247,7 +247,7 @@ static void set_anchor(loader *ld, const char *name, kn_node *n, uint64_t weight
 static void check_duplicates(loader *ld, kn_node *map)
 {
     size_t n = map->u.map.n;
-    kn_name_map *seen = n > 8 ? kn_names_new(ld->arena) : NULL;
+    kn_name_map *seen = n > 8 ? kn_names_new_sized(ld->arena, n) : NULL;
     for (size_t i = 0; i < n; i++) {
         kn_node *k = map->u.map.pairs[i].key;
         if (k->kind != KN_NODE_SCALAR) {
