@@ -230,11 +230,13 @@ static void check_known(const cx *x, const kn_column *c, const kn_column_timing 
                          at_moment ? "at or after the moment, which strict_moment counts as late"
                                    : "after the moment",
                          words(x, T->part[KN_PART_KNOWN]));
+        kn_diag_range(d, T->part[KN_PART_KNOWN].lo, T->part[KN_PART_KNOWN].hi);
         explain_event_part(x, d, c, KN_PART_KNOWN, false);
     } else if (v == KN_VERDICT_MAYBE_LATE) {
         d = kn_diag_push(sink, KN_R_MAYBE_AFTER_MOMENT, at(c, c->known.node), c->name,
                          "column '%s' (known at '%s') may be available after the moment: %s",
                          c->name, e->name, words(x, T->part[KN_PART_KNOWN]));
+        kn_diag_range(d, T->part[KN_PART_KNOWN].lo, T->part[KN_PART_KNOWN].hi);
         explain_event_part(x, d, c, KN_PART_KNOWN, true);
     } else if (v == KN_VERDICT_UNORDERED) {
         if (T->event[KN_PART_KNOWN].lo <= -KN_TIME_INF) {
@@ -303,6 +305,7 @@ static void check_window(const cx *x, const kn_column *c, const kn_column_timing
     kn_diag *d = kn_diag_push(sink, KN_R_WINDOW_OVERRUNS,
                               at(c, c->window.to_node ? c->window.to_node : c->window.node),
                               c->name, "%s%s", first, second);
+    kn_diag_range(d, T->part[KN_PART_WINDOW].lo, T->part[KN_PART_WINDOW].hi);
     if (v == KN_VERDICT_MAYBE_LATE) {
         at_most_warning(d);
     }
@@ -329,6 +332,7 @@ static void check_as_of(const cx *x, const kn_column *c, const kn_column_timing 
                      "column '%s' is joined as of '%s', which %s after the moment: %s", c->name,
                      e->name, v == KN_VERDICT_LATE ? "comes" : "may come",
                      words(x, T->part[KN_PART_AS_OF]));
+    kn_diag_range(d, T->part[KN_PART_AS_OF].lo, T->part[KN_PART_AS_OF].hi);
     if (v == KN_VERDICT_MAYBE_LATE) {
         at_most_warning(d);
     }
@@ -417,6 +421,7 @@ static void check_inputs(const cx *x, const kn_column *c, const kn_column_timing
                                   late ? "is available only after the moment"
                                        : "may be available after the moment",
                                   words(x, I->range));
+        kn_diag_range(d, I->range.lo, I->range.hi);
         if (!late) {
             at_most_warning(d);
         }
@@ -433,6 +438,7 @@ static void check_inputs(const cx *x, const kn_column *c, const kn_column_timing
             c->name, words(x, T->inputs_latest),
             vd == KN_VERDICT_LATE ? "is available only" : "may be available",
             words(x, T->part[KN_PART_INPUTS]));
+        kn_diag_range(d, T->part[KN_PART_INPUTS].lo, T->part[KN_PART_INPUTS].hi);
         note_delay(x, d, c);
     }
 }

@@ -100,6 +100,13 @@ void kn_diag_note(kn_sink *s, kn_diag *d, const kn_pos *pos, const char *fmt, ..
     va_end(ap);
 }
 
+void kn_diag_range(kn_diag *d, int64_t lo, int64_t hi)
+{
+    d->has_range = true;
+    d->range_lo = lo;
+    d->range_hi = hi;
+}
+
 void kn_diag_key(kn_sink *s, kn_diag *d, const char *fmt, ...)
 {
     va_list ap;

@@ -74,6 +74,8 @@ typedef struct kn_diag {
                         "maybe" finding of an error rule is a warning); 0: no cap */
     bool waived;
     bool baselined;
+    bool has_range;               /* a timing finding: when the value is available */
+    int64_t range_lo, range_hi;   /* microseconds relative to the moment (+-KN_TIME_INF unbounded) */
     uint64_t fingerprint;
     size_t seq; /* push order, the last sort key */
 } kn_diag;
@@ -96,6 +98,10 @@ kn_diag *kn_diag_push(kn_sink *s, kn_rule r, const kn_pos *pos,
 /* Adds a note at pos (NULL pos: the diagnostic's own file, no line). */
 void kn_diag_note(kn_sink *s, kn_diag *d, const kn_pos *pos, const char *fmt, ...)
     __attribute__((format(printf, 4, 5)));
+
+/* Records the availability range a timing finding is about, relative to
+ * the moment, for machine-readable output (JSON carries it in seconds). */
+void kn_diag_range(kn_diag *d, int64_t lo, int64_t hi);
 
 /* Sets the fingerprint key (default: the message). */
 void kn_diag_key(kn_sink *s, kn_diag *d, const char *fmt, ...)

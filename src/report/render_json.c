@@ -7,6 +7,7 @@
 #include <string.h>
 
 #include "../util/text.h"
+#include "../time/duration.h"
 #include "render.h"
 
 static void put_key(FILE *out, int indent, const char *key)
@@ -37,6 +38,17 @@ static void put_note(FILE *out, const kn_note *n, bool last)
     fputs(last ? "        }\n" : "        },\n", out);
 }
 
+static void put_seconds(FILE *out, int64_t us)
+{
+    if (us >= KN_TIME_INF || us <= -KN_TIME_INF) {
+        fputs("null", out);
+    } else if (us % KN_US_PER_SEC == 0) {
+        fprintf(out, "%" PRId64, us / KN_US_PER_SEC);
+    } else {
+        fprintf(out, "%.6f", kn_time_seconds(us));
+    }
+}
+
 static void put_diag(FILE *out, const kn_diag *d, bool last)
 {
     char fp[17];
@@ -52,6 +64,16 @@ static void put_diag(FILE *out, const kn_diag *d, bool last)
     put_str_field(out, 6, "fingerprint", fp, false);
     put_key(out, 6, "waived");
     fputs(d->waived ? "true,\n" : "false,\n", out);
+    if (d->has_range) {
+        /* When the value is available, relative to the moment, in seconds;
+         * null for an unbounded end. */
+        put_key(out, 6, "available_seconds");
+        fputs("{\"from\": ", out);
+        put_seconds(out, d->range_lo);
+        fputs(", \"to\": ", out);
+        put_seconds(out, d->range_hi);
+        fputs("},\n", out);
+    }
     put_key(out, 6, "notes");
     if (!d->n_notes) {
         fputs("[]\n", out);
