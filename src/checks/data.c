@@ -1265,19 +1265,8 @@ static bool uncertainty(dx *x, sample *sm, const uint32_t *xid, size_t nx, kn_un
             i = j;
         }
     }
-    if (h_y < 0) {
-        h_y = 0;
-    }
-    if (mi < 0) {
-        mi = 0;
-    }
-    if (mi > h_y) {
-        mi = h_y;
-    }
     u->n = n;
-    u->h_y = h_y;
-    u->mi = mi;
-    u->u = h_y > 0 ? mi / h_y : 0.0;
+    kn_uncertainty_set(u, h_y, mi);
     return true;
 }
 

@@ -427,6 +427,12 @@ bool kn_contingency_uncertainty(const kn_contingency *c, kn_uncertainty *out)
         double ny = (double)c->y.levels[s->key & UINT32_MAX].count;
         mi += nxy / n * (log(nxy) + log_n - log(nx) - log(ny));
     }
+    kn_uncertainty_set(out, h_y, mi);
+    return true;
+}
+
+void kn_uncertainty_set(kn_uncertainty *out, double h_y, double mi)
+{
     if (h_y < 0) {
         h_y = 0;
     }
@@ -439,7 +445,6 @@ bool kn_contingency_uncertainty(const kn_contingency *c, kn_uncertainty *out)
     out->h_y = h_y;
     out->mi = mi;
     out->u = h_y > 0 ? mi / h_y : 0.0;
-    return true;
 }
 
 /* ---- k-anonymity ------------------------------------------------------- */

@@ -54,6 +54,11 @@ typedef struct kn_uncertainty {
     bool high_cardinality; /* a cap was hit: u, mi, h_y are 0 and must not be used */
 } kn_uncertainty;
 
+/* Stores H(Y) and I(Y; X) in out, clamped to 0 <= I <= H (rounding can
+ * step outside), and U = I / H (0 when H is 0).  Shared by every way of
+ * counting the table. */
+void kn_uncertainty_set(kn_uncertainty *out, double h_y, double mi);
+
 /* Caps of a contingency table: beyond them the feature is treated as
  * high-cardinality (kn_contingency_add returns false). */
 #define KN_CONTINGENCY_MAX_LEVELS 10000u          /* default distinct X, and distinct Y */

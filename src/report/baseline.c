@@ -12,7 +12,6 @@
  *    "rule": ..., "file": ..., "subject": ..., "message": ...}, ...]}
  * The reader below accepts any JSON (RFC 8259) of that shape, ignores keys
  * it does not know, and is bounded in size and nesting depth. */
-#include <errno.h>
 #include <inttypes.h>
 #include <stdlib.h>
 #include <string.h>
@@ -20,6 +19,7 @@
 #include <knowable/knowable.h>
 
 #include "../util/text.h"
+#include "../yaml/tree.h"
 #include "render.h"
 
 #define MAX_BASELINE_BYTES (256u << 20)
@@ -374,13 +374,6 @@ static bool read_value(reader *r, slot what, int depth)
     return ok;
 }
 
-static void close_file(void *p)
-{
-    if (p) {
-        fclose(p);
-    }
-}
-
 static int cmp_u64(const void *a, const void *b)
 {
     uint64_t x = *(const uint64_t *)a, y = *(const uint64_t *)b;
@@ -398,44 +391,16 @@ static void say(FILE *err, const char *path, size_t line, const char *why)
     }
 }
 
-/* Reads the whole file into arena memory; NULL (and a message) on failure. */
+/* Reads the whole file into arena memory (kn_read_file, the reader the
+ * schemas use); NULL (and a message) on failure. */
 static char *slurp(kn_arena *a, const char *path, size_t *len, FILE *err)
 {
-    kn_defer *d = kn_arena_defer(a, close_file, NULL);
-    FILE *f = fopen(path, "rb");
-    if (!f) {
-        say(err, path, 0, strerror(errno));
-        kn_defer_run(a, d);
+    char *buf;
+    const char *why;
+    if (!kn_read_file(a, path, MAX_BASELINE_BYTES, &buf, len, &why)) {
+        say(err, path, 0, strcmp(why, "file too large") == 0 ? "larger than 256 MiB; not a baseline" : why);
         return NULL;
     }
-    d->ptr = f;
-    size_t cap = 4096, n = 0;
-    char *buf = kn_alloc(a, cap);
-    for (;;) {
-        if (n == cap) {
-            if (cap >= MAX_BASELINE_BYTES) {
-                say(err, path, 0, "larger than 256 MiB; not a baseline");
-                kn_defer_run(a, d);
-                return NULL;
-            }
-            char *bigger = kn_alloc(a, cap * 2);
-            memcpy(bigger, buf, n);
-            buf = bigger;
-            cap *= 2;
-        }
-        size_t got = fread(buf + n, 1, cap - n, f);
-        n += got;
-        if (got == 0) {
-            break;
-        }
-    }
-    bool bad = ferror(f);
-    kn_defer_run(a, d);
-    if (bad) {
-        say(err, path, 0, "read error");
-        return NULL;
-    }
-    *len = n;
     return buf;
 }
 
