@@ -33,10 +33,7 @@ static char *words(const cx *x, kn_interval r)
  * (SPEC §4.2: inherits-late-input, window-overruns). */
 static void at_most_warning(kn_diag *d)
 {
-    d->cap = KN_SEV_WARNING;
-    if (d->severity > KN_SEV_WARNING) {
-        d->severity = KN_SEV_WARNING;
-    }
+    kn_diag_cap(d, KN_SEV_WARNING);
 }
 
 static bool late_or_maybe(kn_verdict v)

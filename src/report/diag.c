@@ -100,6 +100,14 @@ void kn_diag_note(kn_sink *s, kn_diag *d, const kn_pos *pos, const char *fmt, ..
     va_end(ap);
 }
 
+void kn_diag_cap(kn_diag *d, kn_severity most)
+{
+    d->cap = most;
+    if (d->severity > most) {
+        d->severity = most;
+    }
+}
+
 void kn_diag_range(kn_diag *d, int64_t lo, int64_t hi)
 {
     d->has_range = true;

@@ -99,6 +99,10 @@ kn_diag *kn_diag_push(kn_sink *s, kn_rule r, const kn_pos *pos,
 void kn_diag_note(kn_sink *s, kn_diag *d, const kn_pos *pos, const char *fmt, ...)
     __attribute__((format(printf, 4, 5)));
 
+/* Caps the severity this finding may take, whatever the rulebook says (a
+ * "maybe" finding of an error rule is at most a warning). */
+void kn_diag_cap(kn_diag *d, kn_severity most);
+
 /* Records the availability range a timing finding is about, relative to
  * the moment, for machine-readable output (JSON carries it in seconds). */
 void kn_diag_range(kn_diag *d, int64_t lo, int64_t hi);
