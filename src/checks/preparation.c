@@ -152,32 +152,42 @@ static const kn_column *dating_column(const kn_schema *s, const char **how)
     return NULL;
 }
 
+/* Fires on every random or group split (SPEC §4.5): whatever the table
+ * holds, each row is dated by its moment, an event in time, so a split
+ * that ignores time lets training see the test period's future.  The note
+ * names the column that carries the date when one is declared. */
 static void check_random_split(const cx *x)
 {
     const kn_split *sp = &x->s->split;
     if (sp->method != KN_SPLIT_RANDOM && sp->method != KN_SPLIT_GROUP) {
         return;
     }
-    const char *how = "";
-    const kn_column *date = dating_column(x->s, &how);
-    if (!date) {
-        return;
-    }
     kn_sink *sink = x->ctx->sink;
-    const char *moment = x->s->prediction.moment.name ? x->s->prediction.moment.name : "";
+    const kn_prediction *p = &x->s->prediction;
+    const char *moment = p->moment.name ? p->moment.name : "";
     const char *method = kn_split_method_name(sp->method);
     kn_diag *d = kn_diag_push(sink, KN_R_RANDOM_SPLIT_TEMPORAL, split_pos(sp), "split",
                               "split method '%s' assigns rows to training and test regardless of time, while each "
                               "row is dated by its moment '%s': training sees the future of the test period, a "
                               "view the deployed model never has",
                               method, moment);
-    const kn_node *dn = date == KN_REF_COLUMN(x->s->prediction.moment_column) ? x->s->prediction.moment_column.node
-                        : date == KN_REF_COLUMN(sp->time_column)              ? sp->time_column.node
-                                                                              : date->role_node;
-    kn_diag_note(sink, d, kn_column_pos(date, dn), "'%s' dates the rows (%s)", date->name, how);
+    const char *how = "";
+    const kn_column *date = dating_column(x->s, &how);
+    if (date) {
+        const kn_node *dn = date == KN_REF_COLUMN(p->moment_column) ? p->moment_column.node
+                            : date == KN_REF_COLUMN(sp->time_column) ? sp->time_column.node
+                                                                     : date->role_node;
+        kn_diag_note(sink, d, kn_column_pos(date, dn), "'%s' dates the rows (%s)", date->name, how);
+    } else if (p->moment.node) {
+        kn_diag_note(sink, d, &p->moment.node->pos,
+                     "each row is taken at the moment '%s', an event in time, whether or not a column holds its "
+                     "timestamp (declare it as prediction.moment_column)",
+                     moment);
+    }
     kn_diag_note(sink, d, split_pos(sp),
-                 "use method: time (or group_time when an entity has several rows), with a gap of at least the "
-                 "label horizon");
+                 "use method: %s, with a gap of at least the label horizon",
+                 sp->method == KN_SPLIT_GROUP ? "group_time (groups kept whole, and time-ordered)"
+                                              : "time (or group_time when an entity has several rows)");
 }
 
 /* The label horizon: t(label_known) - t(moment), or when label_known is

@@ -621,8 +621,10 @@ static const kn_explain_text texts[] = {
         "training rows.",
     },
     EXPLAIN(RANDOM_SPLIT_TEMPORAL) = {
-        "A split with method: random or group while the rows are dated by the "
-        "prediction moment.",
+        "Every split with method: random or group. Each row is dated by its "
+        "prediction moment, an event in time, whether or not the table holds "
+        "its timestamp; the note names the column that carries it "
+        "(prediction.moment_column) when one is declared.",
         "A random split puts rows from later periods into training and earlier "
         "ones into test, so the model learns from the future of the rows it is "
         "tested on: trends, seasons, a change of tariff. Production always "
