@@ -1,6 +1,7 @@
 /* availability.c - the timeline rules on columns (SPEC §4.2): after-moment,
  * maybe-after-moment, unordered-event, window-overruns, as-of-after-moment,
- * known-before-inputs, inherits-late-input and built-from-target.  Reads
+ * known-before-inputs, inherits-late-input, built-from-target and
+ * target-before-moment.  Reads
  * the ranges the solved timeline computed for every column and pushes one
  * diagnostic per finding into the sink, at the value at fault, with the
  * chain of constraints (or derivations) that proves it in notes. */
@@ -459,6 +460,48 @@ static void check_known_before_inputs(const cx *x, const kn_column *c, const kn_
     explain_column(x, d, c, false, true);
 }
 
+/* target-before-moment (SPEC §4.2): the label is settled (label_known, by
+ * default the target's known event itself) at or before the moment in
+ * every case consistent with the timeline, so there is nothing left to
+ * predict.  The chain of constraints that bounds the label event from
+ * above is given in notes. */
+static void check_label_settled(const cx *x)
+{
+    const kn_prediction *p = &x->s->prediction;
+    const kn_column *target = KN_REF_COLUMN(p->target);
+    const kn_event *e = KN_REF_EVENT(p->label_known);
+    const kn_node *at_node = p->label_known.node;
+    if (!e && target) {
+        e = KN_REF_EVENT(target->known);
+        at_node = target->known.node;
+    }
+    kn_interval r;
+    if (!e || !at_node || !kn_timeline_event_range(x->t, e, &r) || r.hi > 0) {
+        return;
+    }
+    const char *label = target ? target->name : "";
+    kn_sink *sink = x->ctx->sink;
+    kn_diag *d = kn_diag_push(
+        sink, KN_R_TARGET_BEFORE_MOMENT, &at_node->pos, label,
+        "the label of the target '%s' is settled at '%s', %s in every case: nothing is left to predict at the "
+        "moment, or the moment or the label's event is mis-declared",
+        label, e->name, r.lo == r.hi ? offset_words(x, r.hi) : words(x, r));
+    if (KN_REF_EVENT(p->label_known)) {
+        kn_diag_note(sink, d, &at_node->pos, "labels are settled at '%s' (prediction.label_known)", e->name);
+    } else {
+        kn_diag_note(sink, d, &at_node->pos,
+                     "without prediction.label_known the label is settled at the target's known event '%s'",
+                     e->name);
+    }
+    kn_timeline_note_chain(x->t, sink, d, e, true);
+    if (p->moment.node) {
+        kn_diag_note(sink, d, &p->moment.node->pos,
+                     "'%s' is the prediction moment; the label must be settled after it (set label_known to "
+                     "the event that settles the outcome)",
+                     x->moment);
+    }
+}
+
 void kn_check_availability(kn_ctx *ctx, const kn_schema *s, const kn_timeline *t)
 {
     const kn_event *m = kn_timeline_moment(t);
@@ -466,6 +509,7 @@ void kn_check_availability(kn_ctx *ctx, const kn_schema *s, const kn_timeline *t
         return;
     }
     cx x = {ctx, s, t, m->name};
+    check_label_settled(&x);
     for (size_t i = 0; i < s->n_columns; i++) {
         const kn_column *c = s->columns[i];
         const kn_column_timing *T = kn_timeline_column_timing(t, c);

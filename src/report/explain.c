@@ -373,6 +373,34 @@ static const kn_explain_text texts[] = {
         "Join as of the moment itself or an earlier event (here as_of: "
         "account_opened).",
     },
+    EXPLAIN(TARGET_BEFORE_MOMENT) = {
+        "A target whose label is settled at or before the prediction moment in "
+        "every case consistent with the timeline (a Simple Temporal Network, "
+        "Dechter, Meiri & Pearl, 1991). The label is settled at "
+        "prediction.label_known, or without it at the target column's known "
+        "event itself (its delay, latency and refresh only delay the "
+        "recording).",
+        "If the outcome is already decided when the model is asked, there is "
+        "nothing left to predict: either the moment is declared too late (the "
+        "model is really asked earlier), or label_known or the target's known "
+        "event is mis-declared, and then every timing verdict of the schema "
+        "rests on a wrong timeline. A model trained on such rows learns to read "
+        "an outcome that, in production, it would be asked to foresee.",
+        "prediction:\n"
+        "  moment: loan_returned\n"
+        "  target: returned_late\n"
+        "events:\n"
+        "  loan_made: {}\n"
+        "  loan_returned:\n"
+        "    after: {loan_made: [P1D, P60D]}\n"
+        "columns:\n"
+        "  returned_late:\n"
+        "    role: target\n"
+        "    known: loan_returned\n",
+        "Declare the moment at which the model is really asked (here loan_made), "
+        "and the event that settles the outcome as prediction.label_known (or "
+        "as the target's known).",
+    },
 
     /* ---- 4.3 provenance ---- */
     EXPLAIN(EXTERNAL_WITHOUT_PROVENANCE) = {

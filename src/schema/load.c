@@ -1332,6 +1332,49 @@ static void copy_out(ld *l)
     }
 }
 
+/* The target column carries no other role (issue: a target declared as a
+ * feature, or named as the entity or a split column, is silently judged
+ * as one thing or the other).  Reported as schema-shape at the second
+ * role, with a note at prediction.target.  Not counted in l->errors: the
+ * model stays analysable (the target is always treated as the target),
+ * so every other finding is still reported. */
+static void check_target_roles(ld *l)
+{
+    const kn_schema *s = l->s;
+    const kn_column *target = KN_REF_COLUMN(s->prediction.target);
+    if (!target) {
+        return;
+    }
+    const struct {
+        const kn_ref *ref;
+        const char *what, *as;
+    } other[] = {
+        {&s->prediction.entity, "prediction.entity", "the entity"},
+        {&s->prediction.moment_column, "prediction.moment_column", "the moment's timestamp"},
+        {&s->split.column, "split.column", "the split's assignment"},
+        {&s->split.time_column, "split.time_column", "the split's time"},
+        {&s->split.group_column, "split.group_column", "the split's groups"},
+    };
+    const char *name = esc(l, target->name);
+    kn_diag *d = NULL;
+    if (target->role_node && target->role != KN_ROLE_TARGET) {
+        d = kn_diag_push(l->sink, KN_R_SCHEMA_SHAPE, &target->role_node->pos, target->name,
+                         "column '%s' is the target (prediction.target) and cannot also have role '%s'; give it "
+                         "role: target or leave role out",
+                         name, kn_role_name(target->role));
+        kn_diag_note(l->sink, d, &s->prediction.target.node->pos, "'%s' is named the target here", name);
+    }
+    for (size_t i = 0; i < sizeof other / sizeof *other; i++) {
+        if (KN_REF_COLUMN(*other[i].ref) != target || !other[i].ref->node) {
+            continue;
+        }
+        d = kn_diag_push(l->sink, KN_R_SCHEMA_SHAPE, &other[i].ref->node->pos, target->name,
+                         "%s names the target '%s': the column the model predicts cannot also be %s", other[i].what,
+                         name, other[i].as);
+        kn_diag_note(l->sink, d, &s->prediction.target.node->pos, "'%s' is named the target here", name);
+    }
+}
+
 kn_schema *kn_schema_load(kn_arena *a, kn_sink *sink, const char *path, const kn_load_options *opt)
 {
     ld l = {0};
@@ -1370,6 +1413,7 @@ kn_schema *kn_schema_load(kn_arena *a, kn_sink *sink, const char *path, const kn
     }
     copy_out(&l);
     resolve_all(&l);
+    check_target_roles(&l);
     find_cycles(&l);
     l.s->shape_ok = !l.errors;
     return l.s;
