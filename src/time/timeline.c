@@ -4,10 +4,15 @@
  * and an edge later->earlier of weight -lo.  Queue-based Bellman-Ford finds
  * every negative cycle (a contradiction) and, when there is none, the
  * shortest paths from and to the moment, which bound t(X) - t(moment) for
- * every event X.  Column availability (SPEC §3.5) is then computed in
+ * every event X.  The searches start from a reverse postorder of the graph,
+ * so their cost does not depend on the order events are declared in, and
+ * look for a cycle in the predecessor graph every n relaxations, so a
+ * short negative cycle is found in about one sweep, not n.  Column availability (SPEC §3.5) is then computed in
  * derivation order.  Hands on a kn_timeline read by the availability checks
  * and the timeline document. */
 #include "timeline.h"
+
+#include "../util/text.h"
 
 #include <stdint.h>
 #include <string.h>
@@ -16,6 +21,8 @@
 /* Contradictions reported before the search stops: each costs one full
  * search, and a hostile file could hold thousands. */
 #define MAX_CONTRADICTIONS 100
+#define KN_STR_(x) #x
+#define KN_STR(x) KN_STR_(x)
 
 /* Path sums need more than 64 bits: a path of n edges of up to 10,000
  * years each overflows int64 after about 30 edges, and the negative-cycle
@@ -54,6 +61,7 @@ struct kn_timeline {
     size_t n_edges;
     size_t *out_off, *out_e; /* edges leaving each event (CSR) */
     size_t *in_off, *in_e;   /* edges entering each event */
+    size_t *order;           /* reverse postorder over the edges of weight <= 0 */
 
     int64_t *up, *down;         /* bounds of t(X) - t(moment) */
     size_t *pred_up, *pred_down; /* edge behind each bound, NONE at the ends */
@@ -62,6 +70,7 @@ struct kn_timeline {
     size_t n_cyc;
     bool contradictory;
     bool search_cut; /* stopped at MAX_CONTRADICTIONS or the work limit */
+    bool work_cut;   /* ... at the work limit */
 
     kn_column_timing *col;
     size_t n_col;
@@ -173,6 +182,46 @@ static void build_network(kn_timeline *t)
     build_csr(t, true, &t->in_off, &t->in_e);
 }
 
+/* The order the negative-cycle search starts in: a reverse postorder of an
+ * iterative depth-first search over the edges of weight <= 0 (lower bounds:
+ * later -> earlier).  From a virtual source every distance starts at 0, so
+ * these are the edges that can lower one; in reverse postorder each event
+ * comes before the events it lowers, and a chain settles in one sweep
+ * whichever way round it was declared. */
+static void build_order(kn_timeline *t)
+{
+    size_t n = t->n_ev;
+    t->order = kn_alloc_array(t->arena, n ? n : 1, sizeof *t->order);
+    unsigned char *state = kn_alloc(t->arena, n ? n : 1); /* 0 new, 1 open, 2 done */
+    size_t *stack = kn_alloc_array(t->arena, n ? n : 1, sizeof *stack);
+    size_t *next = kn_alloc_array(t->arena, n ? n : 1, sizeof *next);
+    size_t done = 0;
+    for (size_t r = 0; r < n; r++) {
+        if (state[r]) {
+            continue;
+        }
+        size_t top = 0;
+        stack[top++] = r;
+        state[r] = 1;
+        next[r] = t->out_off[r];
+        while (top) {
+            size_t u = stack[top - 1];
+            if (next[u] < t->out_off[u + 1]) {
+                const edge *e = &t->edges[t->out_e[next[u]++]];
+                if (e->w <= 0 && !state[e->to]) {
+                    state[e->to] = 1;
+                    next[e->to] = t->out_off[e->to];
+                    stack[top++] = e->to;
+                }
+            } else {
+                state[u] = 2;
+                top--;
+                t->order[n - 1 - done++] = u; /* postorder, filled from the end */
+            }
+        }
+    }
+}
+
 static scratch *scratch_new(kn_timeline *t)
 {
     size_t n = t->n_ev ? t->n_ev : 1;
@@ -267,13 +316,16 @@ static bool pred_cycle_any(kn_timeline *t, scratch *sc, kn_contradiction *out, s
     return false;
 }
 
-typedef enum cycle_result { NO_CYCLE, CYCLE, CYCLE_UNLOCATED } cycle_result;
-
 /* Bellman-Ford from a virtual source joined to every event by a 0 edge, so
  * that cycles anywhere are found, not only those reachable from the moment.
- * A relaxation chain of n edges proves a negative cycle; the cycle is then
- * read off the predecessor graph. */
-static cycle_result find_cycle(kn_timeline *t, scratch *sc, kn_contradiction *out, size_t **ids)
+ * The predecessor graph is searched for a cycle every n relaxations (O(1)
+ * amortised per relaxation) and whenever a relaxation chain reaches n edges,
+ * which proves a negative cycle.  cap bounds the relaxations of this search:
+ * CUT when it runs out first. */
+typedef enum cycle_result { NO_CYCLE, CYCLE, CYCLE_UNLOCATED, CUT } cycle_result;
+
+static cycle_result find_cycle(kn_timeline *t, scratch *sc, kn_contradiction *out, size_t **ids,
+                               size_t cap)
 {
     size_t n = t->n_ev;
     for (size_t v = 0; v < n; v++) {
@@ -281,15 +333,14 @@ static cycle_result find_cycle(kn_timeline *t, scratch *sc, kn_contradiction *ou
         sc->pred[v] = NONE;
         sc->cnt[v] = 0;
         sc->inq[v] = true;
-        /* Events are usually declared in process order, so lower bounds
-         * point backwards: starting from the last event settles a chain in
-         * one sweep instead of one sweep per event. */
-        sc->queue[v] = n - 1 - v;
+        sc->queue[v] = t->order[v];
     }
     size_t head = 0, len = n;
     /* Without a negative cycle the queue empties within n * m relaxations;
      * twice that proves a cycle even if none was isolated yet. */
     size_t budget = sat_mul(sat_mul(n + 1, t->n_edges + 1), 2);
+    size_t until_look = n + 1;
+    bool changed = false;
     while (len) {
         size_t u = sc->queue[head];
         head = head + 1 == n ? 0 : head + 1;
@@ -307,6 +358,7 @@ static cycle_result find_cycle(kn_timeline *t, scratch *sc, kn_contradiction *ou
                 sc->d[v] = nd;
                 sc->pred[v] = ei;
                 sc->cnt[v] = sc->cnt[u] + 1;
+                changed = true;
                 if (sc->cnt[v] >= n) {
                     sc->cnt[v] = 0;
                     if (pred_cycle_from(t, sc, v, out, ids) || pred_cycle_any(t, sc, out, ids)) {
@@ -320,8 +372,18 @@ static cycle_result find_cycle(kn_timeline *t, scratch *sc, kn_contradiction *ou
                 }
             }
             sc->work++;
+            if (--until_look == 0) {
+                until_look = n + 1;
+                if (changed && pred_cycle_any(t, sc, out, ids)) {
+                    return CYCLE;
+                }
+                changed = false;
+            }
             if (--budget == 0) {
                 return pred_cycle_any(t, sc, out, ids) ? CYCLE : CYCLE_UNLOCATED;
+            }
+            if (--cap == 0) {
+                return CUT;
             }
         }
     }
@@ -352,19 +414,29 @@ static size_t latest_step(const kn_contradiction *c)
 static void find_contradictions(kn_timeline *t, scratch *sc)
 {
     t->cyc = kn_alloc_array(t->arena, MAX_CONTRADICTIONS + 1, sizeof *t->cyc);
-    /* All the searches together stay within a few times events x
-     * constraints, however many contradictions a hostile file holds. */
-    size_t limit = sat_mul(sat_mul(t->n_ev + 1, t->n_edges + 1), 8);
-    limit = limit > SIZE_MAX - 1000000 ? SIZE_MAX : limit + 1000000;
+    /* The first search runs to its end: it decides whether the network is
+     * consistent.  The searches for further contradictions share a budget
+     * proportional to the network, however many contradictions a hostile
+     * file holds; when it runs out, the output says the search stopped. */
+    size_t limit = sat_mul(t->n_ev + t->n_edges + 1, 64);
+    limit = limit > SIZE_MAX - 4000000 ? SIZE_MAX : limit + 4000000;
     while (t->n_cyc < MAX_CONTRADICTIONS) {
-        if (sc->work >= limit) {
-            t->search_cut = true;
-            break;
+        size_t cap = SIZE_MAX;
+        if (t->n_cyc) {
+            if (sc->work >= limit) {
+                t->search_cut = t->work_cut = true;
+                break;
+            }
+            cap = limit - sc->work;
         }
         kn_contradiction c = {0};
         size_t *ids = NULL;
-        cycle_result r = find_cycle(t, sc, &c, &ids);
+        cycle_result r = find_cycle(t, sc, &c, &ids, cap);
         if (r == NO_CYCLE) {
+            break;
+        }
+        if (r == CUT) {
+            t->search_cut = t->work_cut = true;
             break;
         }
         t->contradictory = true;
@@ -486,15 +558,14 @@ char *kn_timeline_range_words(kn_arena *a, kn_interval r, const char *m)
                      fmt_dur(kn_time_neg(lo), b1), fmt_dur(hi, b2), m);
 }
 
-static void push_contradiction(kn_timeline *t, kn_sink *sink, const kn_contradiction *c)
+static kn_diag *push_contradiction(kn_timeline *t, kn_sink *sink, const kn_contradiction *c)
 {
     kn_arena *a = t->arena;
     if (c->n_steps == 0) {
         const kn_pos *pos = t->moment && t->moment->key ? &t->moment->key->pos : NULL;
-        kn_diag_push(sink, KN_R_TIMELINE_CONTRADICTION, pos, t->moment ? t->moment->name : "",
-                     "the event constraints cannot all hold (a negative cycle exists; "
-                     "it could not be isolated within the work limit)");
-        return;
+        return kn_diag_push(sink, KN_R_TIMELINE_CONTRADICTION, pos, t->moment ? t->moment->name : "",
+                            "the event constraints cannot all hold (a negative cycle exists; "
+                            "it could not be isolated within the work limit)");
     }
     const kn_chain_step *at = &c->steps[c->at];
     const kn_event *self = decl_event(at->con);
@@ -523,8 +594,14 @@ static void push_contradiction(kn_timeline *t, kn_sink *sink, const kn_contradic
         c->n_steps == 1 ? kn_printf(a, "'%s' and itself", start->name) : names, start->name,
         fmt_dur(kn_time_neg(c->weight), b));
     for (size_t i = 0; i < c->n_steps; i++) {
+        if (c->n_steps > KN_CHAIN_SHOWN && i == KN_CHAIN_SHOWN / 2) {
+            kn_diag_note(sink, d, NULL, "... and %zu more constraints of this loop, not shown",
+                         c->n_steps - KN_CHAIN_SHOWN);
+            i = c->n_steps - KN_CHAIN_SHOWN / 2;
+        }
         kn_timeline_note_step(sink, d, &c->steps[(c->at + i) % c->n_steps]);
     }
+    return d;
 }
 
 /* --- shortest paths from and to the moment ------------------------------ */
@@ -870,11 +947,20 @@ kn_timeline *kn_timeline_solve(kn_arena *a, kn_sink *sink, const kn_schema *s,
     t->pred_down = kn_alloc_array(a, t->n_ev, sizeof *t->pred_down);
 
     build_network(t);
+    build_order(t);
     scratch *sc = scratch_new(t);
     find_contradictions(t, sc);
     if (sink) {
+        kn_diag *last = NULL;
         for (size_t i = 0; i < t->n_cyc; i++) {
-            push_contradiction(t, sink, &t->cyc[i]);
+            last = push_contradiction(t, sink, &t->cyc[i]);
+        }
+        if (last && t->search_cut) {
+            kn_diag_note(sink, last, NULL,
+                         "the search for contradictions stopped after %zu (%s); further ones, if "
+                         "any, were not searched for: fix these and check again",
+                         t->n_cyc, t->work_cut ? "its work limit, proportional to the network"
+                                               : "it reports at most " KN_STR(MAX_CONTRADICTIONS));
         }
     }
     if (!t->contradictory) {
@@ -979,9 +1065,41 @@ size_t kn_timeline_chain(const kn_timeline *t, const kn_event *e, bool upper,
 void kn_timeline_note_chain(const kn_timeline *t, kn_sink *sink, kn_diag *d,
                             const kn_event *e, bool upper)
 {
-    const kn_chain_step *steps;
-    size_t n = kn_timeline_chain(t, e, upper, &steps);
-    for (size_t i = 0; i < n; i++) {
-        kn_timeline_note_step(sink, d, &steps[i]);
+    size_t i = ev_index(t, e);
+    if (!t || i == NONE || t->contradictory) {
+        return;
+    }
+    /* Walks the predecessors twice instead of copying the chain: a column
+     * at the end of a long chain costs its shown notes, not the chain. */
+    const size_t *pred = upper ? t->pred_up : t->pred_down;
+    size_t n = 0;
+    for (size_t x = i; pred[x] != NONE && n < t->n_ev; n++) {
+        const edge *ed = &t->edges[pred[x]];
+        x = upper ? ed->from : ed->to;
+    }
+    enum { HALF = KN_CHAIN_SHOWN / 2 };
+    kn_chain_step shown[KN_CHAIN_SHOWN];
+    size_t x = i;
+    for (size_t k = 0; k < n; k++) {
+        const edge *ed = &t->edges[pred[x]];
+        /* The upper chain is found walking back from e; it is shown from
+         * the moment outwards. */
+        size_t at = upper ? n - 1 - k : k;
+        if (n <= KN_CHAIN_SHOWN) {
+            shown[at] = ed->step;
+        } else if (at < HALF) {
+            shown[at] = ed->step;
+        } else if (at >= n - HALF) {
+            shown[HALF + at - (n - HALF)] = ed->step;
+        }
+        x = upper ? ed->from : ed->to;
+    }
+    size_t m = n <= KN_CHAIN_SHOWN ? n : KN_CHAIN_SHOWN;
+    for (size_t k = 0; k < m; k++) {
+        if (n > KN_CHAIN_SHOWN && k == HALF) {
+            kn_diag_note(sink, d, NULL, "... and %zu more constraints of this chain, not shown",
+                         n - KN_CHAIN_SHOWN);
+        }
+        kn_timeline_note_step(sink, d, &shown[k]);
     }
 }

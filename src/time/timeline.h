@@ -63,7 +63,9 @@ bool kn_timeline_contradictory(const kn_timeline *t);
 size_t kn_timeline_contradictions(const kn_timeline *t, const kn_contradiction **out);
 
 /* False when the search for further contradictions stopped early (after
- * 100 of them, or at its work limit of about 8 x events x constraints). */
+ * 100 of them, or at its work limit of about 64 x (events + constraints)
+ * relaxations after the first search); the last contradiction pushed then
+ * carries a note saying so. */
 bool kn_timeline_search_complete(const kn_timeline *t);
 
 const kn_event *kn_timeline_moment(const kn_timeline *t);
@@ -82,7 +84,9 @@ size_t kn_timeline_chain(const kn_timeline *t, const kn_event *e, bool upper,
                          const kn_chain_step **out);
 
 /* Adds one note per step of that chain to d, each at the constraint's lag
- * node: "'dispatch' is at most 3d after 'order_placed' (events.dispatch.after)". */
+ * node: "'dispatch' is at most 3d after 'order_placed' (events.dispatch.after)";
+ * a chain longer than KN_CHAIN_SHOWN (util/text.h) shows its first and last
+ * steps and one note counting the others. */
 void kn_timeline_note_chain(const kn_timeline *t, kn_sink *sink, kn_diag *d,
                             const kn_event *e, bool upper);
 void kn_timeline_note_step(kn_sink *sink, kn_diag *d, const kn_chain_step *st);

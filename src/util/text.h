@@ -9,6 +9,12 @@
 
 #include "arena.h"
 
+/* A diagnostic shows at most this many links of a chain (constraints,
+ * derivations) as notes: the first and last KN_CHAIN_SHOWN / 2, with one
+ * note between them saying how many were left out.  A finding's output then
+ * stays bounded whatever the length of the chain behind it. */
+#define KN_CHAIN_SHOWN 16
+
 /* Edit distance (optimal string alignment: insertions, deletions,
  * substitutions and adjacent transpositions), giving up (returning limit + 1) once it exceeds
  * limit; inputs longer than 256 bytes are never close. */

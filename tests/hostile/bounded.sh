@@ -1,0 +1,157 @@
+#!/bin/sh
+# tests/hostile/bounded.sh KNOWABLE CASE - one bounded-cost test (SPEC §9):
+# small inputs that once cost minutes or gigabytes.  Each case writes its
+# input into a fresh temporary folder, large enough that the old behaviour
+# took far longer than the meson timeout or far more memory, and asserts
+# what bounds the cost now: the exit status, the truncation said in the
+# output, and the size of the output.  Times are printed, never asserted.
+# Exit 0 pass, 1 fail.
+set -u
+knowable=${1:?usage: bounded.sh KNOWABLE CASE}
+case=${2:?usage: bounded.sh KNOWABLE CASE}
+case $knowable in /*) ;; *) knowable=$(pwd)/$knowable ;; esac
+tmp=$(mktemp -d "${TMPDIR:-/tmp}/kn-bounded.XXXXXX") || exit 1
+trap 'rm -rf "$tmp"' EXIT
+cd "$tmp" || exit 1
+export KNOWABLE_TODAY=2026-12-01
+unset NO_COLOR
+fails=0
+
+fail() {
+    echo "FAIL: $*"
+    fails=$((fails + 1))
+}
+
+# run NAME ARGS...: runs knowable ARGS with stdout in NAME.out and stderr in
+# NAME.err, sets $rc, prints the wall time.
+run() {
+    name=$1
+    shift
+    t0=$(date +%s%N)
+    "$knowable" "$@" >"$name.out" 2>"$name.err"
+    rc=$?
+    t1=$(date +%s%N)
+    echo "$case/$name: exit $rc in $(((t1 - t0) / 1000000)) ms, $(wc -c <"$name.out") bytes: knowable $*" | cut -c1-200
+    if [ "$rc" -ge 128 ]; then
+        fail "$name: killed by signal $((rc - 128))"
+    fi
+    if grep -q -e 'Sanitizer' -e 'runtime error' "$name.err"; then
+        fail "$name: sanitizer report"
+        head -n 20 "$name.err"
+    fi
+}
+
+expect_rc() {
+    [ "$rc" = "$1" ] || { fail "$name: exit $rc, expected $1"; sed 's/^/    /' "$name.err" | head -n 5; }
+}
+
+# expect_grep PATTERN FILE WHAT: FILE holds a line matching PATTERN.
+expect_grep() {
+    grep -q -e "$1" "$2" || fail "$name: $3"
+}
+
+# at_most BYTES FILE: the output stays bounded.
+at_most() {
+    size=$(wc -c <"$2")
+    [ "$size" -le "$1" ] || fail "$2 holds $size bytes, more than $1"
+}
+
+# most_notes FILE: the largest number of notes under one diagnostic.
+most_notes() {
+    awk '/: (error|warning): / { n = 0 } /: note: / { n++; if (n > m) m = n } END { print m + 0 }' "$1"
+}
+
+# An event chain: e0 <- e1 <- ... <- e(N-1), each 1h to 2h after the one
+# before; declared oldest first (old) or newest first (new).
+event_chain() {
+    awk -v n="$1" -v order="$2" 'BEGIN {
+        for (k = 0; k < n; k++) {
+            i = order == "old" ? k : n - 1 - k
+            if (i == 0) print "  e0: {}"
+            else printf "  e%d: {after: {e%d: [PT1H, PT2H]}}\n", i, i - 1
+        }
+    }'
+}
+
+case_event_order() {
+    # The solver once ran in declaration order: 32,000 events declared
+    # newest first took 5 s (oldest first 0.17 s) and 64,000 took 34 s.
+    for order in old new; do
+        { printf '%s\n' 'knowable: 1' 'dataset: parcels' 'prediction: {moment: e0, target: late}' 'events:'
+          event_chain 64000 $order
+          printf '%s\n' 'columns:' '  late: {role: target, known: e1}' '  weight: {known: e63999}'
+        } >$order.knowable.yaml
+        run $order check $order.knowable.yaml
+        expect_rc 1
+        expect_grep "^$order.knowable.yaml:[0-9]*:[0-9]*: error: column 'weight' .*\[after-moment\]" $order.out \
+            "no after-moment finding for the column at the end of the chain"
+    done
+    sed 's/^old/X/' old.out >old.cmp
+    sed 's/^new/X/' new.out | grep -v ': note: ' >new.cmp
+    grep -v ': note: ' old.cmp >old.cmp2
+    cmp -s old.cmp2 new.cmp || fail "the verdict depends on the order of declaration"
+}
+
+case_many_contradictions() {
+    # 100 contradictions among 32,000 events took 74 s (the search restarted
+    # a sweep per edge of each loop) and said nothing of its cut.
+    awk 'BEGIN {
+        n = 32000
+        print "knowable: 1\ndataset: parcels\nprediction: {moment: e0, target: late}\nevents:\n  e0: {}"
+        for (i = 1; i < n; i++) {
+            if (i % 300 == 0) printf "  e%d: {after: {e%d: [PT1H, PT2H]}, before: {e%d: PT3H}}\n", i, i - 1, i - 1
+            else printf "  e%d: {after: {e%d: [PT1H, PT2H]}}\n", i, i - 1
+        }
+        print "columns:\n  late: {role: target, known: e1}"
+    }' >loops.knowable.yaml
+    run loops check loops.knowable.yaml
+    expect_rc 1
+    n=$(grep -c ': error: .*\[timeline-contradiction\]' loops.out)
+    [ "$n" = 100 ] || fail "loops: $n contradictions reported, expected the first 100"
+    expect_grep '^loops.knowable.yaml: note: the search for contradictions stopped after 100' loops.out \
+        "the output does not say the search stopped"
+    # One loop through the whole chain: its notes are capped.
+    awk 'BEGIN {
+        n = 20000
+        print "knowable: 1\ndataset: parcels\nprediction: {moment: e0, target: late}\nevents:"
+        printf "  e0: {after: {e%d: PT1H}}\n", n - 1
+        for (i = 1; i < n; i++) printf "  e%d: {after: {e%d: PT1H}}\n", i, i - 1
+        print "columns:\n  late: {role: target, known: e1}"
+    }' >ring.knowable.yaml
+    run ring check ring.knowable.yaml
+    expect_rc 1
+    expect_grep 'note: \.\.\. and 19984 more constraints of this loop, not shown' ring.out \
+        "ring: the notes of the loop are not capped"
+    [ "$(most_notes ring.out)" -le 17 ] || fail "ring: $(most_notes ring.out) notes under one diagnostic"
+}
+
+case_long_chain_notes() {
+    # 5,000 columns known at the end of a 2,000-event chain: every note
+    # listed the whole chain (819 MB of text, 2.7 GB of memory, 37 s).
+    { printf '%s\n' 'knowable: 1' 'dataset: parcels' 'prediction: {moment: e0, target: late}' 'events:'
+      event_chain 2000 old
+      printf '%s\n' 'columns:' '  late: {role: target, known: e1}'
+      awk 'BEGIN { for (i = 0; i < 5000; i++) printf "  f%d: {known: e1999}\n", i }'
+    } >chain.knowable.yaml
+    run chain check chain.knowable.yaml
+    expect_rc 1
+    n=$(grep -c ": error: column 'f[0-9]*' .*\[after-moment\]" chain.out)
+    [ "$n" = 5000 ] || fail "chain: $n findings, expected 5000"
+    expect_grep '^chain.knowable.yaml: note: \.\.\. and 1983 more constraints of this chain, not shown$' chain.out \
+        "chain: no note says how many constraints were left out"
+    [ "$(most_notes chain.out)" -le 18 ] || fail "chain: $(most_notes chain.out) notes under one diagnostic"
+    at_most 12000000 chain.out
+    run sarif check --format sarif chain.knowable.yaml
+    expect_rc 1
+    at_most 40000000 sarif.out
+}
+
+fn=case_$(echo "$case" | tr - _)
+command -v "$fn" >/dev/null 2>&1 || { echo "no case '$case'"; exit 1; }
+"$fn"
+if [ "$fails" != 0 ]; then
+    echo "$case: $fails failures"
+    exit 1
+fi
+echo "$case: passed"
+exit 0
