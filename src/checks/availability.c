@@ -275,10 +275,15 @@ static void check_window(const cx *x, const kn_column *c, const kn_column_timing
         }
         return;
     }
+    /* A window that ends after the moment overruns whatever the source's
+     * latency: a negative latency cannot bring a future record into the past. */
+    kn_verdict end = kn_timeline_classify(x->t, T->window_end);
+    if (end == KN_VERDICT_LATE || (end == KN_VERDICT_MAYBE_LATE && v == KN_VERDICT_AVAILABLE)) {
+        v = end;
+    }
     if (!late_or_maybe(v)) {
         return;
     }
-    kn_verdict end = kn_timeline_classify(x->t, T->window_end);
     const char *first;
     if (end == KN_VERDICT_LATE) {
         first = kn_printf(a, "the window of column '%s' ends after the moment: its end is %s",
@@ -389,29 +394,62 @@ static bool check_target(const cx *x, const kn_column *c, const kn_column_timing
     return true;
 }
 
-static void check_inputs(const cx *x, const kn_column *c, const kn_column_timing *T)
+/* The latest of c's timed inputs; with skip_target, inputs that carry the
+ * target are left out (built-from-target reports them).  *lo_in and *hi_in
+ * are the inputs with the latest lower and upper ends (first on a tie). */
+static bool latest_input(const cx *x, const kn_column *c, bool skip_target, kn_interval *out,
+                         const kn_column **lo_in, const kn_column **hi_in, const kn_column **unordered)
 {
-    kn_sink *sink = x->ctx->sink;
-    const kn_column *unordered = NULL;
-    for (size_t i = 0; i < c->n_derived && !unordered; i++) {
+    bool any = false;
+    *lo_in = *hi_in = *unordered = NULL;
+    for (size_t i = 0; i < c->n_derived; i++) {
         const kn_column *in = KN_REF_COLUMN(c->derived_from[i]);
-        if (kn_timeline_column_verdict(x->t, in) == KN_VERDICT_UNORDERED) {
-            unordered = in;
+        const kn_column_timing *I = kn_timeline_column_timing(x->t, in);
+        if (!in || in->broken || !I || !I->computed || (skip_target && I->from_target)) {
+            continue;
+        }
+        if (!*hi_in || I->range.hi > out->hi) {
+            *hi_in = in;
+        }
+        if (!*lo_in || I->range.lo > out->lo) {
+            *lo_in = in;
+        }
+        *out = any ? (kn_interval){out->lo > I->range.lo ? out->lo : I->range.lo,
+                                   out->hi > I->range.hi ? out->hi : I->range.hi}
+                   : I->range;
+        any = true;
+        if (!*unordered && I->verdict == KN_VERDICT_UNORDERED) {
+            *unordered = in;
         }
     }
-    kn_verdict v = kn_timeline_classify(x->t, T->inputs_latest);
+    return any;
+}
+
+static void check_inputs(const cx *x, const kn_column *c, const kn_column_timing *T, bool skip_target)
+{
+    kn_sink *sink = x->ctx->sink;
+    kn_interval latest;
+    const kn_column *lo_in, *hi_in, *unordered;
+    if (!latest_input(x, c, skip_target, &latest, &lo_in, &hi_in, &unordered)) {
+        return;
+    }
+    if (T->inputs_partial && latest.hi < KN_TIME_INF) {
+        latest.hi = KN_TIME_INF; /* an untimed input may come later */
+    }
+    kn_verdict v = kn_timeline_classify(x->t, latest);
+    if (T->inputs_partial && v != KN_VERDICT_LATE) {
+        return; /* judged by its own timing, or not at all */
+    }
     if (v != KN_VERDICT_LATE && unordered) {
-        kn_diag *d = kn_diag_push(sink, KN_R_UNORDERED_EVENT, at(c, ref_node_to(c, unordered)),
-                                  c->name,
-                                  "column '%s' is derived from '%s', whose availability no chain "
-                                  "of constraints bounds from above relative to the moment '%s'",
-                                  c->name, unordered->name, x->moment);
-        (void)d;
+        kn_diag_push(sink, KN_R_UNORDERED_EVENT, at(c, ref_node_to(c, unordered)), c->name,
+                     "column '%s' is derived from '%s', whose availability no chain "
+                     "of constraints bounds from above relative to the moment '%s'",
+                     c->name, unordered->name, x->moment);
         return;
     }
     if (late_or_maybe(v)) {
         bool late = v == KN_VERDICT_LATE;
-        const kn_column *in = late ? T->latest_lo : T->latest_hi;
+        const kn_column *in = late ? lo_in : hi_in;
         const kn_column_timing *I = kn_timeline_column_timing(x->t, in);
         kn_diag *d = kn_diag_push(sink, KN_R_INHERITS_LATE_INPUT, at(c, ref_node_to(c, in)),
                                   c->name, "column '%s' is derived from '%s', which %s: %s",
@@ -423,11 +461,15 @@ static void check_inputs(const cx *x, const kn_column *c, const kn_column_timing
         if (!late) {
             at_most_warning(d);
         }
-        explain_column(x, d, c, !late, true);
+        kn_diag_note(sink, d, at(c, ref_node_to(c, in)),
+                     "'%s' is derived from '%s', which is available %s (columns.%s.derived_from)",
+                     c->name, in->name, words(x, I->range), c->name);
+        note_delay(x, d, c);
+        explain_column(x, d, in, !late, false);
         return;
     }
     kn_verdict vd = T->part_verdict[KN_PART_INPUTS];
-    if (late_or_maybe(vd)) {
+    if (!skip_target && late_or_maybe(vd)) {
         kn_diag *d = kn_diag_push(
             sink, vd == KN_VERDICT_LATE ? KN_R_AFTER_MOMENT : KN_R_MAYBE_AFTER_MOMENT,
             at(c, c->delay.node ? c->delay.node : c->derived_node), c->name,
@@ -505,21 +547,21 @@ static void check_label_settled(const cx *x)
 void kn_check_availability(kn_ctx *ctx, const kn_schema *s, const kn_timeline *t)
 {
     const kn_event *m = kn_timeline_moment(t);
-    if (!t || !m || kn_timeline_contradictory(t)) {
-        return;
+    cx x = {ctx, s, t, m ? m->name : ""};
+    if (m) {
+        check_label_settled(&x);
     }
-    cx x = {ctx, s, t, m->name};
-    check_label_settled(&x);
     for (size_t i = 0; i < s->n_columns; i++) {
         const kn_column *c = s->columns[i];
         const kn_column_timing *T = kn_timeline_column_timing(t, c);
-        if (!T || !T->ordered) {
+        /* A column set aside has its own error; nothing more is said of it. */
+        if (!T || !T->ordered || c->broken) {
             continue;
         }
         /* The target is never a feature, whatever its role says. */
         bool feature = c->role == KN_ROLE_FEATURE && KN_REF_COLUMN(s->prediction.target) != c;
         bool from_target = feature && check_target(&x, c, T);
-        if (!T->computed) {
+        if (!T->computed || !m) {
             continue;
         }
         check_known_before_inputs(&x, c, T);
@@ -532,8 +574,9 @@ void kn_check_availability(kn_ctx *ctx, const kn_schema *s, const kn_timeline *t
         if (T->has[KN_PART_WINDOW]) {
             check_window(&x, c, T);
         }
-        if (T->has[KN_PART_INPUTS] && !from_target) {
-            check_inputs(&x, c, T);
+        if (c->n_derived) {
+            /* built-from-target does not hide a late input of another kind */
+            check_inputs(&x, c, T, from_target);
         }
         if (T->has[KN_PART_AS_OF]) {
             check_as_of(&x, c, T);

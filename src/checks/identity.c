@@ -685,6 +685,9 @@ void kn_check_identity(kn_ctx *ctx, const kn_schema *s, const kn_timeline *t)
     x.any[1] = combined(ctx->arena, ctx->rulebook, true);
     for (size_t i = 0; i < s->n_columns; i++) {
         const kn_column *c = s->columns[i];
+        if (c->broken) {
+            continue; /* set aside with its own error */
+        }
         check_structured(&x, c);
         check_identifier_in_features(&x, c);
         check_proxy(&x, c);

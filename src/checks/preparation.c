@@ -190,9 +190,9 @@ static void check_random_split(const cx *x)
                                               : "time (or group_time when an entity has several rows)");
 }
 
-/* The label horizon: t(label_known) - t(moment), or when label_known is
- * not given, the target's availability (its known event plus delay and
- * source latency). */
+/* The label horizon: the upper bound of t(label_known) - t(moment), where
+ * label_known defaults to the target's known event (SPEC §3.2: the target's
+ * delay, latency and refresh are recording delays, not information). */
 static bool label_horizon(const cx *x, kn_interval *out, const kn_event **event, const kn_node **node,
                           const char **words)
 {
@@ -204,17 +204,15 @@ static bool label_horizon(const cx *x, kn_interval *out, const kn_event **event,
         return kn_timeline_event_range(x->t, *event, out);
     }
     const kn_column *target = KN_REF_COLUMN(p->target);
-    if (!target) {
+    if (!target || target->broken || !KN_REF_EVENT(target->known)) {
         return false;
     }
     *event = KN_REF_EVENT(target->known);
-    *node = target->known.node ? target->known.node : target->key;
-    *words = *event ? kn_printf(x->ctx->arena, "the target '%s' is recorded from '%s' on (its known, delay and "
-                                               "source latency; no prediction.label_known)",
-                                target->name, (*event)->name)
-                    : kn_printf(x->ctx->arena, "the target '%s' is recorded then (no prediction.label_known)",
-                                target->name);
-    return kn_timeline_column_range(x->t, target, out);
+    *node = target->known.node;
+    *words = kn_printf(x->ctx->arena, "labels are settled at '%s', where the target '%s' becomes known "
+                                      "(columns.%s.known; no prediction.label_known)",
+                       (*event)->name, target->name, target->name);
+    return kn_timeline_event_range(x->t, *event, out);
 }
 
 static void check_gap(const cx *x)

@@ -202,7 +202,9 @@ static void check_column(px *x, const kn_column *c)
 {
     kn_sink *sink = x->ctx->sink;
     if (c->role == KN_ROLE_FEATURE) {
-        if (!c->known.name && !c->window.present && !c->n_derived) {
+        /* A misspelt key (schema-shape) may be the missing `known`: its own
+         * error says so, and guessing twice helps nobody. */
+        if (!c->known.name && !c->window.present && !c->n_derived && !c->stray_key) {
             kn_diag *d = kn_diag_push(sink, KN_R_MISSING_KNOWN, col_at(c, NULL), c->name,
                                       "feature '%s' has none of known, window or derived_from: nothing says when its "
                                       "value exists, so its availability at the moment cannot be checked",
@@ -250,6 +252,9 @@ void kn_check_provenance(kn_ctx *ctx, const kn_schema *s)
     px x = {ctx, s};
     for (size_t i = 0; i < s->n_sources; i++) {
         const kn_source *src = s->sources[i];
+        if (src->broken) {
+            continue; /* set aside with its own error */
+        }
         if (src->kind == KN_SOURCE_EXTERNAL) {
             check_external(&x, src);
         }
@@ -262,6 +267,11 @@ void kn_check_provenance(kn_ctx *ctx, const kn_schema *s)
         }
     }
     for (size_t i = 0; i < s->n_columns; i++) {
-        check_column(&x, s->columns[i]);
+        const kn_column *c = s->columns[i];
+        const kn_source *src = KN_REF_SOURCE(c->source), *via = KN_REF_SOURCE(c->join.source);
+        if (c->broken || (src && src->broken) || (via && via->broken)) {
+            continue;
+        }
+        check_column(&x, c);
     }
 }

@@ -66,6 +66,9 @@ typedef struct ld {
     kn_node **include_nodes;            /* per stack level: the include's value node */
     size_t n_files;
     bool errors;
+    size_t unknown_keys;
+    size_t value_errors; /* errors that make the object being loaded unusable
+                            (every error but an unknown key, which is ignored) */
 } ld;
 
 static const char *owner_str(ld *l, const owner *o)
@@ -100,6 +103,7 @@ static kn_diag *err(ld *l, kn_rule r, const kn_node *at, const char *fmt, ...)
     char *msg = kn_vprintf(l->a, fmt, ap);
     va_end(ap);
     l->errors = true;
+    l->value_errors++;
     return kn_diag_push(l->sink, r, at ? &at->pos : NULL, NULL, "%s", msg);
 }
 
@@ -196,6 +200,7 @@ static bool parse_duration(ld *l, const owner *o, const char *key, const kn_node
     if (!kn_duration_parse(v->u.scalar.text, v->u.scalar.len, out, &off, &why)) {
         kn_pos p = kn_node_char_pos(v, off);
         l->errors = true;
+        l->value_errors++;
         kn_diag *d = kn_diag_push(l->sink, KN_R_BAD_DURATION, &p, o->name,
                                   "'%s' of %s is not an ISO 8601 duration: %s", node_esc(l, v),
                                   owner_str(l, o), why ? why : "malformed");
@@ -423,6 +428,8 @@ static bool check_shape(ld *l, const kn_shape *sh, const owner *o, const kn_node
             } else {
                 d = err(l, KN_R_SCHEMA_SHAPE, k, "unknown key '%s' in %s", node_esc(l, k), owner_str(l, o));
             }
+            l->value_errors--; /* an unknown key is ignored; what it sits in still loads */
+            l->unknown_keys++;
             const char *list = "";
             for (size_t j = 0; j < sh->n_keys; j++) {
                 list = kn_printf(l->a, "%s%s%s", list, j ? ", " : "", sh->keys[j].name);
@@ -517,7 +524,10 @@ static void add_relation(ld *l, kn_event *e, const owner *o, const char *key, kn
         c.ref = ref_of(k);
         c.before = before;
         if (!parse_lag(l, o, key, lag, &c.lag)) {
-            continue;
+            /* Kept, marked: the timeline needs to know that the two events
+             * are tied, to tell what the broken lag could have changed. */
+            c.lag.present = false;
+            c.broken = true;
         }
         kn_vec_push(cons, &c);
     }
@@ -558,6 +568,7 @@ static void load_events(ld *l, const kn_key_spec *spec, kn_node *map)
         e->key = k;
         e->value = v;
         owner o = {"event", e->name, -1, k};
+        size_t errors_before = l->value_errors;
         if (!kn_node_is_null(v)) {
             kn_node *vals[MAX_KEYS];
             if (check_shape(l, sh, &o, v, vals)) {
@@ -577,6 +588,7 @@ static void load_events(ld *l, const kn_key_spec *spec, kn_node *map)
                 kn_defer_run(l->a, cons->defer);
             }
         }
+        e->broken = l->value_errors != errors_before;
         define(l, l->s->event_names, "event", e->name, k, e, event_key);
         if (kn_names_get(l->s->event_names, e->name) == e) {
             e->index = l->events->len;
@@ -602,6 +614,7 @@ static void load_sources(ld *l, const kn_key_spec *spec, kn_node *map)
         s->value = v;
         s->point_in_time = -1;
         owner o = {"source", s->name, -1, k};
+        size_t errors_before = l->value_errors;
         kn_node *vals[MAX_KEYS];
         if (check_shape(l, sh, &o, v, vals)) {
             for (size_t f = 0; f < KN_SF_COUNT; f++) {
@@ -637,6 +650,7 @@ static void load_sources(ld *l, const kn_key_spec *spec, kn_node *map)
                 s->point_in_time = b;
             }
         }
+        s->broken = l->value_errors != errors_before;
         define(l, l->s->source_names, "source", s->name, k, s, source_key);
         if (kn_names_get(l->s->source_names, s->name) == s) {
             s->index = l->sources->len;
@@ -807,7 +821,10 @@ static void load_columns(ld *l, const kn_key_spec *spec, kn_node *map)
         c->name = k->u.scalar.text;
         c->key = k;
         c->value = v;
+        size_t errors_before = l->value_errors, unknown_before = l->unknown_keys;
         load_column(l, spec->sub, c);
+        c->broken = l->value_errors != errors_before;
+        c->stray_key = l->unknown_keys != unknown_before;
         if (!kn_names_put(l->s->column_names, c->name, c)) {
             /* The YAML layer already reported the duplicate key. */
             continue;
@@ -1061,6 +1078,7 @@ static void load_file(ld *l, const char *real, const char *display, bool main_fi
         if (vals[T_PREDICTION]) {
             kn_node *pv[MAX_KEYS];
             owner po = {"prediction", NULL, -1, vals[T_PREDICTION]};
+            size_t errors_before = l->value_errors;
             if (check_shape(l, sh->keys[T_PREDICTION].sub, &po, vals[T_PREDICTION], pv)) {
                 s->prediction.node = vals[T_PREDICTION];
                 s->prediction.moment = ref_of(pv[P_MOMENT]);
@@ -1069,6 +1087,9 @@ static void load_file(ld *l, const char *real, const char *display, bool main_fi
                 s->prediction.moment_column = ref_of(pv[P_MOMENT_COLUMN]);
                 s->prediction.label_known = ref_of(pv[P_LABEL_KNOWN]);
             }
+            s->prediction_broken = l->value_errors != errors_before;
+        } else {
+            s->prediction_broken = true;
         }
         if (vals[T_COLUMNS]) {
             load_columns(l, &sh->keys[T_COLUMNS], vals[T_COLUMNS]);
@@ -1105,14 +1126,15 @@ typedef struct namespace_ {
     size_t n;
 } namespace_;
 
-static void resolve(ld *l, namespace_ *ns, kn_ref *r, const char *context)
+/* Resolves r; false (after reporting it) when it names nothing. */
+static bool resolve(ld *l, namespace_ *ns, kn_ref *r, const char *context)
 {
     if (!r->name) {
-        return;
+        return true;
     }
     r->target = kn_names_get(ns->map, r->name);
     if (r->target) {
-        return;
+        return true;
     }
     if (!ns->names) {
         ns->names = names_array(l, ns->map, &ns->n);
@@ -1124,20 +1146,22 @@ static void resolve(ld *l, namespace_ *ns, kn_ref *r, const char *context)
     } else {
         err(l, KN_R_UNKNOWN_REFERENCE, r->node, "%s: %s '%s' is not defined", context, ns->what, esc(l, r->name));
     }
+    return false;
 }
 
 /* resolve() for the references of one named object: the context words
  * ("column 'name'") are only spelt out when a reference fails, so a clean
  * schema of many columns pays one lookup per reference and nothing more. */
-static void resolve_in(ld *l, namespace_ *ns, kn_ref *r, const char *what, const char *name)
+static bool resolve_in(ld *l, namespace_ *ns, kn_ref *r, const char *what, const char *name)
 {
     if (!r->name) {
-        return;
+        return true;
     }
     r->target = kn_names_get(ns->map, r->name);
     if (!r->target) {
-        resolve(l, ns, r, kn_printf(l->a, "%s '%s'", what, esc(l, name)));
+        return resolve(l, ns, r, kn_printf(l->a, "%s '%s'", what, esc(l, name)));
     }
+    return true;
 }
 
 static void mark_event(kn_ref *r)
@@ -1169,7 +1193,9 @@ static void resolve_all(ld *l)
             if (!ctx) {
                 ctx = kn_printf(l->a, "event '%s'", esc(l, e->name));
             }
-            resolve(l, &ev, &c->ref, ctx);
+            if (!resolve(l, &ev, &c->ref, ctx)) {
+                e->broken = true;
+            }
             kn_event *other = KN_REF_EVENT(c->ref);
             if (c->before) {
                 c->earlier = e;
@@ -1181,11 +1207,14 @@ static void resolve_all(ld *l)
         }
     }
     kn_prediction *p = &s->prediction;
-    resolve(l, &ev, &p->moment, "prediction moment");
-    resolve(l, &co, &p->target, "prediction target");
-    resolve(l, &co, &p->entity, "prediction entity");
-    resolve(l, &co, &p->moment_column, "prediction moment_column");
-    resolve(l, &ev, &p->label_known, "prediction label_known");
+    bool ok = resolve(l, &ev, &p->moment, "prediction moment");
+    ok = resolve(l, &co, &p->target, "prediction target") && ok;
+    ok = resolve(l, &co, &p->entity, "prediction entity") && ok;
+    ok = resolve(l, &co, &p->moment_column, "prediction moment_column") && ok;
+    ok = resolve(l, &ev, &p->label_known, "prediction label_known") && ok;
+    if (!ok) {
+        s->prediction_broken = true;
+    }
     mark_event(&p->moment);
     mark_event(&p->label_known);
 
@@ -1195,23 +1224,26 @@ static void resolve_all(ld *l)
             !c->proxy_of.name && !c->n_waivers) {
             continue;
         }
-        resolve_in(l, &ev, &c->known, "column", c->name);
+        bool col_ok = resolve_in(l, &ev, &c->known, "column", c->name);
         mark_event(&c->known);
-        resolve_in(l, &so, &c->source, "column", c->name);
+        col_ok = resolve_in(l, &so, &c->source, "column", c->name) && col_ok;
         mark_source(&c->source);
         for (size_t j = 0; j < c->join.n_keys; j++) {
-            resolve_in(l, &co, &c->join.keys[j], "column", c->name);
+            col_ok = resolve_in(l, &co, &c->join.keys[j], "column", c->name) && col_ok;
         }
-        resolve_in(l, &ev, &c->join.as_of, "column", c->name);
+        col_ok = resolve_in(l, &ev, &c->join.as_of, "column", c->name) && col_ok;
         mark_event(&c->join.as_of);
-        resolve_in(l, &so, &c->join.source, "column", c->name);
+        col_ok = resolve_in(l, &so, &c->join.source, "column", c->name) && col_ok;
         mark_source(&c->join.source);
         for (size_t j = 0; j < c->n_derived; j++) {
-            resolve_in(l, &co, &c->derived_from[j], "column", c->name);
+            col_ok = resolve_in(l, &co, &c->derived_from[j], "column", c->name) && col_ok;
         }
-        resolve_in(l, &ev, &c->window.anchor, "column", c->name);
+        col_ok = resolve_in(l, &ev, &c->window.anchor, "column", c->name) && col_ok;
         mark_event(&c->window.anchor);
-        resolve_in(l, &co, &c->proxy_of, "column", c->name);
+        col_ok = resolve_in(l, &co, &c->proxy_of, "column", c->name) && col_ok;
+        if (!col_ok) {
+            c->broken = true;
+        }
         for (size_t j = 0; j < c->n_waivers; j++) {
             kn_waiver *w = &c->waivers[j];
             if (!w->rule_ref.name) {
@@ -1297,6 +1329,9 @@ static void find_cycles(ld *l)
                     path = kn_printf(l->a, "%s'%s'", path, esc(l, cv->name));
                     kn_diag *d = err(l, KN_R_DERIVATION_CYCLE, edge->node,
                                      "column '%s' is derived from itself through %s", esc(l, cv->name), path);
+                    for (size_t j = k; j < top; j++) {
+                        s->columns[stack[j]]->broken = true;
+                    }
                     for (size_t j = k; j < top; j++) {
                         kn_column *cj = s->columns[stack[j]];
                         kn_column *to = j + 1 < top ? s->columns[stack[j + 1]] : cv;

@@ -51,6 +51,8 @@ typedef struct kn_constraint {
     kn_lag lag;
     kn_ref ref;   /* the other event, as named */
     bool before;  /* declared with `before` */
+    bool broken;  /* its lag could not be read: it ties the two events, but
+                     how closely is unknown (lag present is false) */
 } kn_constraint;
 
 struct kn_event {
@@ -62,6 +64,8 @@ struct kn_event {
     size_t n_cons;
     size_t index; /* position in kn_schema.events */
     bool used;    /* some column or the prediction refers to it */
+    bool broken;  /* a constraint of its own is malformed or names no event:
+                     set aside (with its own error) from the timeline */
 };
 
 typedef enum kn_source_kind { KN_SOURCE_UNSET, KN_SOURCE_INTERNAL, KN_SOURCE_EXTERNAL } kn_source_kind;
@@ -109,6 +113,8 @@ struct kn_source {
     int point_in_time;      /* -1 unset, 0 false, 1 true */
     size_t index;
     bool used;
+    bool broken; /* a value of its own is malformed: set aside, and the
+                    timing of the columns read from it is not judged */
 };
 
 typedef enum kn_role {
@@ -209,6 +215,13 @@ struct kn_column {
 
     kn_waiver *waivers;
     size_t n_waivers;
+
+    /* Set aside with its own error (SPEC §4, independence of findings): a
+     * value of its own is malformed, a reference names nothing, or it lies
+     * on a derivation cycle.  Analyses skip it; what is derived from it is
+     * judged on its other inputs. */
+    bool broken;
+    bool stray_key; /* it has a key the format does not know (ignored) */
 };
 
 typedef enum kn_step_kind {
@@ -298,7 +311,10 @@ typedef struct kn_schema {
     size_t n_files;
 
     kn_name_map *event_names, *source_names, *column_names;
-    bool shape_ok; /* no schema error: analyses may trust the model */
+    bool shape_ok; /* no schema error at all (the broken marks of events,
+                      sources and columns say what an error affects) */
+    bool prediction_broken; /* prediction's moment or target names nothing,
+                               or has the wrong type */
 } kn_schema;
 
 struct kn_rulebook;

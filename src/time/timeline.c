@@ -71,6 +71,10 @@ struct kn_timeline {
     bool contradictory;
     bool search_cut; /* stopped at MAX_CONTRADICTIONS or the work limit */
     bool work_cut;   /* ... at the work limit */
+    bool unsolved;   /* no ranges at all: a contradiction could not be
+                        isolated, or the search for them was cut */
+    bool *aside;     /* per event: broken, on a contradiction, or tied to the
+                        moment only through such an event (no range) */
 
     kn_column_timing *col;
     size_t n_col;
@@ -166,8 +170,11 @@ static void build_network(kn_timeline *t)
         for (size_t k = 0; k < ev->n_cons; k++) {
             const kn_constraint *c = &ev->cons[k];
             size_t a = ev_index(t, c->earlier), b = ev_index(t, c->later);
-            /* Unresolved names and MIN > MAX were reported by the loader. */
-            if (a == NONE || b == NONE || c->lag.lo > c->lag.hi) {
+            /* Unresolved names, unreadable lags and MIN > MAX were reported
+             * by the loader; an event with such a constraint is set aside
+             * whole (aside_broken below). */
+            if (a == NONE || b == NONE || c->broken || !c->lag.present || c->lag.lo > c->lag.hi ||
+                s->events[a]->broken || s->events[b]->broken) {
                 continue;
             }
             if (c->lag.hi < KN_TIME_INF) {
@@ -635,6 +642,9 @@ static void solve_from_moment(kn_timeline *t, scratch *sc, bool reverse, int64_t
         for (size_t k = off[u]; k < off[u + 1] && budget; k++, budget--) {
             size_t ei = idx[k];
             const edge *e = &t->edges[ei];
+            if (e->off) {
+                continue;
+            }
             size_t v = reverse ? e->from : e->to;
             wide nd = wide_add(sc->d[u], e->w);
             if (!sc->seen[v] || nd < sc->d[v]) {
@@ -696,7 +706,7 @@ kn_verdict kn_timeline_classify(const kn_timeline *t, kn_interval r)
 static bool event_iv(const kn_timeline *t, const kn_event *e, kn_interval *out)
 {
     size_t i = ev_index(t, e);
-    if (i == NONE || t->contradictory) {
+    if (i == NONE || t->unsolved || t->aside[i]) {
         return false;
     }
     *out = iv(t->down[i], t->up[i]);
@@ -762,15 +772,17 @@ static void compute_column(kn_timeline *t, size_t ci)
     if (is_target(t->schema, c)) {
         T->from_target = true;
     }
+    /* Not through a column that is set aside: what it derives from is not
+     * known for sure (a derivation cycle, a name that resolves to nothing). */
     for (size_t i = 0; i < c->n_derived && !T->from_target; i++) {
         size_t j = col_index(t, KN_REF_COLUMN(c->derived_from[i]));
-        if (j != NONE && t->col[j].from_target) {
+        if (j != NONE && !t->schema->columns[j]->broken && t->col[j].from_target) {
             T->from_target = true;
             T->target_via = t->schema->columns[j];
         }
     }
 
-    bool ok = !t->contradictory;
+    bool ok = !t->unsolved && !c->broken;
     kn_interval delay, wait;
     ok = lag_iv(&c->delay, &delay) && ok;
     ok = source_wait(c, &wait) && ok;
@@ -797,16 +809,19 @@ static void compute_column(kn_timeline *t, size_t ci)
             ok = false;
         }
     }
-    if (c->n_derived) {
-        T->has[KN_PART_INPUTS] = true;
+    bool own_timing = T->has[KN_PART_KNOWN] || T->has[KN_PART_WINDOW];
+    if (c->n_derived && ok) {
         kn_interval latest = iv(-KN_TIME_INF, -KN_TIME_INF);
-        bool any_unordered = false;
-        for (size_t i = 0; i < c->n_derived && ok; i++) {
+        bool any_unordered = false, any_timed = false;
+        for (size_t i = 0; i < c->n_derived; i++) {
             size_t j = col_index(t, KN_REF_COLUMN(c->derived_from[i]));
+            /* An input without declared timing (an identifier, say) or one
+             * set aside: the column is judged on its timed inputs (SPEC §4). */
             if (j == NONE || !t->col[j].computed) {
-                ok = false;
-                break;
+                T->inputs_partial = true;
+                continue;
             }
+            any_timed = true;
             const kn_column_timing *in = &t->col[j];
             if (!T->latest_hi || in->range.hi > latest.hi) {
                 T->latest_hi = t->schema->columns[j];
@@ -817,13 +832,25 @@ static void compute_column(kn_timeline *t, size_t ci)
             latest = iv_max(latest, in->range);
             any_unordered = any_unordered || in->verdict == KN_VERDICT_UNORDERED;
         }
-        if (ok) {
+        kn_interval part = kn_interval_add(latest, delay);
+        kn_verdict v = any_timed ? kn_timeline_classify(t, part) : KN_VERDICT_UNKNOWN;
+        if (any_timed && !T->inputs_partial) {
+            T->has[KN_PART_INPUTS] = true;
             T->inputs_latest = latest;
-            T->part[KN_PART_INPUTS] = kn_interval_add(latest, delay);
-            kn_verdict v = kn_timeline_classify(t, T->part[KN_PART_INPUTS]);
+            T->part[KN_PART_INPUTS] = part;
             T->part_verdict[KN_PART_INPUTS] =
                 v != KN_VERDICT_LATE && any_unordered ? KN_VERDICT_UNORDERED : v;
+        } else if (any_timed && v == KN_VERDICT_LATE) {
+            /* Late whatever the untimed inputs do; how late is open-ended. */
+            T->has[KN_PART_INPUTS] = true;
+            T->inputs_latest = iv(latest.lo, KN_TIME_INF);
+            T->part[KN_PART_INPUTS] = iv(part.lo, KN_TIME_INF);
+            T->part_verdict[KN_PART_INPUTS] = KN_VERDICT_LATE;
+        } else if (!own_timing) {
+            ok = false; /* nothing to judge it by */
         }
+    } else if (c->n_derived) {
+        T->has[KN_PART_INPUTS] = true;
     }
     if (c->join.present && (c->join.as_of.node || c->join.as_of.target)) {
         T->has[KN_PART_AS_OF] = true;
@@ -882,11 +909,13 @@ static void compute_columns(kn_timeline *t)
     size_t *off = kn_alloc_array(t->arena, n + 1, sizeof *off);
     size_t *users = kn_alloc_array(t->arena, n_refs + 1, sizeof *users);
     size_t *queue = kn_alloc_array(t->arena, n + 1, sizeof *queue);
+    /* An input that is set aside (on a derivation cycle, say) is no edge:
+     * its users are judged on their other inputs. */
     for (size_t i = 0; i < n; i++) {
         const kn_column *c = s->columns[i];
         for (size_t k = 0; k < c->n_derived; k++) {
             size_t j = col_index(t, KN_REF_COLUMN(c->derived_from[k]));
-            if (j != NONE) {
+            if (j != NONE && !s->columns[j]->broken) {
                 indeg[i]++;
                 off[j + 1]++;
             }
@@ -901,7 +930,7 @@ static void compute_columns(kn_timeline *t)
         const kn_column *c = s->columns[i];
         for (size_t k = 0; k < c->n_derived; k++) {
             size_t j = col_index(t, KN_REF_COLUMN(c->derived_from[k]));
-            if (j != NONE) {
+            if (j != NONE && !s->columns[j]->broken) {
                 users[fill[j]++] = i;
             }
         }
@@ -923,24 +952,144 @@ static void compute_columns(kn_timeline *t)
     }
 }
 
+/* --- what a broken part affects ------------------------------------------ */
+
+static bool contradictions_located(const kn_timeline *t)
+{
+    for (size_t i = 0; i < t->n_cyc; i++) {
+        if (t->cyc[i].n_steps == 0) {
+            return false;
+        }
+    }
+    return true;
+}
+
+/* The events of every contradiction are set aside with their constraints
+ * (SPEC §4: an event on a contradictory cycle is reported and set aside),
+ * so the rest of the network is consistent and solved as usual. */
+static void set_aside_contradictions(kn_timeline *t)
+{
+    for (size_t i = 0; i < t->n_cyc; i++) {
+        for (size_t k = 0; k < t->cyc[i].n_steps; k++) {
+            const kn_constraint *c = t->cyc[i].steps[k].con;
+            t->aside[ev_index(t, c->earlier)] = true;
+            t->aside[ev_index(t, c->later)] = true;
+        }
+    }
+    for (size_t i = 0; i < t->n_ev; i++) {
+        t->aside[i] = t->aside[i] || t->schema->events[i]->broken;
+    }
+    for (size_t i = 0; i < t->n_edges; i++) {
+        edge *e = &t->edges[i];
+        e->off = t->aside[e->from] || t->aside[e->to];
+    }
+}
+
+static bool *copy_seen(kn_timeline *t, const scratch *sc)
+{
+    bool *seen = kn_alloc_array(t->arena, t->n_ev + 1, sizeof *seen);
+    memcpy(seen, sc->seen, t->n_ev * sizeof *seen);
+    return seen;
+}
+
+/* Every constraint as declared, whatever its state, as an undirected tie:
+ * the events a broken or contradictory event could have bounded. */
+static void full_reach(const kn_timeline *t, bool *reach, size_t *queue)
+{
+    const kn_schema *s = t->schema;
+    size_t n_cons = 0;
+    for (size_t i = 0; i < s->n_events; i++) {
+        n_cons += s->events[i]->n_cons;
+    }
+    /* Adjacency in CSR form, both directions. */
+    size_t *off = kn_alloc_array(t->arena, t->n_ev + 2, sizeof *off);
+    size_t *adj = kn_alloc_array(t->arena, sat_mul(n_cons, 2) + 1, sizeof *adj);
+    for (int pass = 0; pass < 2; pass++) {
+        size_t *fill = pass ? kn_alloc_array(t->arena, t->n_ev + 1, sizeof *fill) : NULL;
+        if (pass) {
+            memcpy(fill, off, (t->n_ev + 1) * sizeof *fill);
+        }
+        for (size_t i = 0; i < s->n_events; i++) {
+            for (size_t k = 0; k < s->events[i]->n_cons; k++) {
+                const kn_constraint *c = &s->events[i]->cons[k];
+                size_t a = ev_index(t, c->earlier), b = ev_index(t, c->later);
+                if (a == NONE || b == NONE) {
+                    continue;
+                }
+                if (!pass) {
+                    off[a + 1]++;
+                    off[b + 1]++;
+                } else {
+                    adj[fill[a]++] = b;
+                    adj[fill[b]++] = a;
+                }
+            }
+        }
+        if (!pass) {
+            for (size_t i = 0; i < t->n_ev; i++) {
+                off[i + 1] += off[i];
+            }
+        }
+    }
+    size_t head = 0, tail = 0;
+    reach[t->moment_index] = true;
+    queue[tail++] = t->moment_index;
+    while (head < tail) {
+        size_t u = queue[head++];
+        for (size_t k = off[u]; k < off[u + 1]; k++) {
+            if (!reach[adj[k]]) {
+                reach[adj[k]] = true;
+                queue[tail++] = adj[k];
+            }
+        }
+    }
+}
+
+/* An event that the declarations tie to the moment, but that reaches it
+ * (in either direction) only through a set-aside event, has no trustworthy
+ * range: it is set aside too, silently (its cause has its own error).
+ * Events never tied to the moment stay, and are reported as unordered. */
+static void set_aside_cut_off(kn_timeline *t, const scratch *sc, const bool *reached_up)
+{
+    bool any = false;
+    for (size_t i = 0; i < t->n_ev && !any; i++) {
+        any = t->aside[i];
+    }
+    if (!any) {
+        return;
+    }
+    bool *reach = kn_alloc_array(t->arena, t->n_ev + 1, sizeof *reach);
+    size_t *queue = kn_alloc_array(t->arena, t->n_ev + 1, sizeof *queue);
+    full_reach(t, reach, queue);
+    for (size_t i = 0; i < t->n_ev; i++) {
+        if (reach[i] && (!reached_up[i] || !sc->seen[i])) {
+            t->aside[i] = true;
+        }
+    }
+}
+
 /* --- public ---------------------------------------------------------------- */
 
 kn_timeline *kn_timeline_solve(kn_arena *a, kn_sink *sink, const kn_schema *s,
                                bool strict_moment)
 {
     const kn_event *moment = KN_REF_EVENT(s->prediction.moment);
-    if (!moment || moment->index >= s->n_events || s->events[moment->index] != moment) {
-        return NULL;
-    }
     kn_timeline *t = kn_alloc(a, sizeof *t);
     t->arena = a;
     t->schema = s;
-    t->moment = moment;
-    t->moment_index = moment->index;
     t->strict = strict_moment;
-    t->n_ev = s->n_events;
     t->n_col = s->n_columns;
     t->col = kn_alloc_array(a, t->n_col + 1, sizeof *t->col);
+    if (!moment || moment->index >= s->n_events || s->events[moment->index] != moment) {
+        /* No moment, no ranges; what needs no timeline (built-from-target)
+         * is still worked out. */
+        t->unsolved = true;
+        compute_columns(t);
+        return t;
+    }
+    t->moment = moment;
+    t->moment_index = moment->index;
+    t->n_ev = s->n_events;
     t->up = kn_alloc_array(a, t->n_ev, sizeof *t->up);
     t->down = kn_alloc_array(a, t->n_ev, sizeof *t->down);
     t->pred_up = kn_alloc_array(a, t->n_ev, sizeof *t->pred_up);
@@ -963,9 +1112,14 @@ kn_timeline *kn_timeline_solve(kn_arena *a, kn_sink *sink, const kn_schema *s,
                                                : "it reports at most " KN_STR(MAX_CONTRADICTIONS));
         }
     }
-    if (!t->contradictory) {
+    t->aside = kn_alloc_array(a, t->n_ev + 1, sizeof *t->aside);
+    t->unsolved = t->contradictory && (t->search_cut || !contradictions_located(t));
+    if (!t->unsolved) {
+        set_aside_contradictions(t);
         solve_from_moment(t, sc, false, t->up, t->pred_up);
+        bool *reached_up = copy_seen(t, sc);
         solve_from_moment(t, sc, true, t->down, t->pred_down);
+        set_aside_cut_off(t, sc, reached_up);
     }
     compute_columns(t);
     return t;

@@ -23,7 +23,11 @@ typedef enum kn_verdict {
 typedef struct kn_timeline kn_timeline;
 
 /* Solves the network of s's events.  Pushes timeline-contradiction for each
- * negative cycle.  Returns NULL when the moment is not resolved. */
+ * negative cycle.  Events that are broken, on a contradiction, or tied to
+ * the moment only through such events get no range (SPEC §4, independence
+ * of findings); the rest are solved as usual.  Without a resolved moment
+ * no event has a range, but the columns' derivations (from_target) are
+ * still worked out.  Never returns NULL. */
 kn_timeline *kn_timeline_solve(kn_arena *a, kn_sink *sink, const kn_schema *s,
                                bool strict_moment);
 
@@ -56,7 +60,7 @@ typedef struct kn_contradiction {
     size_t at;
 } kn_contradiction;
 
-/* True when the network has a negative cycle (no ranges then). */
+/* True when the network has a negative cycle (its events have no range). */
 bool kn_timeline_contradictory(const kn_timeline *t);
 
 /* The contradictions found (arena memory owned by the timeline). */
@@ -127,6 +131,9 @@ typedef struct kn_column_timing {
     kn_interval inputs_latest;        /* latest input, without delay */
     const kn_column *latest_hi;       /* input with the latest upper end */
     const kn_column *latest_lo;       /* input with the latest lower end */
+    bool inputs_partial;              /* some input has no timing or is set
+                                         aside: the inputs part holds only
+                                         when it is late (then open-ended) */
     bool from_target;                 /* is the target or derives from it */
     const kn_column *target_via;      /* the input leading to the target */
 } kn_column_timing;

@@ -1011,10 +1011,16 @@ static void test_range_words(void **state)
 static void test_no_moment_no_timeline(void **state)
 {
     (void)state;
-    ev("dispatch");
+    kn_event *e = ev("dispatch");
+    kn_column *c = known_col("parcel_weight", e);
     W->s->prediction.moment.name = "dispach";
-    assert_null(solve(false));
-    check(NULL);
+    kn_timeline *t = solve(false);
+    assert_non_null(t);
+    assert_null(kn_timeline_moment(t));
+    kn_interval r;
+    assert_false(kn_timeline_event_range(t, e, &r));
+    assert_int_equal(kn_timeline_column_verdict(t, c), KN_VERDICT_UNKNOWN);
+    check(t);
     assert_int_equal(n_diags(), 0);
 }
 
