@@ -9,12 +9,16 @@
 #include <string.h>
 
 #include "checks.h"
+#include "../util/text.h"
 
 typedef struct cx {
     kn_ctx *ctx;
     const kn_schema *s;
     const kn_timeline *t;
     const char *moment;
+    size_t *hops;               /* per column: derivations between it and the target */
+    const kn_column **root;     /* per column: the target it derives from */
+    const kn_column **stack;    /* scratch for target_hops */
 } cx;
 
 static const kn_pos *at(const kn_column *c, const kn_node *n)
@@ -342,29 +346,75 @@ static void check_as_of(const cx *x, const kn_column *c, const kn_column_timing 
     kn_timeline_note_chain(x->t, sink, d, e, v == KN_VERDICT_MAYBE_LATE);
 }
 
-/* Reports built-from-target; returns whether it did. */
+/* The number of derivations from column c down to the target it is built
+ * from, and that target, each column computed once (an explicit stack: a
+ * chain may be as long as the table is wide), so that the findings of a
+ * long chain cost the chain once, not once per column on it. */
+static size_t target_hops(const cx *x, const kn_column *c, const kn_column **root)
+{
+    size_t n = x->s->n_columns;
+    if (x->hops[c->index] == SIZE_MAX) {
+        const kn_column **stack = x->stack;
+        size_t top = 0;
+        const kn_column *cur = c;
+        while (cur && x->hops[cur->index] == SIZE_MAX && top <= n) {
+            const kn_column_timing *C = kn_timeline_column_timing(x->t, cur);
+            if (!C || !C->target_via) {
+                x->hops[cur->index] = 0;
+                x->root[cur->index] = cur;
+                break;
+            }
+            stack[top++] = cur;
+            cur = C->target_via;
+        }
+        while (top) {
+            const kn_column *u = stack[--top];
+            const kn_column *via = kn_timeline_column_timing(x->t, u)->target_via;
+            x->hops[u->index] = x->hops[via->index] + 1;
+            x->root[u->index] = x->root[via->index];
+        }
+    }
+    *root = x->root[c->index];
+    return x->hops[c->index];
+}
+
+/* Reports built-from-target; returns whether it did.  The message names at
+ * most KN_CHAIN_SHOWN / 2 columns of the way and the notes follow at most
+ * KN_CHAIN_SHOWN derivations, each saying how many more there are. */
 static bool check_target(const cx *x, const kn_column *c, const kn_column_timing *T)
 {
     if (!T->from_target || !T->target_via) {
         return false;
     }
     kn_arena *a = x->ctx->arena;
-    /* Walk to the target first, for the message. */
-    const char *through = "";
-    const kn_column *cur = T->target_via, *root = cur;
-    size_t hops = 0;
-    for (size_t guard = 0; cur && guard <= x->s->n_columns; guard++) {
-        const kn_column_timing *C = kn_timeline_column_timing(x->t, cur);
-        root = cur;
-        if (!C || !C->target_via) {
-            break;
-        }
-        through = kn_printf(a, "%s%s'%s'", through, hops ? ", " : "", cur->name);
-        hops++;
-        cur = C->target_via;
-    }
+    const kn_column *root;
+    size_t hops = target_hops(x, T->target_via, &root);
     kn_diag *d;
     if (hops) {
+        /* "'a', 'b', 'c' and 992 more columns", built in one pass. */
+        size_t shown = hops < KN_CHAIN_SHOWN / 2 ? hops : KN_CHAIN_SHOWN / 2, len = 64;
+        const kn_column *cur = T->target_via;
+        for (size_t i = 0; i < shown; i++, cur = kn_timeline_column_timing(x->t, cur)->target_via) {
+            len += strlen(cur->name) + 4;
+        }
+        char *through = kn_alloc(a, len), *p = through;
+        cur = T->target_via;
+        for (size_t i = 0; i < shown; i++, cur = kn_timeline_column_timing(x->t, cur)->target_via) {
+            size_t k = strlen(cur->name);
+            if (i) {
+                memcpy(p, ", ", 2);
+                p += 2;
+            }
+            *p++ = '\'';
+            memcpy(p, cur->name, k);
+            p += k;
+            *p++ = '\'';
+        }
+        if (shown < hops) {
+            snprintf(p, len - (size_t)(p - through), " and %zu more columns", hops - shown);
+        } else {
+            *p = '\0';
+        }
         d = kn_diag_push(x->ctx->sink, KN_R_BUILT_FROM_TARGET, at(c, ref_node_to(c, T->target_via)),
                          c->name, "feature '%s' is derived from the target '%s' through %s",
                          c->name, root->name, through);
@@ -373,10 +423,16 @@ static bool check_target(const cx *x, const kn_column *c, const kn_column_timing
                          c->name, "feature '%s' is derived from the target '%s'", c->name,
                          root->name);
     }
-    cur = c;
-    for (size_t guard = 0; cur && guard <= x->s->n_columns; guard++) {
+    const kn_column *cur = c;
+    for (size_t i = 0; cur && i <= hops; i++) {
         const kn_column_timing *C = kn_timeline_column_timing(x->t, cur);
         if (!C || !C->target_via) {
+            break;
+        }
+        if (i == KN_CHAIN_SHOWN) {
+            kn_diag_note(x->ctx->sink, d, NULL,
+                         "... and %zu more derivations on the way to the target, not shown",
+                         hops + 1 - KN_CHAIN_SHOWN);
             break;
         }
         kn_diag_note(x->ctx->sink, d, at(cur, ref_node_to(cur, C->target_via)),
@@ -547,7 +603,11 @@ static void check_label_settled(const cx *x)
 void kn_check_availability(kn_ctx *ctx, const kn_schema *s, const kn_timeline *t)
 {
     const kn_event *m = kn_timeline_moment(t);
-    cx x = {ctx, s, t, m ? m->name : ""};
+    cx x = {ctx, s, t, m ? m->name : "", NULL, NULL, NULL};
+    x.hops = kn_alloc_array(ctx->arena, s->n_columns + 1, sizeof *x.hops);
+    x.root = kn_alloc_array(ctx->arena, s->n_columns + 1, sizeof *x.root);
+    memset(x.hops, 0xff, (s->n_columns + 1) * sizeof *x.hops);
+    x.stack = kn_alloc_array(ctx->arena, s->n_columns + 1, sizeof *x.stack);
     if (m) {
         check_label_settled(&x);
     }

@@ -1280,6 +1280,50 @@ static void resolve_all(ld *l)
     resolve(l, &co, &s->split.group_column, "split group_column");
 }
 
+/* One derivation-cycle finding: the columns cyc[0..len-1] of the stack,
+ * each derived from the next, the last (cu) from the first through its
+ * derived_from entry edge.  The message names at most KN_CHAIN_SHOWN / 2
+ * columns, built in one pass, and the notes follow at most KN_CHAIN_SHOWN
+ * derivations; both say how many more there are. */
+static void report_cycle(ld *l, const size_t *cyc, size_t len, const kn_column *cu, size_t edge)
+{
+    kn_schema *s = l->s;
+    kn_column *first = s->columns[cyc[0]];
+    size_t shown = len < KN_CHAIN_SHOWN / 2 ? len : KN_CHAIN_SHOWN / 2;
+    const char *names[KN_CHAIN_SHOWN / 2];
+    size_t size = 64;
+    for (size_t j = 0; j < shown; j++) {
+        names[j] = esc(l, s->columns[cyc[j]]->name);
+        size += strlen(names[j]) + 6;
+    }
+    const char *head = esc(l, first->name);
+    size += strlen(head);
+    char *path = kn_alloc(l->a, size), *p = path;
+    for (size_t j = 0; j < shown; j++) {
+        p += snprintf(p, size - (size_t)(p - path), "'%s' -> ", names[j]);
+    }
+    if (shown < len) {
+        p += snprintf(p, size - (size_t)(p - path), "(%zu more) -> ", len - shown);
+    }
+    snprintf(p, size - (size_t)(p - path), "'%s'", head);
+    kn_diag *d = err(l, KN_R_DERIVATION_CYCLE, cu->derived_from[edge].node,
+                     "column '%s' is derived from itself through %s", head, path);
+    for (size_t j = 0; j < len; j++) {
+        s->columns[cyc[j]]->broken = true;
+    }
+    for (size_t j = 0; j < len; j++) {
+        if (len > KN_CHAIN_SHOWN && j == KN_CHAIN_SHOWN / 2) {
+            kn_diag_note(l->sink, d, NULL, "... and %zu more derivations of this cycle, not shown",
+                         len - KN_CHAIN_SHOWN);
+            j = len - KN_CHAIN_SHOWN / 2;
+        }
+        kn_column *cj = s->columns[cyc[j]];
+        kn_column *to = j + 1 < len ? s->columns[cyc[j + 1]] : first;
+        kn_diag_note(l->sink, d, &cj->derived_node->pos, "'%s' is derived from '%s'", esc(l, cj->name),
+                     esc(l, to->name));
+    }
+}
+
 /* derivation-cycle: iterative depth-first search over derived_from (no
  * recursion: a chain may be as long as the table is wide). */
 static void find_cycles(ld *l)
@@ -1292,11 +1336,13 @@ static void find_cycles(ld *l)
     unsigned char *color = kn_alloc(l->a, n); /* 0 new, 1 on stack, 2 done */
     size_t *stack = kn_alloc_array(l->a, n, sizeof(size_t));
     size_t *next = kn_alloc_array(l->a, n, sizeof(size_t));
+    size_t *at = kn_alloc_array(l->a, n, sizeof(size_t)); /* place on the stack */
     for (size_t start = 0; start < n; start++) {
         if (color[start]) {
             continue;
         }
         size_t top = 0;
+        at[start] = 0;
         stack[top++] = start;
         color[start] = 1;
         next[start] = 0;
@@ -1313,31 +1359,10 @@ static void find_cycles(ld *l)
                 if (color[v] == 0) {
                     color[v] = 1;
                     next[v] = 0;
+                    at[v] = top;
                     stack[top++] = v;
                 } else if (color[v] == 1) {
-                    /* The cycle is stack[k..top-1] where stack[k] == v. */
-                    size_t k = top;
-                    while (k > 0 && stack[k - 1] != v) {
-                        k--;
-                    }
-                    k = k ? k - 1 : 0;
-                    kn_ref *edge = &cu->derived_from[next[u] - 1];
-                    const char *path = "";
-                    for (size_t j = k; j < top; j++) {
-                        path = kn_printf(l->a, "%s'%s' -> ", path, esc(l, s->columns[stack[j]]->name));
-                    }
-                    path = kn_printf(l->a, "%s'%s'", path, esc(l, cv->name));
-                    kn_diag *d = err(l, KN_R_DERIVATION_CYCLE, edge->node,
-                                     "column '%s' is derived from itself through %s", esc(l, cv->name), path);
-                    for (size_t j = k; j < top; j++) {
-                        s->columns[stack[j]]->broken = true;
-                    }
-                    for (size_t j = k; j < top; j++) {
-                        kn_column *cj = s->columns[stack[j]];
-                        kn_column *to = j + 1 < top ? s->columns[stack[j + 1]] : cv;
-                        kn_diag_note(l->sink, d, &cj->derived_node->pos, "'%s' is derived from '%s'", esc(l, cj->name),
-                                     esc(l, to->name));
-                    }
+                    report_cycle(l, stack + at[v], top - at[v], cu, next[u] - 1);
                 }
             } else {
                 color[u] = 2;

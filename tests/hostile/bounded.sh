@@ -146,6 +146,46 @@ case_long_chain_notes() {
     at_most 40000000 sarif.out
 }
 
+case_target_chain() {
+    # A 1,400-column derived_from chain from the target: the message was
+    # re-printed once per hop (1,000 columns: 1.4 GB, 10 s, 44 MB of text).
+    awk 'BEGIN {
+        n = 1400
+        print "knowable: 1\ndataset: parcels\nprediction: {moment: e0, target: c0}\nevents:\n  e0: {}\ncolumns:"
+        print "  c0: {role: target, known: e0}"
+        for (i = 1; i < n; i++) printf "  c%d: {derived_from: [c%d]}\n", i, i - 1
+    }' >target.knowable.yaml
+    run target check target.knowable.yaml
+    expect_rc 1
+    n=$(grep -c ': error: .*\[built-from-target\]' target.out)
+    [ "$n" = 1399 ] || fail "target: $n findings, expected 1399"
+    expect_grep "^target.knowable.yaml:[0-9]*:[0-9]*: error: feature 'c1399' is derived from the target 'c0' through 'c1398', .* and 1390 more columns \[built-from-target\]\$" \
+        target.out "target: the message does not say how many columns it left out"
+    expect_grep '^target.knowable.yaml: note: \.\.\. and 1383 more derivations on the way to the target, not shown$' \
+        target.out "target: the notes do not say how many derivations they left out"
+    [ "$(most_notes target.out)" -le 18 ] || fail "target: $(most_notes target.out) notes under one diagnostic"
+    at_most 3000000 target.out
+}
+
+case_derivation_cycle() {
+    # A 20,000-column derivation cycle: the path text was built one name at
+    # a time (2.2 GB, 32 s).
+    awk 'BEGIN {
+        n = 20000
+        print "knowable: 1\ndataset: parcels\nprediction: {moment: e0, target: t}\nevents:\n  e0: {}\ncolumns:"
+        print "  t: {role: target, known: e0}"
+        for (i = 0; i < n; i++) printf "  c%d: {derived_from: [c%d]}\n", i, (i + 1) % n
+    }' >cycle.knowable.yaml
+    run cycle check cycle.knowable.yaml
+    expect_rc 1
+    expect_grep "^cycle.knowable.yaml:[0-9]*:[0-9]*: error: column 'c0' is derived from itself through 'c0' -> .* -> (19992 more) -> 'c0' \[derivation-cycle\]\$" \
+        cycle.out "cycle: the message does not say how many columns it left out"
+    expect_grep '^cycle.knowable.yaml: note: \.\.\. and 19984 more derivations of this cycle, not shown$' \
+        cycle.out "cycle: the notes do not say how many derivations they left out"
+    [ "$(most_notes cycle.out)" -le 17 ] || fail "cycle: $(most_notes cycle.out) notes under one diagnostic"
+    at_most 10000 cycle.out
+}
+
 fn=case_$(echo "$case" | tr - _)
 command -v "$fn" >/dev/null 2>&1 || { echo "no case '$case'"; exit 1; }
 "$fn"
