@@ -18,7 +18,7 @@ Planted in the first file (and what `knowable check --data` should say):
     (entity-in-both-splits);
   - eight parcels go to postcodes seen only once or twice
     (small-quasi-identifier-groups);
-  - three weights are written as 'n/a' (value-mismatch).
+  - three weights are written with a decimal comma, '2,5' (value-mismatch).
 In the clean twin none of this holds: the split is by sender, every postcode
 has at least five parcels and no feature is settled after dispatch.
 
@@ -131,7 +131,7 @@ def main():
     for i in range(8):
         leaky[rng.randrange(len(leaky))]["recipient_postcode"] = ["ZE1", "ZE2", "HS9", "KW17"][i // 2]
     for i in range(3):
-        leaky[rng.randrange(len(leaky))]["weight_kg"] = "n/a"
+        leaky[rng.randrange(len(leaky))]["weight_kg"] = "2,5"
     write(os.path.join(out, "parcel-delays-sample.csv"), leaky)
 
     rng = random.Random(7)

@@ -346,6 +346,18 @@ static int parse_record(kn_csv_reader *r)
             }
         }
 
+        if (!r->have_header && (r->err.problem != KN_CSV_OK || r->n_found > r->opt.max_columns)) {
+            /* The header is refused whole at its first problem: reading on
+             * to its end could take for ever (an endless first line). */
+            r->pos = (size_t)(p - base);
+            if (r->err.problem == KN_CSV_OK) {
+                r->err.problem = KN_CSV_TOO_MANY_COLUMNS;
+                r->err.line = r->rec_line;
+                r->err.column = 1;
+                r->err.count = r->opt.max_columns;
+            }
+            return -1;
+        }
         switch (st) {
         case S_FIELD_START:
             if (!r->in_record) {

@@ -1,8 +1,11 @@
 /* stats.c - the statistics of the data checks (see stats.h): a radix sort
- * for the Mann-Whitney AUC, open-addressing hash tables for contingency
- * tables, k-anonymity groups and split overlap, hashing, and the seeded
+ * for the Mann-Whitney AUC, the uncertainty coefficient over dictionary
+ * ids, quantile bins, open-addressing hash tables for k-anonymity groups
+ * and split overlap, and the seeded
  * generator behind reservoir sampling.  Hands on numbers only. */
 #include "stats.h"
+
+#include "hash.h"
 
 #include <math.h>
 #include <stdlib.h>
@@ -13,37 +16,7 @@
 /* The splitmix64 finaliser (Steele, Lea and Flood, 2014). */
 static uint64_t mix64(uint64_t z)
 {
-    z = (z ^ (z >> 30)) * UINT64_C(0xBF58476D1CE4E5B9);
-    z = (z ^ (z >> 27)) * UINT64_C(0x94D049BB133111EB);
-    return z ^ (z >> 31);
-}
-
-/* FNV-1a (Fowler, Noll, Vo), 64-bit, then mix64. */
-uint64_t kn_stats_hash(const void *p, size_t len, uint64_t seed)
-{
-    const unsigned char *s = p;
-    uint64_t h = UINT64_C(14695981039346656037) ^ mix64(seed);
-    for (size_t i = 0; i < len; i++) {
-        h ^= s[i];
-        h *= UINT64_C(1099511628211);
-    }
-    return mix64(h ^ len);
-}
-
-/* Chained field hashes, each seeded by the row so far and the field's length. */
-void kn_row_hash_init(kn_row_hash *rh)
-{
-    rh->h = UINT64_C(0x6A09E667F3BCC908);
-}
-
-void kn_row_hash_field(kn_row_hash *rh, const char *p, size_t len)
-{
-    rh->h = kn_stats_hash(p, len, rh->h ^ ((uint64_t)len * UINT64_C(0x9E3779B97F4A7C15)));
-}
-
-uint64_t kn_row_hash_final(const kn_row_hash *rh)
-{
-    return mix64(rh->h);
+    return kn_mix64(z);
 }
 
 /* ---- a u64-keyed open-addressing table (linear probing) -------------------- */
@@ -247,188 +220,142 @@ bool kn_stats_auc(kn_arena *a, const double *score, const bool *positive, size_t
     return true;
 }
 
-/* ---- contingency tables ---------------------------------------------------- */
+/* ---- uncertainty coefficient ---------------------------------------------- */
 
-typedef struct level {
-    const char *text;
-    size_t len;
-    uint64_t hash;
-    uint64_t count;
-} level;
-
-/* Distinct strings -> dense ids; the index holds id + 1, 0 when empty. */
-typedef struct strtab {
-    level *levels;
-    size_t n, levels_cap;
-    uint32_t *index;
-    size_t index_cap;
-} strtab;
-
-struct kn_contingency {
-    kn_arena *arena;
-    strtab x, y;
-    u64map pairs;
-    size_t max_levels, max_pairs, text_bytes;
-    uint64_t n;
-    bool high_cardinality;
-};
-
-static void strtab_release(void *p)
+/* Adds one cell of the contingency table to I(Y; X). */
+static double mi_term(double nxy, double n, double nx, double ny)
 {
-    strtab *t = p;
-    free(t->levels);
-    free(t->index);
-    t->levels = NULL;
-    t->index = NULL;
+    return nxy / n * (log(nxy) + log(n) - log(nx) - log(ny));
 }
 
-static void strtab_reindex(kn_arena *a, strtab *t)
+static int by_u64(const void *pa, const void *pb)
 {
-    size_t cap = t->index_cap ? t->index_cap * 2 : 64;
-    uint32_t *fresh = kn_xrealloc(a, NULL, cap * sizeof *fresh);
-    memset(fresh, 0, cap * sizeof *fresh);
-    for (size_t i = 0; i < t->n; i++) {
-        size_t j = (size_t)t->levels[i].hash & (cap - 1);
-        while (fresh[j]) {
-            j = (j + 1) & (cap - 1);
-        }
-        fresh[j] = (uint32_t)(i + 1);
-    }
-    free(t->index);
-    t->index = fresh;
-    t->index_cap = cap;
+    uint64_t a = *(const uint64_t *)pa, b = *(const uint64_t *)pb;
+    return (a > b) - (a < b);
 }
 
-/* The id of s, adding it when new; SIZE_MAX when adding would pass a cap. */
-static size_t strtab_id(kn_contingency *c, strtab *t, const char *s, size_t len)
+/* Counted in an array when the table is small, else by sorting the
+ * (x, y) pairs; scratch memory is released before returning. */
+bool kn_uncertainty_ids(kn_arena *a, const uint32_t *x, const uint32_t *y, size_t n, size_t nx, size_t ny,
+                        kn_uncertainty *u)
 {
-    uint64_t h = kn_stats_hash(s, len, 0);
-    if (t->index_cap) {
-        size_t j = (size_t)h & (t->index_cap - 1);
-        while (t->index[j]) {
-            const level *l = &t->levels[t->index[j] - 1];
-            if (l->hash == h && l->len == len && (len == 0 || memcmp(l->text, s, len) == 0)) {
-                return t->index[j] - 1;
-            }
-            j = (j + 1) & (t->index_cap - 1);
-        }
-    }
-    if (t->n >= c->max_levels || len > KN_CONTINGENCY_MAX_TEXT - c->text_bytes) {
-        return SIZE_MAX;
-    }
-    if (2 * (t->n + 1) > t->index_cap) {
-        strtab_reindex(c->arena, t);
-    }
-    if (t->n == t->levels_cap) {
-        size_t cap = t->levels_cap ? t->levels_cap * 2 : 16;
-        t->levels = kn_xrealloc(c->arena, t->levels, cap * sizeof *t->levels);
-        t->levels_cap = cap;
-    }
-    level *l = &t->levels[t->n];
-    l->text = kn_strndup(c->arena, s, len);
-    l->len = len;
-    l->hash = h;
-    l->count = 0;
-    c->text_bytes += len;
-    size_t j = (size_t)h & (t->index_cap - 1);
-    while (t->index[j]) {
-        j = (j + 1) & (t->index_cap - 1);
-    }
-    t->index[j] = (uint32_t)(t->n + 1);
-    return t->n++;
-}
-
-kn_contingency *kn_contingency_new(kn_arena *a, size_t max_levels)
-{
-    kn_contingency *c = kn_alloc(a, sizeof *c);
-    c->arena = a;
-    c->max_levels = max_levels ? max_levels : KN_CONTINGENCY_MAX_LEVELS;
-    if (c->max_levels > UINT32_MAX - 1) {
-        c->max_levels = UINT32_MAX - 1;
-    }
-    c->max_pairs = c->max_levels * KN_CONTINGENCY_PAIRS_PER_LEVEL;
-    kn_arena_defer(a, strtab_release, &c->x);
-    kn_arena_defer(a, strtab_release, &c->y);
-    u64map_init(a, &c->pairs);
-    return c;
-}
-
-bool kn_contingency_add(kn_contingency *c, const char *x, size_t x_len, const char *y,
-                        size_t y_len)
-{
-    if (c->high_cardinality) {
+    memset(u, 0, sizeof *u);
+    if (nx == 0 || ny == 0) {
         return false;
     }
-    size_t xi = strtab_id(c, &c->x, x, x_len);
-    size_t yi = xi == SIZE_MAX ? SIZE_MAX : strtab_id(c, &c->y, y, y_len);
-    if (yi == SIZE_MAX) {
-        c->high_cardinality = true;
-        return false;
-    }
-    uint64_t key = ((uint64_t)xi << 32) | (uint64_t)yi;
-    if (c->pairs.used >= c->max_pairs) {
-        /* Only a new pair would pass the cap; look before inserting. */
-        bool known = false;
-        if (c->pairs.cap) {
-            size_t j = (size_t)mix64(key) & (c->pairs.cap - 1);
-            while (slot_used(&c->pairs.slots[j])) {
-                if (c->pairs.slots[j].key == key) {
-                    known = true;
-                    break;
-                }
-                j = (j + 1) & (c->pairs.cap - 1);
-            }
-        }
-        if (!known) {
-            c->high_cardinality = true;
-            return false;
-        }
-    }
-    slot *s = u64map_get(&c->pairs, key);
-    s->a++;
-    c->x.levels[xi].count++;
-    c->y.levels[yi].count++;
-    c->n++;
-    return true;
-}
-
-bool kn_contingency_high_cardinality(const kn_contingency *c)
-{
-    return c->high_cardinality;
-}
-
-/* Theil's uncertainty coefficient U(Y|X) = I(Y;X) / H(Y), natural log, with
- * I = sum n_xy/n * log(n * n_xy / (n_x * n_y)). */
-bool kn_contingency_uncertainty(const kn_contingency *c, kn_uncertainty *out)
-{
-    memset(out, 0, sizeof *out);
-    out->n = (size_t)c->n;
-    out->x_levels = c->x.n;
-    out->y_levels = c->y.n;
-    out->high_cardinality = c->high_cardinality;
-    if (c->high_cardinality || c->n == 0) {
-        return false;
-    }
-    const double n = (double)c->n;
-    const double log_n = log(n);
-    double h_y = 0;
-    for (size_t i = 0; i < c->y.n; i++) {
-        double k = (double)c->y.levels[i].count;
-        h_y -= k / n * (log(k) - log_n);
-    }
-    double mi = 0;
-    for (size_t i = 0; i < c->pairs.cap; i++) {
-        const slot *s = &c->pairs.slots[i];
-        if (!slot_used(s)) {
+    kn_defer *d = kn_arena_defer(a, free, NULL);
+    size_t cells = nx <= KN_UNCERTAINTY_TABLE_MAX / ny ? nx * ny : 0;
+    size_t words = nx + ny + (cells ? cells : n);
+    uint64_t *scratch = kn_xrealloc(a, NULL, words * sizeof *scratch);
+    d->ptr = scratch;
+    memset(scratch, 0, (nx + ny + cells) * sizeof *scratch);
+    uint64_t *cx = scratch, *cy = scratch + nx, *table = scratch + nx + ny;
+    size_t m = 0;
+    for (size_t i = 0; i < n; i++) {
+        if (x[i] == 0 || y[i] == 0 || x[i] >= nx || y[i] >= ny) {
             continue;
         }
-        double nxy = (double)s->a;
-        double nx = (double)c->x.levels[s->key >> 32].count;
-        double ny = (double)c->y.levels[s->key & UINT32_MAX].count;
-        mi += nxy / n * (log(nxy) + log_n - log(nx) - log(ny));
+        cx[x[i]]++;
+        cy[y[i]]++;
+        if (cells) {
+            table[(size_t)x[i] * ny + y[i]]++;
+        } else {
+            table[m] = (uint64_t)x[i] << 32 | y[i];
+        }
+        m++;
     }
-    kn_uncertainty_set(out, h_y, mi);
+    if (m == 0) {
+        kn_defer_run(a, d);
+        return false;
+    }
+    double dn = (double)m, h_y = 0, mi = 0;
+    for (size_t j = 0; j < ny; j++) {
+        if (cy[j]) {
+            double p = (double)cy[j] / dn;
+            h_y -= p * log(p);
+            u->y_levels++;
+        }
+    }
+    for (size_t j = 0; j < nx; j++) {
+        u->x_levels += cx[j] != 0;
+    }
+    if (cells) {
+        for (size_t c = 0; c < cells; c++) {
+            if (table[c]) {
+                mi += mi_term((double)table[c], dn, (double)cx[c / ny], (double)cy[c % ny]);
+            }
+        }
+    } else {
+        qsort(table, m, sizeof *table, by_u64);
+        for (size_t i = 0; i < m;) {
+            size_t j = i;
+            while (j < m && table[j] == table[i]) {
+                j++;
+            }
+            mi += mi_term((double)(j - i), dn, (double)cx[table[i] >> 32], (double)cy[table[i] & UINT32_MAX]);
+            i = j;
+        }
+    }
+    kn_defer_run(a, d);
+    u->n = m;
+    kn_uncertainty_set(u, h_y, mi);
     return true;
+}
+
+static int by_double(const void *pa, const void *pb)
+{
+    double a = *(const double *)pa, b = *(const double *)pb;
+    return (a > b) - (a < b);
+}
+
+size_t kn_quantile_bins(kn_arena *a, const double *v, size_t n, size_t bins, uint32_t *code)
+{
+    if (bins < 1) {
+        bins = 1;
+    }
+    kn_defer *d = kn_arena_defer(a, free, NULL);
+    double *sorted = kn_xrealloc(a, NULL, (n ? n : 1) * sizeof *sorted + bins * sizeof(double));
+    d->ptr = sorted;
+    double *cut = sorted + (n ? n : 1);
+    size_t m = 0;
+    for (size_t i = 0; i < n; i++) {
+        if (!isnan(v[i])) {
+            sorted[m++] = v[i];
+        }
+    }
+    qsort(sorted, m, sizeof *sorted, by_double);
+    /* Distinct cut points, ascending. */
+    size_t n_cut = 0;
+    for (size_t b = 1; b < bins && m; b++) {
+        double c = sorted[(m * b) / bins];
+        if (c > sorted[0] && (n_cut == 0 || c > cut[n_cut - 1])) {
+            cut[n_cut++] = c;
+        }
+    }
+    bool *used = kn_alloc_array(a, n_cut + 2, sizeof *used);
+    size_t distinct = 0;
+    for (size_t i = 0; i < n; i++) {
+        if (isnan(v[i])) {
+            code[i] = 0;
+            continue;
+        }
+        size_t lo = 0, hi = n_cut; /* the number of cuts <= v[i] */
+        while (lo < hi) {
+            size_t mid = (lo + hi) / 2;
+            if (cut[mid] <= v[i]) {
+                lo = mid + 1;
+            } else {
+                hi = mid;
+            }
+        }
+        code[i] = (uint32_t)lo + 1;
+        if (!used[lo]) {
+            used[lo] = true;
+            distinct++;
+        }
+    }
+    kn_defer_run(a, d);
+    return distinct;
 }
 
 void kn_uncertainty_set(kn_uncertainty *out, double h_y, double mi)

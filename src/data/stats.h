@@ -11,11 +11,10 @@
  * back at once when a table doubles or a sort is done, so peak memory is
  * about twice the live table.  Allocation failure longjmps (arena.h).
  *
- * Hashing: keys are hashed with kn_stats_hash (64-bit, below).  Row and
- * tuple identities (kn_groups, kn_overlap) are the 64-bit hashes alone:
- * two different tuples whose hashes collide count as one, with a chance
- * of about n^2 / 2^65 for n distinct tuples (3e-8 for a million).
- * Categories in kn_contingency are compared as strings, exactly. */
+ * Hashing: row and tuple identities (kn_groups, kn_overlap) are 64-bit
+ * hashes from src/data/hash.h; see there for the chance of a collision.
+ * Categories reach kn_uncertainty_ids as ids of src/data/dict.h, compared
+ * exactly. */
 #ifndef KN_DATA_STATS_H
 #define KN_DATA_STATS_H
 
@@ -43,45 +42,37 @@ bool kn_stats_auc(kn_arena *a, const double *score, const bool *positive, size_t
 
 /* ---- uncertainty coefficient -------------------------------------------- */
 
-typedef struct kn_contingency kn_contingency;
-
 typedef struct kn_uncertainty {
     double u;    /* U(Y | X) = I(Y; X) / H(Y), in [0, 1]; 0 when H(Y) = 0 */
     double mi;   /* I(Y; X), natural log (nats) */
     double h_y;  /* H(Y), natural log */
     size_t n;    /* pairs counted */
-    size_t x_levels, y_levels;
-    bool high_cardinality; /* a cap was hit: u, mi, h_y are 0 and must not be used */
+    size_t x_levels, y_levels; /* distinct values seen among the pairs */
 } kn_uncertainty;
 
 /* Stores H(Y) and I(Y; X) in out, clamped to 0 <= I <= H (rounding can
- * step outside), and U = I / H (0 when H is 0).  Shared by every way of
- * counting the table. */
+ * step outside), and U = I / H (0 when H is 0). */
 void kn_uncertainty_set(kn_uncertainty *out, double h_y, double mi);
 
-/* Caps of a contingency table: beyond them the feature is treated as
- * high-cardinality (kn_contingency_add returns false). */
-#define KN_CONTINGENCY_MAX_LEVELS 10000u          /* default distinct X, and distinct Y */
-#define KN_CONTINGENCY_PAIRS_PER_LEVEL 16u        /* distinct (X, Y) <= 16 * max_levels */
-#define KN_CONTINGENCY_MAX_TEXT (16u << 20)       /* bytes of distinct category text */
+/* Tables of at most this many cells are counted in an array; larger ones
+ * by sorting the pairs. */
+#define KN_UNCERTAINTY_TABLE_MAX (1u << 22)
 
-/* A new contingency table of a categorical feature X against a categorical
- * target Y.  max_levels 0 means KN_CONTINGENCY_MAX_LEVELS. */
-kn_contingency *kn_contingency_new(kn_arena *a, size_t max_levels);
+/* The uncertainty coefficient U(Y | X) = I(Y; X) / H(Y) (Theil's U) of
+ * the pairs (x[i], y[i]), i < n, given as dictionary ids: x in [0, nx),
+ * y in [0, ny); a pair with an id 0 (no value) is not counted.  Natural
+ * logarithms, I clamped to [0, H(Y)].  Returns false when no pair
+ * counts.  The one implementation of U in knowable: the data checks and
+ * the reference probe (tests/ref/stats_probe.c) call it. */
+bool kn_uncertainty_ids(kn_arena *a, const uint32_t *x, const uint32_t *y, size_t n, size_t nx, size_t ny,
+                        kn_uncertainty *out);
 
-/* Counts one (x, y) pair; the strings are copied when first seen.  A
- * missing value is whatever category the caller passes (e.g. "").  Returns
- * false, and ignores this and every later pair, once a cap is exceeded. */
-bool kn_contingency_add(kn_contingency *t, const char *x, size_t x_len, const char *y,
-                        size_t y_len);
-
-/* True once a cap was exceeded. */
-bool kn_contingency_high_cardinality(const kn_contingency *t);
-
-/* The uncertainty coefficient U(Y | X) = I(Y; X) / H(Y) (Theil's U) from
- * the counts, natural logarithms, I clamped to [0, H(Y)].  Returns false
- * when the table is empty or high-cardinality. */
-bool kn_contingency_uncertainty(const kn_contingency *t, kn_uncertainty *out);
+/* Quantile bins: code[i] = 0 when v[i] is NaN, else 1 + the number of cut
+ * points <= v[i], where the cut points are the values at ranks
+ * floor(m * b / bins), b = 1..bins-1, of the m sorted non-NaN values
+ * (equal cut points merge bins, so a value never straddles two bins).
+ * Returns the number of distinct codes used, NaN excluded. */
+size_t kn_quantile_bins(kn_arena *a, const double *v, size_t n, size_t bins, uint32_t *code);
 
 /* ---- k-anonymity ------------------------------------------------------- */
 
@@ -100,7 +91,7 @@ typedef struct kn_kanon {
 kn_groups *kn_groups_new(kn_arena *a);
 
 /* Adds one row whose quasi-identifier tuple has hash tuple_hash (from
- * kn_row_hash_*), first seen on CSV line `line`. */
+ * src/data/hash.h), first seen on CSV line `line`. */
 void kn_groups_add(kn_groups *g, uint64_t tuple_hash, uint64_t line);
 
 /* k-anonymity (Sweeney, 2002): smallest equivalence-class size and the rows
@@ -125,21 +116,6 @@ typedef struct kn_overlap_result {
 kn_overlap *kn_overlap_new(kn_arena *a);
 void kn_overlap_add(kn_overlap *o, uint64_t key, bool test_side, uint64_t line);
 void kn_overlap_result_get(const kn_overlap *o, kn_overlap_result *out);
-
-/* ---- hashing ------------------------------------------------------------- */
-
-/* 64-bit hash of bytes: FNV-1a over the bytes, then the splitmix64
- * finaliser so every output bit depends on every input bit. */
-uint64_t kn_stats_hash(const void *p, size_t len, uint64_t seed);
-
-/* Incremental hash of a row of fields: each field's length and bytes go
- * in, so ("ab", "c") and ("a", "bc") differ. */
-typedef struct kn_row_hash {
-    uint64_t h;
-} kn_row_hash;
-void kn_row_hash_init(kn_row_hash *rh);
-void kn_row_hash_field(kn_row_hash *rh, const char *p, size_t len);
-uint64_t kn_row_hash_final(const kn_row_hash *rh);
 
 /* ---- reservoir sampling --------------------------------------------------- */
 

@@ -57,6 +57,46 @@ bool kn_value_is_missing(const char *s, size_t len)
            equals_nocase(s, len, "null");
 }
 
+void kn_missing_init(kn_missing *m, const char *const *words, size_t n)
+{
+    m->words = words;
+    m->n = n;
+    m->lengths = 0;
+    m->long_words = false;
+    for (size_t i = 0; i < n; i++) {
+        size_t len = strlen(words[i]);
+        if (len < 64) {
+            m->lengths |= (uint64_t)1 << len;
+        } else {
+            m->long_words = true;
+        }
+    }
+}
+
+bool kn_missing_test(const kn_missing *m, const char *s, size_t len)
+{
+    /* Most cells are ruled out by their length alone. */
+    if (len < 64 && !(m->lengths >> len & 1) && len && s[0] != ' ' && s[0] != '\t' && s[len - 1] != ' ' &&
+        s[len - 1] != '\t') {
+        return false;
+    }
+    trim(&s, &len);
+    if (len < 64 ? !(m->lengths >> len & 1) : !m->long_words) {
+        return false;
+    }
+    for (size_t i = 0; i < m->n; i++) {
+        const char *w = m->words[i];
+        size_t j = 0;
+        while (j < len && w[j] && lower(s[j]) == lower(w[j])) {
+            j++;
+        }
+        if (j == len && w[j] == '\0') {
+            return true;
+        }
+    }
+    return false;
+}
+
 /* Checks the decimal grammar of values.h; true when s[0..len) is a number. */
 static bool number_syntax(const char *s, size_t len)
 {

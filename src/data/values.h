@@ -26,6 +26,22 @@ typedef enum kn_value_status {
 /* True when s[0..len) is one of the missing markers above. */
 bool kn_value_is_missing(const char *s, size_t len);
 
+/* The rulebook's `missing_values` (SPEC §6), for the data checks: a cell
+ * is missing when, with ASCII spaces and tabs trimmed, it equals one of
+ * the words without regard to ASCII case.  The parsers above keep their
+ * own markers; the data checks ask kn_missing_test first and treat what a
+ * parser calls missing but the set does not as invalid. */
+typedef struct kn_missing {
+    const char *const *words;
+    size_t n;
+    uint64_t lengths; /* bit L set when a word has L < 64 bytes */
+    bool long_words;  /* a word has 64 bytes or more */
+} kn_missing;
+
+/* words must outlive m. */
+void kn_missing_init(kn_missing *m, const char *const *words, size_t n);
+bool kn_missing_test(const kn_missing *m, const char *s, size_t len);
+
 /* A decimal number: optional sign, digits with an optional '.' and
  * fraction (or '.' and a fraction alone), optional exponent e|E, sign,
  * digits.  Hexadecimal, "inf", thousands separators and decimal commas

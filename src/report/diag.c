@@ -13,6 +13,9 @@ struct kn_sink {
     bool fatal;
     bool finished;
     unsigned long long sample_kept, sample_total;
+    bool has_data;
+    kn_data_skip *skips;
+    size_t n_skips, skips_cap;
 };
 
 uint64_t kn_hash_bytes(uint64_t h, const void *p, size_t n)
@@ -261,6 +264,36 @@ void kn_sink_set_sample(kn_sink *s, unsigned long long kept, unsigned long long 
 {
     s->sample_kept = kept;
     s->sample_total = total;
+    s->has_data = true;
+}
+
+bool kn_sink_has_data(const kn_sink *s)
+{
+    return s->has_data;
+}
+
+void kn_sink_data_skip(kn_sink *s, kn_rule rule, const char *subject, const char *statistic, const char *reason)
+{
+    if (s->n_skips == s->skips_cap) {
+        size_t cap = s->skips_cap ? s->skips_cap * 2 : 16;
+        kn_data_skip *v = kn_alloc_array(s->arena, cap, sizeof *v);
+        if (s->n_skips) {
+            memcpy(v, s->skips, s->n_skips * sizeof *v);
+        }
+        s->skips = v;
+        s->skips_cap = cap;
+    }
+    kn_data_skip *k = &s->skips[s->n_skips++];
+    k->rule = rule;
+    k->subject = subject;
+    k->statistic = statistic;
+    k->reason = reason;
+}
+
+const kn_data_skip *kn_sink_data_skips(const kn_sink *s, size_t *n)
+{
+    *n = s->n_skips;
+    return s->skips;
 }
 
 bool kn_sink_sample(const kn_sink *s, unsigned long long *kept, unsigned long long *total)

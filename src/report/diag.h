@@ -140,6 +140,20 @@ kn_arena *kn_sink_arena(const kn_sink *s);
 void kn_sink_set_sample(kn_sink *s, unsigned long long kept, unsigned long long total);
 bool kn_sink_sample(const kn_sink *s, unsigned long long *kept, unsigned long long *total);
 
+/* The data checks record each statistic they could not compute because
+ * the data cannot support it (SPEC §4.7: skipped one by one, and the JSON
+ * says so); subject is the column ("" for all), statistic names what was
+ * skipped (roc_auc, uncertainty, a segment, all), reason says why.  The
+ * strings must live as long as the sink. */
+typedef struct kn_data_skip {
+    kn_rule rule;
+    const char *subject, *statistic, *reason;
+} kn_data_skip;
+void kn_sink_data_skip(kn_sink *s, kn_rule rule, const char *subject, const char *statistic, const char *reason);
+const kn_data_skip *kn_sink_data_skips(const kn_sink *s, size_t *n);
+/* True once kn_sink_set_sample was called: a data file was checked. */
+bool kn_sink_has_data(const kn_sink *s);
+
 /* 64-bit FNV-1a, used for fingerprints and hashing. */
 uint64_t kn_hash_bytes(uint64_t h, const void *p, size_t n);
 #define KN_HASH_INIT 0xcbf29ce484222325ull

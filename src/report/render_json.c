@@ -28,6 +28,33 @@ static void put_uint_field(FILE *out, int indent, const char *key, unsigned long
     fprintf(out, "%llu%s", value, last ? "\n" : ",\n");
 }
 
+/* "data": the rows read, the rows the statistics used, and each statistic
+ * skipped because the data cannot support it (SPEC §4.7). */
+static void put_data_summary(FILE *out, const kn_sink *s)
+{
+    unsigned long long kept, total;
+    kn_sink_sample(s, &kept, &total);
+    size_t n;
+    const kn_data_skip *k = kn_sink_data_skips(s, &n);
+    fputs("    \"data\": {\n", out);
+    put_uint_field(out, 6, "rows", total, false);
+    put_uint_field(out, 6, "sample_rows", kept, false);
+    put_key(out, 6, "skipped");
+    fputs(n ? "[\n" : "[]\n", out);
+    for (size_t i = 0; i < n; i++) {
+        fputs("        {\n", out);
+        put_str_field(out, 10, "rule", kn_rule_get(k[i].rule)->id, false);
+        put_str_field(out, 10, "subject", k[i].subject, false);
+        put_str_field(out, 10, "statistic", k[i].statistic, false);
+        put_str_field(out, 10, "reason", k[i].reason, true);
+        fputs(i + 1 < n ? "        },\n" : "        }\n", out);
+    }
+    if (n) {
+        fputs("      ]\n", out);
+    }
+    fputs("    }\n", out);
+}
+
 static void put_note(FILE *out, const kn_note *n, bool last)
 {
     fputs("        {\n", out);
@@ -117,6 +144,9 @@ void kn_render_json(FILE *out, const kn_sink *s, const kn_render_opts *o)
     put_uint_field(out, 4, "notes", kn_sink_count(s, KN_SEV_NOTE), false);
     put_uint_field(out, 4, "waived", kn_sink_waived(s), false);
     put_uint_field(out, 4, "baselined", kn_sink_baselined(s), false);
-    put_uint_field(out, 4, "schemas", o->n_schemas, true);
+    put_uint_field(out, 4, "schemas", o->n_schemas, !kn_sink_has_data(s));
+    if (kn_sink_has_data(s)) {
+        put_data_summary(out, s);
+    }
     fputs("  }\n}\n", out);
 }

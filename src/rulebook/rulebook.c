@@ -28,7 +28,7 @@ extern const size_t kn_default_rulebook_len;
 #define MAX_EXTENDS_DEPTH 8
 
 static const char *const top_keys[] = {"knowable_rulebook", "extends", "severity", "strict_moment",
-                                       "require", "names", "identifier_names", "thresholds"};
+                                       "require", "names", "identifier_names", "thresholds", "missing_values"};
 static const char *const require_keys[] = {"external_source", "feature"};
 static const char *const name_keys[] = {"pattern", "applies_to", "why"};
 static const char *const threshold_keys[] = {"separation_auc", "uncertainty", "missingness_auc",
@@ -46,6 +46,9 @@ kn_rulebook *kn_rulebook_new(kn_arena *a)
     rb->thresholds.missingness_auc = 0.9;
     rb->thresholds.segment_uncertainty = 0.5;
     rb->thresholds.min_group_size = 5;
+    static const char *const missing[] = {"", "NA", "N/A", "NaN", "null"};
+    rb->missing_values = missing;
+    rb->n_missing_values = N(missing);
     rb->origin = "(built-in)";
     return rb;
 }
@@ -285,6 +288,31 @@ static void load_names(rb_ld *l, const kn_node *v)
     l->rb->n_names = n;
 }
 
+/* missing_values: a list of at most MAX_MISSING_VALUES strings of at most
+ * MAX_MISSING_TEXT bytes; it replaces the list it overrides. */
+#define MAX_MISSING_VALUES 64
+#define MAX_MISSING_TEXT 64
+static void load_missing_values(rb_ld *l, const kn_node *v)
+{
+    if (v->kind != KN_NODE_SEQ || v->u.seq.n > MAX_MISSING_VALUES) {
+        fail(l, KN_R_SCHEMA_SHAPE, v, "'missing_values' must be a list of at most %d strings",
+             MAX_MISSING_VALUES);
+        return;
+    }
+    const char **words = kn_alloc_array(l->a, v->u.seq.n + 1, sizeof *words);
+    for (size_t i = 0; i < v->u.seq.n; i++) {
+        const kn_node *w = v->u.seq.items[i];
+        if (w->kind != KN_NODE_SCALAR || strlen(w->u.scalar.text) > MAX_MISSING_TEXT) {
+            fail(l, KN_R_SCHEMA_SHAPE, w, "each of 'missing_values' must be a string of at most %d bytes",
+                 MAX_MISSING_TEXT);
+            return;
+        }
+        words[i] = w->u.scalar.text;
+    }
+    l->rb->missing_values = words;
+    l->rb->n_missing_values = v->u.seq.n;
+}
+
 static void load_thresholds(rb_ld *l, const kn_node *v)
 {
     if (v->kind != KN_NODE_MAP) {
@@ -470,6 +498,8 @@ static bool load_tree(rb_ld *l, const kn_node *root, const char *path, int depth
             }
         } else if (strcmp(key, "thresholds") == 0) {
             load_thresholds(l, v);
+        } else if (strcmp(key, "missing_values") == 0) {
+            load_missing_values(l, v);
         }
     }
     return !l->failed;

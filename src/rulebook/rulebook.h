@@ -42,6 +42,8 @@ typedef struct kn_rulebook {
     const char *identifier_names;
     void *identifier_code; /* kn_regex *, or NULL when identifier_names is unset */
     kn_thresholds thresholds;
+    const char *const *missing_values; /* data cells counted as missing (SPEC §6) */
+    size_t n_missing_values;
     const char *origin; /* display path of the last file read, or "(built-in)" */
 } kn_rulebook;
 

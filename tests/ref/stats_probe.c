@@ -1,10 +1,11 @@
-/* stats_probe.c - runs the statistics of src/data/stats.c on blocks read
+/* stats_probe.c - runs the statistics of src/data/stats.c (through the
+ * dictionary and hash the data checks use) on blocks read
  * from stdin, for tests/ref/stats_ref.py.  Blocks:
  *
  *   auc N        then N lines "SCORE LABEL" (LABEL 0 or 1)
  *                -> "AUC SEPARATION N_POS N_NEG" or "undefined N_POS N_NEG"
  *   u N          then N lines "X<TAB>Y" (categories as text)
- *                -> "U MI H_Y X_LEVELS Y_LEVELS" or "high-cardinality" / "empty"
+ *                -> "U MI H_Y X_LEVELS Y_LEVELS" or "empty"
  *   kanon N K    then N lines of quasi-identifier fields separated by tabs
  *                -> "SMALLEST ROWS_BELOW_K GROUPS_BELOW_K GROUPS"
  *
@@ -13,6 +14,8 @@
 #include <stdlib.h>
 #include <string.h>
 
+#include "../../src/data/dict.h"
+#include "../../src/data/hash.h"
 #include "../../src/data/stats.h"
 
 static char line[1 << 16];
@@ -50,9 +53,12 @@ static int run_auc(kn_arena *a, size_t n)
     return 0;
 }
 
+/* U through the production path: each text mapped to an id by the
+ * sample's dictionary (src/data/dict.c), then kn_uncertainty_ids. */
 static int run_u(kn_arena *a, size_t n)
 {
-    kn_contingency *t = kn_contingency_new(a, 0);
+    kn_dict *dx = kn_dict_new(a, 100000, 64u << 20), *dy = kn_dict_new(a, 100000, 64u << 20);
+    uint32_t *x = kn_alloc_array(a, n ? n : 1, sizeof *x), *y = kn_alloc_array(a, n ? n : 1, sizeof *y);
     for (size_t i = 0; i < n; i++) {
         if (!read_line()) {
             return 1;
@@ -61,17 +67,20 @@ static int run_u(kn_arena *a, size_t n)
         if (!tab) {
             return 1;
         }
-        kn_contingency_add(t, line, (size_t)(tab - line), tab + 1, strlen(tab + 1));
+        x[i] = kn_dict_id(dx, line, (size_t)(tab - line));
+        y[i] = kn_dict_id(dy, tab + 1, strlen(tab + 1));
     }
     kn_uncertainty u;
-    if (kn_contingency_uncertainty(t, &u)) {
+    if (kn_uncertainty_ids(a, x, y, n, kn_dict_levels(dx) + 1, kn_dict_levels(dy) + 1, &u)) {
         printf("%.17g %.17g %.17g %zu %zu\n", u.u, u.mi, u.h_y, u.x_levels, u.y_levels);
     } else {
-        puts(u.high_cardinality ? "high-cardinality" : "empty");
+        puts("empty");
     }
     return 0;
 }
 
+/* k-anonymity through the production path: the tuple hashed field by
+ * field as src/data/table.c hashes quasi-identifiers, then kn_groups. */
 static int run_kanon(kn_arena *a, size_t n, size_t k)
 {
     kn_groups *g = kn_groups_new(a);
@@ -79,19 +88,18 @@ static int run_kanon(kn_arena *a, size_t n, size_t k)
         if (!read_line()) {
             return 1;
         }
-        kn_row_hash h;
-        kn_row_hash_init(&h);
+        uint64_t h = KN_HASH_START;
         char *p = line;
         for (;;) {
             char *tab = strchr(p, '\t');
             size_t len = tab ? (size_t)(tab - p) : strlen(p);
-            kn_row_hash_field(&h, p, len);
+            h = kn_hash_field(h, p, len);
             if (!tab) {
                 break;
             }
             p = tab + 1;
         }
-        kn_groups_add(g, kn_row_hash_final(&h), i + 1);
+        kn_groups_add(g, kn_hash_finish(h), i + 1);
     }
     kn_kanon r;
     kn_groups_kanon(g, k, &r);

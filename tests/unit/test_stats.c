@@ -11,6 +11,8 @@
 
 #include <cmocka.h>
 
+#include "../../src/data/dict.h"
+#include "../../src/data/hash.h"
 #include "../../src/data/stats.h"
 
 static int setup(void **state)
@@ -146,20 +148,30 @@ static void test_auc_matches_pairwise_definition(void **state)
 
 /* ---- uncertainty coefficient ---- */
 
-static void add_all(kn_contingency *t, const char *const *x, const char *const *y, size_t n)
+/* The pairs through the data checks' path: texts to dictionary ids, then
+ * kn_uncertainty_ids. */
+static bool u_lens(void **state, const char *const *x, const size_t *xl, const char *const *y, size_t n,
+                   kn_uncertainty *u)
 {
+    kn_dict *dx = kn_dict_new(*state, 100000, 1u << 24), *dy = kn_dict_new(*state, 100000, 1u << 24);
+    uint32_t *xi = kn_alloc_array(*state, n + 1, sizeof *xi), *yi = kn_alloc_array(*state, n + 1, sizeof *yi);
     for (size_t i = 0; i < n; i++) {
-        assert_true(kn_contingency_add(t, x[i], strlen(x[i]), y[i], strlen(y[i])));
+        xi[i] = kn_dict_id(dx, x[i], xl ? xl[i] : strlen(x[i]));
+        yi[i] = kn_dict_id(dy, y[i], strlen(y[i]));
     }
+    return kn_uncertainty_ids(*state, xi, yi, n, kn_dict_levels(dx) + 1, kn_dict_levels(dy) + 1, u);
+}
+
+static bool u_of(void **state, const char *const *x, const char *const *y, size_t n, kn_uncertainty *u)
+{
+    return u_lens(state, x, NULL, y, n, u);
 }
 
 static void test_u_feature_equals_target(void **state)
 {
     const char *x[] = {"north", "south", "north", "east", "south"};
-    kn_contingency *t = kn_contingency_new(*state, 0);
-    add_all(t, x, x, N_OF(x));
     kn_uncertainty u;
-    assert_true(kn_contingency_uncertainty(t, &u));
+    assert_true(u_of(state, x, x, N_OF(x), &u));
     assert_close(u.u, 1.0);
     assert_close(u.mi, u.h_y);
     assert_int_equal(u.x_levels, 3);
@@ -170,10 +182,8 @@ static void test_u_constant_feature(void **state)
 {
     const char *x[] = {"k", "k", "k", "k"};
     const char *y[] = {"late", "on time", "late", "on time"};
-    kn_contingency *t = kn_contingency_new(*state, 0);
-    add_all(t, x, y, N_OF(x));
     kn_uncertainty u;
-    assert_true(kn_contingency_uncertainty(t, &u));
+    assert_true(u_of(state, x, y, N_OF(x), &u));
     assert_close(u.u, 0.0);
     assert_close(u.h_y, log(2.0));
 }
@@ -182,10 +192,8 @@ static void test_u_single_class_target(void **state)
 {
     const char *x[] = {"a", "b", "c"};
     const char *y[] = {"yes", "yes", "yes"};
-    kn_contingency *t = kn_contingency_new(*state, 0);
-    add_all(t, x, y, N_OF(x));
     kn_uncertainty u;
-    assert_true(kn_contingency_uncertainty(t, &u));
+    assert_true(u_of(state, x, y, N_OF(x), &u));
     assert_close(u.h_y, 0.0);
     assert_close(u.u, 0.0);
 }
@@ -196,10 +204,8 @@ static void test_u_hand_computed(void **state)
      * H(Y|X) = 1/2 ln 2 (x = a splits evenly, x = b is pure). */
     const char *x[] = {"a", "a", "b", "b"};
     const char *y[] = {"0", "1", "0", "0"};
-    kn_contingency *t = kn_contingency_new(*state, 0);
-    add_all(t, x, y, N_OF(x));
     kn_uncertainty u;
-    assert_true(kn_contingency_uncertainty(t, &u));
+    assert_true(u_of(state, x, y, N_OF(x), &u));
     double h = -(0.75 * log(0.75) + 0.25 * log(0.25));
     double mi = h - 0.5 * log(2.0);
     assert_close(u.h_y, h);
@@ -211,64 +217,102 @@ static void test_u_hand_computed(void **state)
 static void test_u_strings_compared_exactly(void **state)
 {
     /* "a" and "a\0b" differ only after a NUL; "" is a category of its own. */
-    kn_contingency *t = kn_contingency_new(*state, 0);
-    assert_true(kn_contingency_add(t, "a", 1, "0", 1));
-    assert_true(kn_contingency_add(t, "a\0b", 3, "1", 1));
-    assert_true(kn_contingency_add(t, "", 0, "1", 1));
+    const char *x[] = {"a", "a\0b", ""};
+    const size_t xl[] = {1, 3, 0};
+    const char *y[] = {"0", "1", "1"};
     kn_uncertainty u;
-    assert_true(kn_contingency_uncertainty(t, &u));
+    assert_true(u_lens(state, x, xl, y, 3, &u));
     assert_int_equal(u.x_levels, 3);
     assert_close(u.u, 1.0);
 }
 
-static void test_u_high_cardinality(void **state)
+static void test_u_id_zero_not_counted(void **state)
 {
-    kn_contingency *t = kn_contingency_new(*state, 3);
-    assert_true(kn_contingency_add(t, "1", 1, "y", 1));
-    assert_true(kn_contingency_add(t, "2", 1, "y", 1));
-    assert_true(kn_contingency_add(t, "3", 1, "n", 1));
-    assert_true(kn_contingency_add(t, "3", 1, "n", 1));
-    assert_false(kn_contingency_high_cardinality(t));
-    assert_false(kn_contingency_add(t, "4", 1, "y", 1));
-    assert_true(kn_contingency_high_cardinality(t));
-    assert_false(kn_contingency_add(t, "1", 1, "y", 1));
+    /* Id 0 is "no value" (a missing cell): such pairs are left out, so a
+     * feature that is missing exactly when y = 1 says nothing here. */
+    uint32_t x[] = {1, 1, 2, 0, 0, 0};
+    uint32_t y[] = {1, 1, 1, 2, 2, 2};
     kn_uncertainty u;
-    assert_false(kn_contingency_uncertainty(t, &u));
-    assert_true(u.high_cardinality);
+    assert_true(kn_uncertainty_ids(*state, x, y, 6, 3, 3, &u));
+    assert_int_equal(u.n, 3);
+    assert_int_equal(u.y_levels, 1);
+    assert_close(u.u, 0.0);
+    uint32_t none[] = {0, 0};
+    assert_false(kn_uncertainty_ids(*state, none, y, 2, 3, 3, &u));
 }
 
-static void test_u_many_levels_grow(void **state)
+static void test_u_sorted_pairs_agree_with_table(void **state)
 {
-    kn_contingency *t = kn_contingency_new(*state, 0);
+    /* More cells than KN_UNCERTAINTY_TABLE_MAX: counted by sorting pairs;
+     * the same pairs with few levels declared go through the array. */
+    size_t n = 3000;
+    uint32_t *x = kn_alloc_array(*state, n, sizeof *x), *y = kn_alloc_array(*state, n, sizeof *y);
+    for (size_t i = 0; i < n; i++) {
+        x[i] = (uint32_t)(1 + (i * 7919) % 97);
+        y[i] = (uint32_t)(1 + (i * 31) % 5);
+    }
+    kn_uncertainty small, large;
+    assert_true(kn_uncertainty_ids(*state, x, y, n, 98, 6, &small));
+    assert_true(kn_uncertainty_ids(*state, x, y, n, KN_UNCERTAINTY_TABLE_MAX, 6, &large));
+    assert_close(small.u, large.u);
+    assert_close(small.mi, large.mi);
+    assert_int_equal(small.x_levels, large.x_levels);
+}
+
+static void test_dict_cap(void **state)
+{
+    kn_dict *d = kn_dict_new(*state, 3, 1000);
+    assert_int_equal(kn_dict_id(d, "1", 1), 1);
+    assert_int_equal(kn_dict_id(d, "2", 1), 2);
+    assert_int_equal(kn_dict_id(d, "3", 1), 3);
+    assert_false(kn_dict_full(d));
+    assert_int_equal(kn_dict_id(d, "4", 1), KN_DICT_OTHER);
+    assert_true(kn_dict_full(d));
+    assert_int_equal(kn_dict_id(d, "1", 1), 1); /* known values keep their id */
+    assert_int_equal(kn_dict_levels(d), 3);
+    size_t len;
+    assert_string_equal(kn_dict_text(d, 2, &len), "2");
+}
+
+static void test_dict_many_levels_grow(void **state)
+{
+    kn_dict *d = kn_dict_new(*state, 10000, 1u << 20);
     char buf[32];
     for (int i = 0; i < 5000; i++) {
         int n = snprintf(buf, sizeof buf, "parcel-%d", i % 2500);
-        assert_true(kn_contingency_add(t, buf, (size_t)n, (i % 2500) % 2 ? "late" : "early", 4 + (i % 2500) % 2));
+        assert_int_equal(kn_dict_id(d, buf, (size_t)n), (uint32_t)(i % 2500) + 1);
     }
-    kn_uncertainty u;
-    assert_true(kn_contingency_uncertainty(t, &u));
-    assert_int_equal(u.x_levels, 2500);
-    assert_int_equal(u.y_levels, 2);
-    assert_close(u.u, 1.0);
+    assert_int_equal(kn_dict_levels(d), 2500);
 }
 
-static void test_u_empty(void **state)
+static void test_quantile_bins(void **state)
 {
-    kn_contingency *t = kn_contingency_new(*state, 0);
-    kn_uncertainty u;
-    assert_false(kn_contingency_uncertainty(t, &u));
-    assert_false(u.high_cardinality);
+    double v[] = {5, 1, 2, NAN, 3, 4, 6, 7, 8, 9, 10};
+    uint32_t code[11];
+    /* 10 values in 2 bins: the cut is the 6th smallest, 6. */
+    size_t used = kn_quantile_bins(*state, v, 11, 2, code);
+    assert_int_equal(used, 2);
+    assert_int_equal(code[3], 0);
+    assert_int_equal(code[0], 1);
+    assert_int_equal(code[6], 2);
+    assert_int_equal(code[10], 2);
+    /* ties never straddle a cut */
+    double t[] = {1, 1, 1, 1, 1, 1, 2, 2};
+    uint32_t tc[8];
+    used = kn_quantile_bins(*state, t, 8, 4, tc);
+    assert_int_equal(used, 2);
+    for (int i = 0; i < 6; i++) {
+        assert_int_equal(tc[i], 1);
+    }
+    assert_int_equal(tc[7], 2);
 }
 
 /* ---- k-anonymity ---- */
 
 static uint64_t tuple(const char *a, const char *b)
 {
-    kn_row_hash h;
-    kn_row_hash_init(&h);
-    kn_row_hash_field(&h, a, strlen(a));
-    kn_row_hash_field(&h, b, strlen(b));
-    return kn_row_hash_final(&h);
+    uint64_t h = kn_hash_field(KN_HASH_START, a, strlen(a));
+    return kn_hash_finish(kn_hash_field(h, b, strlen(b)));
 }
 
 static void test_kanon_groups(void **state)
@@ -306,7 +350,8 @@ static void test_kanon_many_groups(void **state)
 {
     kn_groups *g = kn_groups_new(*state);
     for (uint64_t i = 0; i < 20000; i++) {
-        kn_groups_add(g, kn_stats_hash(&(uint64_t){i % 4000}, sizeof i, 1), i + 2);
+        uint64_t key = i % 4000;
+        kn_groups_add(g, kn_hash_finish(kn_hash_field(KN_HASH_START, (const char *)&key, sizeof key)), i + 2);
     }
     kn_kanon r;
     kn_groups_kanon(g, 6, &r);
@@ -356,20 +401,21 @@ static void test_row_hash_field_boundaries(void **state)
     assert_true(tuple("ab", "c") != tuple("a", "bc"));
     assert_true(tuple("ab", "c") == tuple("ab", "c"));
     assert_true(tuple("", "x") != tuple("x", ""));
-    kn_row_hash none, one_empty;
-    kn_row_hash_init(&none);
-    kn_row_hash_init(&one_empty);
-    kn_row_hash_field(&one_empty, "", 0);
-    assert_true(kn_row_hash_final(&none) != kn_row_hash_final(&one_empty));
+    /* no field and one empty field differ */
+    assert_true(kn_hash_finish(KN_HASH_START) != kn_hash_finish(kn_hash_field(KN_HASH_START, "", 0)));
 }
 
-static void test_hash_bytes_seed_and_content(void **state)
+static void test_hash_content(void **state)
 {
     (void)state;
-    assert_true(kn_stats_hash("bakery", 6, 0) == kn_stats_hash("bakery", 6, 0));
-    assert_true(kn_stats_hash("bakery", 6, 0) != kn_stats_hash("bakery", 6, 1));
-    assert_true(kn_stats_hash("bakery", 6, 0) != kn_stats_hash("bakerz", 6, 0));
-    assert_true(kn_stats_hash("", 0, 0) != kn_stats_hash("\0", 1, 0));
+    uint64_t h = kn_hash_finish(kn_hash_field(KN_HASH_START, "bakery", 6));
+    assert_true(h == kn_hash_finish(kn_hash_field(KN_HASH_START, "bakery", 6)));
+    assert_true(h != kn_hash_finish(kn_hash_field(KN_HASH_START, "bakerz", 6)));
+    assert_true(kn_hash_finish(kn_hash_field(KN_HASH_START, "", 0)) !=
+                kn_hash_finish(kn_hash_field(KN_HASH_START, "\0", 1)));
+    /* texts longer than a word: only the tail differs */
+    assert_true(kn_hash_finish(kn_hash_field(KN_HASH_START, "croissant-0001", 14)) !=
+                kn_hash_finish(kn_hash_field(KN_HASH_START, "croissant-0002", 14)));
 }
 
 /* ---- generator and reservoir ---- */
@@ -478,16 +524,18 @@ int main(void)
         T(test_u_single_class_target),
         T(test_u_hand_computed),
         T(test_u_strings_compared_exactly),
-        T(test_u_high_cardinality),
-        T(test_u_many_levels_grow),
-        T(test_u_empty),
+        T(test_u_id_zero_not_counted),
+        T(test_u_sorted_pairs_agree_with_table),
+        T(test_dict_cap),
+        T(test_dict_many_levels_grow),
+        T(test_quantile_bins),
         T(test_kanon_groups),
         T(test_kanon_empty),
         T(test_kanon_many_groups),
         T(test_overlap),
         T(test_overlap_none),
         T(test_row_hash_field_boundaries),
-        T(test_hash_bytes_seed_and_content),
+        T(test_hash_content),
         T(test_rng_reproducible),
         T(test_rng_below_range_and_spread),
         T(test_reservoir_keeps_first_cap_items),
