@@ -204,8 +204,21 @@ static bool parse_duration(ld *l, const owner *o, const char *key, const kn_node
         kn_diag *d = kn_diag_push(l->sink, KN_R_BAD_DURATION, &p, o->name,
                                   "'%s' of %s is not an ISO 8601 duration: %s", node_esc(l, v),
                                   owner_str(l, o), why ? why : "malformed");
-        kn_diag_note(l->sink, d, &v->pos,
-                     "durations look like PT30M, PT6H, P3D, P1W, P1M or -PT1H (PnYnMnWnDTnHnMnS)");
+        char iso[64];
+        kn_interval meant;
+        size_t off2;
+        const char *why2;
+        if (kn_duration_suggest(v->u.scalar.text, v->u.scalar.len, iso, sizeof iso) &&
+            kn_duration_parse(iso, strlen(iso), &meant, &off2, &why2)) {
+            char h[48];
+            kn_diag_note(l->sink, d, &v->pos, "did you mean '%s'%s%s%s? (ISO 8601: PnYnMnWnDTnHnMnS, "
+                         "with hours, minutes and seconds after the T)", iso, meant.lo == meant.hi ? " (" : "",
+                         meant.lo == meant.hi ? kn_duration_format(meant.lo, h, sizeof h) : "",
+                         meant.lo == meant.hi ? ")" : "");
+        } else {
+            kn_diag_note(l->sink, d, &v->pos,
+                         "durations look like PT30M, PT6H, P3D, P1W, P1M or -PT1H (PnYnMnWnDTnHnMnS)");
+        }
         return false;
     }
     return true;
@@ -1435,6 +1448,203 @@ static void check_target_roles(ld *l)
     }
 }
 
+/* ---- months written where minutes were meant ------------------------------
+ * P15M is fifteen months; PT15M fifteen minutes.  A note-level bad-duration
+ * hint goes to a duration in months or years at the MIN end of a lag whose
+ * MAX is in hours, minutes or seconds ([P5M, PT4H]), and to a
+ * duration in an unusual number of months (not 1, 2, 3, 4, 6, 9, 12...)
+ * in a block (a source, a column, an event, the split) that holds such
+ * durations, or, for a latency or delay, in a file that does.  Only the keys that hold durations are read, a fixed
+ * number of them per block, so the walk is linear in the file. */
+
+#define HINT_MAX_PER_BLOCK 64
+
+typedef struct dur_slot {
+    const kn_node *node;
+    unsigned units;
+    bool recording;         /* latency or delay: event to record, rarely months */
+    const kn_node *partner; /* the other end of a [MIN, MAX] lag */
+    bool is_min;            /* this is the MIN of such a lag */
+} dur_slot;
+
+typedef struct dur_block {
+    dur_slot slot[HINT_MAX_PER_BLOCK];
+    size_t n;
+} dur_block;
+
+static void hint_take(dur_block *b, const kn_node *v, bool recording, const kn_node *partner, bool is_min)
+{
+    if (!v || v->kind != KN_NODE_SCALAR || b->n == HINT_MAX_PER_BLOCK) {
+        return;
+    }
+    kn_interval iv;
+    size_t off;
+    const char *why;
+    if (!kn_duration_parse(v->u.scalar.text, v->u.scalar.len, &iv, &off, &why)) {
+        return;
+    }
+    b->slot[b->n++] = (dur_slot){v, kn_duration_units(v->u.scalar.text, v->u.scalar.len), recording, partner, is_min};
+}
+
+/* A duration or a [MIN, MAX] lag. */
+static void hint_take_lag(dur_block *b, const kn_node *v, bool recording)
+{
+    if (v && v->kind == KN_NODE_SEQ && v->u.seq.n == 2) {
+        hint_take(b, v->u.seq.items[0], recording, v->u.seq.items[1], true);
+        hint_take(b, v->u.seq.items[1], recording, v->u.seq.items[0], false);
+    } else {
+        hint_take(b, v, recording, NULL, false);
+    }
+}
+
+static const kn_node *map_get(const kn_node *m, const char *key)
+{
+    if (!m || m->kind != KN_NODE_MAP) {
+        return NULL;
+    }
+    for (size_t i = 0; i < m->u.map.n; i++) {
+        const char *k = kn_node_str(m->u.map.pairs[i].key);
+        if (k && strcmp(k, key) == 0) {
+            return m->u.map.pairs[i].value;
+        }
+    }
+    return NULL;
+}
+
+/* A count of months that people use as a calendar period (a month, a
+ * quarter, half a year, a year...): "P1M" or "P6M" beside hours is a
+ * monthly batch, not a slip; "P15M" or "P5M" more often meant minutes. */
+static bool usual_months(const char *digits)
+{
+    static const int usual[] = {1, 2, 3, 4, 6, 9, 12, 18, 24, 36, 48, 60};
+    int n = 0;
+    size_t k = 0;
+    for (; digits[k] >= '0' && digits[k] <= '9' && k < 6; k++) {
+        n = n * 10 + (digits[k] - '0');
+    }
+    if (digits[k] != 'M') {
+        return true; /* a fraction or something unusual: no guess */
+    }
+    for (size_t i = 0; i < sizeof usual / sizeof *usual; i++) {
+        if (usual[i] == n) {
+            return true;
+        }
+    }
+    return false;
+}
+
+static const kn_node *block_clock(const dur_block *b)
+{
+    for (size_t i = 0; i < b->n; i++) {
+        if (b->slot[i].units & (KN_DU_HOURS | KN_DU_MINUTES | KN_DU_SECONDS)) {
+            return b->slot[i].node;
+        }
+    }
+    return NULL;
+}
+
+/* Reads the durations of one block and returns its first duration in
+ * hours, minutes or seconds (or NULL).  With report, pushes the hints: a
+ * duration in months or years beside such a duration, and a latency or
+ * delay in months also against file_clock (the file's first one). */
+static const kn_node *hint_block(ld *l, const kn_node *entry, bool report, const kn_node *file_clock)
+{
+    if (!entry || entry->kind != KN_NODE_MAP) {
+        return NULL;
+    }
+    static const char *const lag_keys[] = {"latency", "refresh", "matures", "delay", "gap", "embargo"};
+    dur_block b;
+    b.n = 0;
+    for (size_t i = 0; i < sizeof lag_keys / sizeof *lag_keys; i++) {
+        hint_take_lag(&b, map_get(entry, lag_keys[i]), i == 0 || i == 3);
+    }
+    static const char *const rel_keys[] = {"after", "before"};
+    for (size_t i = 0; i < 2; i++) {
+        const kn_node *rel = map_get(entry, rel_keys[i]);
+        for (size_t j = 0; rel && rel->kind == KN_NODE_MAP && j < rel->u.map.n; j++) {
+            hint_take_lag(&b, rel->u.map.pairs[j].value, false);
+        }
+    }
+    const kn_node *window = map_get(entry, "window");
+    hint_take(&b, map_get(window, "from"), false, NULL, false);
+    hint_take(&b, map_get(window, "to"), false, NULL, false);
+    hint_take(&b, map_get(map_get(map_get(entry, "join"), "as_of"), "offset"), false, NULL, false);
+
+    const kn_node *own = block_clock(&b);
+    if (!report) {
+        return own;
+    }
+    for (size_t i = 0; i < b.n; i++) {
+        unsigned u = b.slot[i].units;
+        if (!(u & (KN_DU_MONTHS | KN_DU_YEARS))) {
+            continue;
+        }
+        const kn_node *v = b.slot[i].node;
+        const char *text = node_esc(l, v);
+        /* "P15M" (or "-P15M"): the same digits after a T are minutes. */
+        const char *p = strchr(text, 'P');
+        bool months_only = u == KN_DU_MONTHS && p && p[1] != '\0';
+        const kn_node *partner = b.slot[i].partner;
+        const kn_node *clock = NULL;
+        const char *where = "";
+        bool partner_clock = partner && kn_duration_units(partner->u.scalar.text, partner->u.scalar.len) &
+                                            (KN_DU_HOURS | KN_DU_MINUTES | KN_DU_SECONDS);
+        /* [P5M, PT4H]: months below hours.  [PT1H, P1Y] is a plain range;
+         * [PT1H, P15M] is flagged only for its unusual count. */
+        if (partner_clock && (b.slot[i].is_min || (months_only && !usual_months(p + 1)))) {
+            clock = partner;
+            where = "the other end of the lag";
+        } else if (months_only && !usual_months(p + 1)) {
+            clock = own ? own : b.slot[i].recording ? file_clock : NULL;
+            where = own ? "in the same block" : "in the same file";
+        }
+        if (!clock) {
+            continue;
+        }
+        const char *fix = months_only ? kn_printf(l->a, "; if minutes were meant, write '%.*sT%s'",
+                                                  (int)(p - text + 1), text, p + 1)
+                                      : "";
+        kn_diag *d = kn_diag_push(l->sink, KN_R_BAD_DURATION, &v->pos, NULL,
+                                  "'%s' is in %s, while durations around it are in hours or minutes%s", text,
+                                  u & KN_DU_YEARS ? (u & KN_DU_MONTHS ? "years and months" : "years") : "months",
+                                  fix);
+        kn_diag_cap(d, KN_SEV_NOTE);
+        kn_diag_note(l->sink, d, &clock->pos, "'%s', %s, is in hours, minutes or seconds", node_esc(l, clock),
+                     where);
+        kn_diag_note(l->sink, d, &v->pos,
+                     "in ISO 8601 an M before the T is months ([28d, 31d] each), after it minutes: P15M is 15 "
+                     "months, PT15M is 15 minutes");
+    }
+    return own;
+}
+
+static void hint_calendar_units(ld *l, const kn_node *root)
+{
+    if (!root || root->kind != KN_NODE_MAP) {
+        return;
+    }
+    static const char *const collections[] = {"events", "sources", "columns"};
+    const kn_node *file_clock = NULL;
+    for (int pass = 0; pass < 2; pass++) {
+        for (size_t i = 0; i < 3; i++) {
+            const kn_node *c = map_get(root, collections[i]);
+            for (size_t j = 0; c && c->kind == KN_NODE_MAP && j < c->u.map.n; j++) {
+                const kn_node *found = hint_block(l, c->u.map.pairs[j].value, pass == 1, file_clock);
+                if (pass == 0 && !file_clock) {
+                    file_clock = found;
+                }
+            }
+        }
+        const kn_node *found = hint_block(l, map_get(root, "split"), pass == 1, file_clock);
+        if (pass == 0 && !file_clock) {
+            file_clock = found;
+        }
+        if (!file_clock) {
+            return;
+        }
+    }
+}
+
 kn_schema *kn_schema_load(kn_arena *a, kn_sink *sink, const char *path, const kn_load_options *opt)
 {
     ld l = {0};
@@ -1474,6 +1684,9 @@ kn_schema *kn_schema_load(kn_arena *a, kn_sink *sink, const char *path, const kn
     copy_out(&l);
     resolve_all(&l);
     check_target_roles(&l);
+    for (size_t i = 0; i < l.s->n_files; i++) {
+        hint_calendar_units(&l, l.s->files[i].root);
+    }
     find_cycles(&l);
     l.s->shape_ok = !l.errors;
     return l.s;

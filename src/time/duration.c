@@ -416,3 +416,233 @@ double kn_time_seconds(int64_t us)
      * their microseconds as far as a double can. */
     return (double)(us / KN_US_PER_SEC) + (double)(us % KN_US_PER_SEC) / 1e6;
 }
+
+unsigned kn_duration_units(const char *s, size_t len)
+{
+    size_t i = 0;
+    if (i < len && s[i] == '-') {
+        i++;
+    }
+    if (i >= len || s[i] != 'P') {
+        return 0;
+    }
+    unsigned units_used = 0;
+    bool in_time = false;
+    for (i++; i < len; i++) {
+        char c = s[i];
+        if (c == 'T') {
+            in_time = true;
+        } else if (c == 'Y') {
+            units_used |= KN_DU_YEARS;
+        } else if (c == 'M') {
+            units_used |= in_time ? KN_DU_MINUTES : KN_DU_MONTHS;
+        } else if (c == 'W') {
+            units_used |= KN_DU_WEEKS;
+        } else if (c == 'D') {
+            units_used |= KN_DU_DAYS;
+        } else if (c == 'H') {
+            units_used |= KN_DU_HOURS;
+        } else if (c == 'S') {
+            units_used |= KN_DU_SECONDS;
+        }
+    }
+    return units_used;
+}
+
+/* ---- suggestions for informal spellings ---------------------------------- */
+
+static char lower(char c)
+{
+    return c >= 'A' && c <= 'Z' ? (char)(c - 'A' + 'a') : c;
+}
+
+/* The unit index (into units[]) an informal unit word names, or -1. */
+static int informal_unit(const char *w, size_t n)
+{
+    static const struct {
+        const char *word;
+        int unit;
+    } words[] = {
+        {"y", 0},       {"yr", 0},     {"yrs", 0},     {"year", 0},    {"years", 0},
+        {"mo", 1},      {"mon", 1},    {"mons", 1},    {"month", 1},   {"months", 1},
+        {"w", 2},       {"wk", 2},     {"wks", 2},     {"week", 2},    {"weeks", 2},
+        {"d", 3},       {"day", 3},    {"days", 3},
+        {"h", 4},       {"hr", 4},     {"hrs", 4},     {"hour", 4},    {"hours", 4},
+        {"m", 5},       {"min", 5},    {"mins", 5},    {"minute", 5},  {"minutes", 5},
+        {"s", 6},       {"sec", 6},    {"secs", 6},    {"second", 6},  {"seconds", 6},
+    };
+    char buf[8];
+    if (n == 0 || n >= sizeof buf) {
+        return -1;
+    }
+    for (size_t i = 0; i < n; i++) {
+        buf[i] = lower(w[i]);
+    }
+    buf[n] = '\0';
+    for (size_t i = 0; i < sizeof words / sizeof *words; i++) {
+        if (strcmp(words[i].word, buf) == 0) {
+            return words[i].unit;
+        }
+    }
+    return -1;
+}
+
+/* Appends text to buf at *at, keeping room for the NUL; false when full. */
+static bool put(char *buf, size_t n, size_t *at, const char *text, size_t len)
+{
+    if (*at + len + 1 > n) {
+        return false;
+    }
+    memcpy(buf + *at, text, len);
+    *at += len;
+    buf[*at] = '\0';
+    return true;
+}
+
+/* Builds P...T... from one number per unit (NULL: absent). */
+static bool build_iso(bool negative, const char *const num[N_UNITS], const size_t num_len[N_UNITS], char *buf,
+                      size_t n)
+{
+    size_t at = 0;
+    if (n == 0 || (negative && !put(buf, n, &at, "-", 1)) || !put(buf, n, &at, "P", 1)) {
+        return false;
+    }
+    bool any = false, t = false;
+    for (int u = 0; u < N_UNITS; u++) {
+        if (!num[u]) {
+            continue;
+        }
+        if (units[u].time && !t) {
+            if (!put(buf, n, &at, "T", 1)) {
+                return false;
+            }
+            t = true;
+        }
+        if (!put(buf, n, &at, num[u], num_len[u]) || !put(buf, n, &at, &units[u].letter, 1)) {
+            return false;
+        }
+        any = true;
+    }
+    return any;
+}
+
+/* "h:mm" or "h:mm:ss" (each part digits; a fraction on the seconds). */
+static bool clock_form(const char *s, size_t len, bool negative, char *buf, size_t n)
+{
+    const char *num[N_UNITS] = {0};
+    size_t num_len[N_UNITS] = {0};
+    size_t i = 0;
+    for (int part = 0; part < 3 && i < len; part++) {
+        size_t start = i;
+        while (i < len && (is_digit(s[i]) || (part == 2 && s[i] == '.'))) {
+            i++;
+        }
+        if (i == start) {
+            return false;
+        }
+        /* Leading zeros are dropped ("01" -> "1"), keeping one digit. */
+        size_t z = start;
+        while (z + 1 < i && s[z] == '0' && is_digit(s[z + 1])) {
+            z++;
+        }
+        if (!(i - z == 1 && s[z] == '0')) {
+            num[FIRST_TIME_UNIT + part] = s + z;
+            num_len[FIRST_TIME_UNIT + part] = i - z;
+        }
+        if (i < len) {
+            if (s[i] != ':' || part == 2) {
+                return false;
+            }
+            i++;
+        } else if (part == 0) {
+            return false; /* a bare number is not a clock time */
+        }
+    }
+    if (i != len) {
+        return false;
+    }
+    if (!num[4] && !num[5] && !num[6]) {
+        num[6] = "0";
+        num_len[6] = 1;
+    }
+    return build_iso(negative, num, num_len, buf, n);
+}
+
+bool kn_duration_suggest(const char *s, size_t len, char *buf, size_t n)
+{
+    /* Trim white space; refuse long or control-laden text. */
+    while (len && is_space(*s)) {
+        s++, len--;
+    }
+    while (len && is_space(s[len - 1])) {
+        len--;
+    }
+    if (len == 0 || len > 64 || n == 0) {
+        return false;
+    }
+    for (size_t i = 0; i < len; i++) {
+        if ((unsigned char)s[i] < 0x20 || (unsigned char)s[i] >= 0x7f) {
+            return false;
+        }
+    }
+    kn_interval iv;
+    size_t off;
+    const char *why;
+    /* ISO in lower case, or with mixed case. */
+    if (len + 1 <= n && (lower(s[0]) == 'p' || (len > 1 && s[0] == '-' && lower(s[1]) == 'p'))) {
+        for (size_t i = 0; i < len; i++) {
+            buf[i] = s[i] >= 'a' && s[i] <= 'z' ? (char)(s[i] - 'a' + 'A') : s[i];
+        }
+        buf[len] = '\0';
+        return kn_duration_parse(buf, len, &iv, &off, &why);
+    }
+    size_t i = 0;
+    bool negative = false;
+    if (s[0] == '-') {
+        negative = true;
+        i = 1;
+    }
+    if (memchr(s, ':', len)) {
+        return clock_form(s + i, len - i, negative, buf, n) && kn_duration_parse(buf, strlen(buf), &iv, &off, &why);
+    }
+    const char *num[N_UNITS] = {0};
+    size_t num_len[N_UNITS] = {0};
+    int last = -1;
+    bool any = false;
+    while (i < len) {
+        while (i < len && is_space(s[i])) {
+            i++;
+        }
+        size_t start = i;
+        while (i < len && (is_digit(s[i]) || s[i] == '.')) {
+            i++;
+        }
+        if (i == start) {
+            return false;
+        }
+        size_t nstart = start, nlen = i - start;
+        while (i < len && is_space(s[i])) {
+            i++;
+        }
+        size_t ustart = i;
+        while (i < len && ((s[i] >= 'a' && s[i] <= 'z') || (s[i] >= 'A' && s[i] <= 'Z'))) {
+            i++;
+        }
+        int u = informal_unit(s + ustart, i - ustart);
+        /* Units must come largest first, each once, as ISO 8601 writes them. */
+        if (u < 0 || u <= last) {
+            return false;
+        }
+        num[u] = s + nstart;
+        num_len[u] = nlen;
+        last = u;
+        any = true;
+        while (i < len && (is_space(s[i]) || s[i] == ',')) {
+            i++;
+        }
+        if (i + 3 < len && strncmp(s + i, "and", 3) == 0 && is_space(s[i + 3])) {
+            i += 4;
+        }
+    }
+    return any && build_iso(negative, num, num_len, buf, n) && kn_duration_parse(buf, strlen(buf), &iv, &off, &why);
+}

@@ -48,4 +48,26 @@ char *kn_duration_format(int64_t us, char *buf, size_t n);
 /* Seconds as a double for JSON output (inf ends are never passed here). */
 double kn_time_seconds(int64_t us);
 
+/* The units a valid ISO 8601 duration is written in (call on a string
+ * kn_duration_parse accepted; anything else yields 0). */
+enum {
+    KN_DU_YEARS = 1 << 0,
+    KN_DU_MONTHS = 1 << 1,
+    KN_DU_WEEKS = 1 << 2,
+    KN_DU_DAYS = 1 << 3,
+    KN_DU_HOURS = 1 << 4,
+    KN_DU_MINUTES = 1 << 5,
+    KN_DU_SECONDS = 1 << 6,
+};
+unsigned kn_duration_units(const char *s, size_t len);
+
+/* The ISO 8601 spelling of an informal duration, for "did you mean":
+ * "15m", "15 min", "5mins", "2h", "2 hours", "3 days", "1w", "1h30m",
+ * "1d 4h", "-2h", "6 months", "1 year", "01:30" or "1:30:00" (hours,
+ * minutes, seconds), and ISO written in lower case ("pt15m").  "m" alone
+ * means minutes.  Writes the suggestion (always one kn_duration_parse
+ * accepts) to buf and returns true; false when the text is not one of
+ * these forms or does not fit in n bytes. */
+bool kn_duration_suggest(const char *s, size_t len, char *buf, size_t n);
+
 #endif

@@ -86,8 +86,8 @@ SHAPE_CROSS_REFERENCE = ("(prediction.target) and cannot also have role", "names
 def shape_problems(diags, display):
     out = []
     for d in diags:
-        if d["file"] != display:
-            continue
+        if d["file"] != display or d["severity"] == "note":
+            continue  # note-level hints (months beside minutes) are not shape errors
         if d["rule"] == "schema-shape" and not any(s in d["message"] for s in SHAPE_CROSS_REFERENCE):
             out.append(d["message"])
         elif d["rule"] == "bad-duration" and not any(s in d["message"] for s in JSON_SCHEMA_BLIND):

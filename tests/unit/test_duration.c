@@ -535,6 +535,82 @@ static void test_format_truncates(void **state)
     assert_int_equal(buf[0], 'y');
 }
 
+
+/* Informal spellings get the ISO 8601 form as a suggestion; every
+ * suggestion is itself a valid duration. */
+static void check_suggest(const char *in, const char *want)
+{
+    char buf[64] = "unchanged";
+    bool ok = kn_duration_suggest(in, strlen(in), buf, sizeof buf);
+    if (!want) {
+        if (ok) {
+            fail_msg("\"%s\" got the suggestion \"%s\", expected none", in, buf);
+        }
+        return;
+    }
+    if (!ok) {
+        fail_msg("\"%s\" got no suggestion, expected \"%s\"", in, want);
+    }
+    assert_string_equal(buf, want);
+}
+
+static void test_suggest_informal(void **state)
+{
+    (void)state;
+    check_suggest("15m", "PT15M");
+    check_suggest("5min", "PT5M");
+    check_suggest("5 mins", "PT5M");
+    check_suggest("2h", "PT2H");
+    check_suggest("2 hours", "PT2H");
+    check_suggest("3 days", "P3D");
+    check_suggest("1w", "P1W");
+    check_suggest("1h30m", "PT1H30M");
+    check_suggest("1d 4h", "P1DT4H");
+    check_suggest("1 hour and 30 minutes", "PT1H30M");
+    check_suggest("-2h", "-PT2H");
+    check_suggest("6 months", "P6M");
+    check_suggest("1 year", "P1Y");
+    check_suggest("30s", "PT30S");
+    check_suggest("0.5h", "PT0.5H");
+    check_suggest("pt15m", "PT15M");
+    check_suggest("p3d", "P3D");
+    check_suggest("01:30", "PT1H30M");
+    check_suggest("0:15:00", "PT15M");
+    check_suggest("00:00", "PT0S");
+    check_suggest(" 15 minutes ", "PT15M");
+    /* Not durations, or ambiguous: no suggestion. */
+    check_suggest("soon", NULL);
+    check_suggest("15", NULL);
+    check_suggest("m15", NULL);
+    check_suggest("30m 1h", NULL); /* units out of order */
+    check_suggest("1h 1h", NULL);
+    check_suggest("15 fortnights", NULL);
+    check_suggest("1.2.3h", NULL);
+    check_suggest("", NULL);
+    check_suggest("px", NULL);
+    check_suggest("1:2:3:4", NULL);
+}
+
+static void test_suggest_small_buffer(void **state)
+{
+    (void)state;
+    char buf[4];
+    assert_false(kn_duration_suggest("15m", 3, buf, sizeof buf)); /* "PT15M" needs 6 bytes */
+    char one[1];
+    assert_false(kn_duration_suggest("15m", 3, one, 0));
+}
+
+static void test_units(void **state)
+{
+    (void)state;
+    assert_int_equal(kn_duration_units("P15M", 4), KN_DU_MONTHS);
+    assert_int_equal(kn_duration_units("PT15M", 5), KN_DU_MINUTES);
+    assert_int_equal(kn_duration_units("-P1Y2M3DT4H5M6S", 15),
+                     KN_DU_YEARS | KN_DU_MONTHS | KN_DU_DAYS | KN_DU_HOURS | KN_DU_MINUTES | KN_DU_SECONDS);
+    assert_int_equal(kn_duration_units("P1W", 3), KN_DU_WEEKS);
+    assert_int_equal(kn_duration_units("15m", 3), 0);
+}
+
 int main(void)
 {
     const struct CMUnitTest tests[] = {
@@ -580,6 +656,9 @@ int main(void)
         cmocka_unit_test(test_format_all_units),
         cmocka_unit_test(test_format_largest_fits),
         cmocka_unit_test(test_format_truncates),
+        cmocka_unit_test(test_suggest_informal),
+        cmocka_unit_test(test_suggest_small_buffer),
+        cmocka_unit_test(test_units),
     };
     return cmocka_run_group_tests_name("duration", tests, NULL, NULL);
 }
