@@ -375,7 +375,7 @@ static void segments(kn_dx *x, labels *L, size_t col)
             continue;
         }
         if (u.n < rows_needed(u.x_levels, u.y_levels)) {
-            skip(x, KN_R_IDENTIFIER_SEGMENT_PREDICTS, c->name, g->name ? g->name : ordinal(x->a, gi),
+            skip(x, KN_R_IDENTIFIER_SEGMENT_PREDICTS, c->name, "uncertainty",
                  kn_printf(x->a,
                            "U needs at least %d rows per cell of its table, %zu rows for %zu values of %s and %zu "
                            "classes of '%s'; the sample has %zu",
