@@ -54,6 +54,12 @@ typedef struct file_ctx {
     kn_node *via;        /* the include item that led here; NULL for the schema */
 } file_ctx;
 
+/* The work "did you mean" may take over one load, in kn_suggest_within's
+ * units (about a byte compared each): at most about a second in a release
+ * build (1,000 unknown references among 1,000 names of 250 bytes take half
+ * of it). */
+#define KN_LOAD_SUGGEST_BUDGET ((size_t)1 << 30)
+
 typedef struct ld {
     kn_arena *a;
     kn_sink *sink;
@@ -69,6 +75,8 @@ typedef struct ld {
     size_t unknown_keys;
     size_t value_errors; /* errors that make the object being loaded unusable
                             (every error but an unknown key, which is ignored) */
+    size_t suggest_left; /* work left for "did you mean" (kn_suggest_within) */
+    bool suggest_spent;  /* the note saying suggestions stopped was given */
 } ld;
 
 static const char *owner_str(ld *l, const owner *o)
@@ -1152,12 +1160,22 @@ static bool resolve(ld *l, namespace_ *ns, kn_ref *r, const char *context)
     if (!ns->names) {
         ns->names = names_array(l, ns->map, &ns->n);
     }
-    const char *near = ns->n <= 20000 ? kn_suggest(r->name, ns->names, ns->n) : NULL;
+    bool had = l->suggest_left > 0;
+    const char *near = had ? kn_suggest_within(r->name, ns->names, ns->n, &l->suggest_left) : NULL;
+    kn_diag *d;
     if (near) {
-        err(l, KN_R_UNKNOWN_REFERENCE, r->node, "%s: %s '%s' is not defined; did you mean '%s'?", context, ns->what,
-            esc(l, r->name), esc(l, near));
+        d = err(l, KN_R_UNKNOWN_REFERENCE, r->node, "%s: %s '%s' is not defined; did you mean '%s'?", context,
+                ns->what, esc(l, r->name), esc(l, near));
     } else {
-        err(l, KN_R_UNKNOWN_REFERENCE, r->node, "%s: %s '%s' is not defined", context, ns->what, esc(l, r->name));
+        d = err(l, KN_R_UNKNOWN_REFERENCE, r->node, "%s: %s '%s' is not defined", context, ns->what, esc(l, r->name));
+    }
+    if (l->suggest_left == 0 && !l->suggest_spent) {
+        /* Said once, at the first reference the search did not finish for. */
+        l->suggest_spent = true;
+        kn_diag_note(l->sink, d, NULL,
+                     "'did you mean' suggestions stop here: comparing unknown names with the %zu defined "
+                     "ones reached this run's limit, so this and later references get none",
+                     ns->n);
     }
     return false;
 }
@@ -1650,6 +1668,7 @@ kn_schema *kn_schema_load(kn_arena *a, kn_sink *sink, const char *path, const kn
     ld l = {0};
     l.a = a;
     l.sink = sink;
+    l.suggest_left = KN_LOAD_SUGGEST_BUDGET;
     l.opt = opt;
     l.s = kn_alloc(a, sizeof *l.s);
     l.s->path = path;

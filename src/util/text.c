@@ -10,23 +10,29 @@
 size_t kn_edit_distance(const char *a, const char *b, size_t limit)
 {
     /* Optimal string alignment: Levenshtein plus adjacent transpositions,
-     * so that "knwon" is one edit from "known". */
+     * so that "knwon" is one edit from "known".  Only the band of cells
+     * within limit of the diagonal is computed (a cell outside it is more
+     * than limit edits away), so the cost is O(strlen(a) * limit). */
     size_t la = strlen(a), lb = strlen(b);
-    if (la > 256 || lb > 256) {
+    if (la > 256 || lb > 256 || limit >= 256) {
         return limit + 1;
     }
     if ((la > lb ? la - lb : lb - la) > limit) {
         return limit + 1;
     }
-    static size_t rows[3][257];
+    const size_t far = limit + 1;
+    static size_t rows[3][258];
     size_t *prev2 = rows[0], *prev = rows[1], *cur = rows[2];
-    for (size_t j = 0; j <= lb; j++) {
-        prev[j] = j;
+    for (size_t j = 0; j <= lb + 1; j++) {
+        prev[j] = j <= limit ? j : far;
+        prev2[j] = far;
     }
     for (size_t i = 1; i <= la; i++) {
-        cur[0] = i;
-        size_t best = i;
-        for (size_t j = 1; j <= lb; j++) {
+        size_t lo = i > limit ? i - limit : 1;
+        size_t hi = i + limit < lb ? i + limit : lb;
+        cur[lo - 1] = lo == 1 ? (i <= limit ? i : far) : far;
+        size_t best = cur[lo - 1];
+        for (size_t j = lo; j <= hi; j++) {
             size_t cost = a[i - 1] == b[j - 1] ? 0 : 1;
             size_t v = prev[j - 1] + cost;
             if (prev[j] + 1 < v) {
@@ -38,36 +44,91 @@ size_t kn_edit_distance(const char *a, const char *b, size_t limit)
             if (i > 1 && j > 1 && a[i - 1] == b[j - 2] && a[i - 2] == b[j - 1] && prev2[j - 2] + 1 < v) {
                 v = prev2[j - 2] + 1;
             }
-            cur[j] = v;
+            cur[j] = v > far ? far : v;
             if (v < best) {
                 best = v;
             }
         }
+        cur[hi + 1] = far;
         if (best > limit) {
-            return limit + 1;
+            return far;
         }
         size_t *t = prev2;
         prev2 = prev;
         prev = cur;
         cur = t;
     }
-    return prev[lb];
+    return prev[lb] > limit ? far : prev[lb];
 }
 
-const char *kn_suggest(const char *word, const char *const *candidates, size_t n)
+/* The bag distance of the word (byte counts in count_a, length la) and b:
+ * the bytes of either not matched by a byte of the other, a lower bound of
+ * the edit distance that costs O(strlen(b)).  count_b is all zero before
+ * and after. */
+static size_t bag_distance(const size_t count_a[256], size_t la, size_t count_b[256],
+                           const unsigned char *b, size_t lb)
+{
+    for (size_t j = 0; j < lb; j++) {
+        count_b[b[j]]++;
+    }
+    size_t extra_b = 0;
+    for (size_t j = 0; j < lb; j++) {
+        size_t k = count_b[b[j]];
+        if (k) {
+            extra_b += k > count_a[b[j]] ? k - count_a[b[j]] : 0;
+            count_b[b[j]] = 0;
+        }
+    }
+    size_t extra_a = la - (lb - extra_b);
+    return extra_a > extra_b ? extra_a : extra_b;
+}
+
+const char *kn_suggest_within(const char *word, const char *const *candidates, size_t n,
+                              size_t *budget)
 {
     size_t len = strlen(word);
     size_t limit = len <= 3 ? 1 : (len / 3 > 2 ? len / 3 : 2);
+    if (limit > KN_SUGGEST_MAX_EDITS) {
+        limit = KN_SUGGEST_MAX_EDITS;
+    }
+    if (len > 256) {
+        return NULL;
+    }
+    size_t count[256] = {0}, scratch[256] = {0};
+    for (size_t i = 0; i < len; i++) {
+        count[(unsigned char)word[i]]++;
+    }
     const char *best = NULL;
     size_t best_d = limit + 1;
-    for (size_t i = 0; i < n; i++) {
-        size_t d = kn_edit_distance(word, candidates[i], limit);
+    for (size_t i = 0; i < n && best_d > 1; i++) {
+        if (*budget < 2 * 256 * (2 * KN_SUGGEST_MAX_EDITS + 1)) {
+            *budget = 0;
+            break;
+        }
+        const char *c = candidates[i];
+        size_t lc = strlen(c);
+        *budget -= 1;
+        if ((len > lc ? len - lc : lc - len) > limit || lc > 256) {
+            continue;
+        }
+        *budget -= 2 * lc;
+        if (bag_distance(count, len, scratch, (const unsigned char *)c, lc) >= best_d) {
+            continue;
+        }
+        *budget -= len * (2 * limit + 1);
+        size_t d = kn_edit_distance(word, c, best_d - 1);
         if (d > 0 && d < best_d) {
-            best = candidates[i];
+            best = c;
             best_d = d;
         }
     }
     return best;
+}
+
+const char *kn_suggest(const char *word, const char *const *candidates, size_t n)
+{
+    size_t budget = KN_SUGGEST_BUDGET;
+    return kn_suggest_within(word, candidates, n, &budget);
 }
 
 size_t kn_utf8_valid_seq(const unsigned char *s, size_t len)

@@ -21,9 +21,19 @@
 size_t kn_edit_distance(const char *a, const char *b, size_t limit);
 
 /* The closest of n candidates to word, or NULL when none is close enough
- * (distance at most 1 for words of up to 3 bytes, else max(2, strlen(word) / 3);
- * never for an exact match). */
+ * (distance at most 1 for words of up to 3 bytes, else max(2, strlen(word) / 3)
+ * but never more than KN_SUGGEST_MAX_EDITS; never for an exact match).  A
+ * length filter and a bag-distance bound skip most candidates in
+ * O(strlen(candidate)); the edit distance runs in a band of the limit.
+ * kn_suggest_within charges its work (about one unit per byte compared)
+ * to *budget and, when the budget runs out, sets it to 0 and returns the
+ * best of the candidates compared so far; kn_suggest gives each call
+ * KN_SUGGEST_BUDGET. */
+#define KN_SUGGEST_MAX_EDITS 8
+#define KN_SUGGEST_BUDGET ((size_t)4 << 20)
 const char *kn_suggest(const char *word, const char *const *candidates, size_t n);
+const char *kn_suggest_within(const char *word, const char *const *candidates, size_t n,
+                              size_t *budget);
 
 /* Writes s (len bytes) for a terminal: printable ASCII and valid UTF-8 as
  * they are; control characters, DEL, C1 controls and invalid UTF-8 bytes as

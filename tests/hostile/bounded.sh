@@ -186,6 +186,44 @@ case_derivation_cycle() {
     at_most 10000 cycle.out
 }
 
+# suggest_schema N: N events with random names of 250 letters, and N
+# columns known at an undefined event: the odd ones one letter off a
+# defined name, the even ones at a random name.
+suggest_schema() {
+    awk -v n="$1" 'function word(   w, k) { w = ""; for (k = 0; k < 250; k++) w = w substr("abcdefghijklmnopqrstuvwxyz", int(rand() * 26) + 1, 1); return w }
+    BEGIN {
+        srand(7)
+        print "knowable: 1\ndataset: parcels\nprediction: {moment: e0, target: t}\nevents:\n  e0: {}"
+        for (i = 0; i < n; i++) { name[i] = word(); printf "  %s: {after: e0}\n", name[i] }
+        print "columns:\n  t: {role: target, known: e0}"
+        for (i = 0; i < n; i++) {
+            if (i % 2) ref = substr(name[i], 1, 99) "0" substr(name[i], 101)
+            else ref = word()
+            printf "  c%d: {known: %s}\n", i, ref
+        }
+    }'
+}
+
+case_did_you_mean() {
+    # 1,000 unknown references among 1,000 names of 250 letters: every
+    # reference was compared in full with every name (69 s).
+    suggest_schema 1000 >near.knowable.yaml
+    run near check near.knowable.yaml
+    expect_rc 1
+    n=$(grep -c ': error: .*did you mean .*\[unknown-reference\]' near.out)
+    [ "$n" = 500 ] || fail "near: $n suggestions, expected one for each of the 500 near misses"
+    grep -q 'suggestions stop here' near.out && fail "near: the suggestions stopped"
+    # 5,000 of them: more than the run's budget for suggestions, which
+    # says where it stopped.
+    suggest_schema 5000 >many.knowable.yaml
+    run many check many.knowable.yaml
+    expect_rc 1
+    expect_grep "^many.knowable.yaml: note: 'did you mean' suggestions stop here: " many.out \
+        "many: the output does not say the suggestions stopped"
+    n=$(grep -c ': error: .*\[unknown-reference\]' many.out)
+    [ "$n" = 5000 ] || fail "many: $n unknown references reported, expected 5000"
+}
+
 fn=case_$(echo "$case" | tr - _)
 command -v "$fn" >/dev/null 2>&1 || { echo "no case '$case'"; exit 1; }
 "$fn"
