@@ -110,7 +110,7 @@ kn_status kn_check(const kn_options *o, const char *const *schemas, size_t n, FI
     KN_ENTRY_ARENA(a, err);
 
     kn_sink *sink = kn_sink_new(a);
-    kn_rulebook *rb = kn_rulebook_for(a, sink, o->rulebooks, o->n_rulebooks, n ? schemas[0] : NULL);
+    kn_rulebook *rb = kn_rulebook_for(a, sink, o->rulebooks, o->n_rulebooks, n ? schemas[0] : NULL, o->root);
     kn_status status = KN_EXIT_OK;
     if (kn_sink_fatal(sink)) {
         kn_sink_finish(sink);
@@ -226,7 +226,7 @@ kn_status kn_rules(const kn_options *o, FILE *out, FILE *err)
 {
     KN_ENTRY_ARENA(a, err);
     kn_sink *sink = kn_sink_new(a);
-    kn_rulebook *rb = kn_rulebook_for(a, sink, o->rulebooks, o->n_rulebooks, NULL);
+    kn_rulebook *rb = kn_rulebook_for(a, sink, o->rulebooks, o->n_rulebooks, NULL, NULL);
     if (kn_sink_fatal(sink)) {
         kn_sink_finish(sink);
         render(out, sink, o, 0);

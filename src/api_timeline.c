@@ -18,7 +18,7 @@
 
 static kn_rulebook *rulebook(kn_arena *a, kn_sink *sink, const kn_options *o, const char *schema)
 {
-    return kn_rulebook_for(a, sink, o->rulebooks, o->n_rulebooks, schema);
+    return kn_rulebook_for(a, sink, o->rulebooks, o->n_rulebooks, schema, o->root);
 }
 
 kn_status kn_timeline_report(const kn_options *o, const char *schema, FILE *out, FILE *svg,

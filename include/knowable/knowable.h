@@ -100,7 +100,9 @@ kn_status kn_init(const kn_options *o, const char *csv, FILE *out, FILE *err);
 kn_status kn_json_schema(FILE *out, FILE *err);
 
 /* Output files are written to a temporary file in the same folder and
- * renamed into place; a path naming one of the inputs is refused.
+ * renamed into place; a path naming one of the inputs is refused.  A
+ * symbolic link is followed (the link stays); a device or a FIFO is
+ * written through, never renamed over.
  * kn_output_open returns NULL (and writes why to err) on failure. */
 typedef struct kn_output kn_output;
 kn_output *kn_output_open(const char *path, const char *const *inputs,

@@ -467,7 +467,7 @@ static void write_draft(FILE *out, const char *path, colstat *cols, size_t n, ui
 static kn_regex *identifier_pattern(kn_arena *a, const kn_options *o, FILE *err)
 {
     kn_sink *sink = kn_sink_new(a);
-    kn_rulebook *rb = kn_rulebook_for(a, sink, o->rulebooks, o->n_rulebooks, NULL);
+    kn_rulebook *rb = kn_rulebook_for(a, sink, o->rulebooks, o->n_rulebooks, NULL, NULL);
     if (kn_sink_fatal(sink)) {
         kn_render_opts ro = {o->color, o->quiet, false, 1};
         kn_sink_finish(sink);

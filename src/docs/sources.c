@@ -683,7 +683,7 @@ static void write_json(FILE *out, reg *r)
 
 static kn_rulebook *rulebook(kn_arena *a, kn_sink *sink, const kn_options *o, const char *schema)
 {
-    return kn_rulebook_for(a, sink, o->rulebooks, o->n_rulebooks, schema);
+    return kn_rulebook_for(a, sink, o->rulebooks, o->n_rulebooks, schema, o->root);
 }
 
 kn_status kn_sources(const kn_options *o, const char *const *schemas, size_t n, FILE *out, FILE *err)

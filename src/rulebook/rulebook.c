@@ -19,6 +19,7 @@
 #include <string.h>
 #include <sys/stat.h>
 
+#include "../util/path.h"
 #include "../util/regex.h"
 #include "../util/text.h"
 
@@ -536,9 +537,14 @@ static bool exists(const char *path, bool dir)
 
 /* The search walks up the real folders, but the path it returns is
  * spelt from the schema's path as given ("rules/x.knowable.yaml" ->
- * "rules/.knowable-rules.yaml", then "rules/../.knowable-rules.yaml"), so
- * that diagnostics in the rulebook print paths the user recognises. */
-char *kn_rulebook_discover(kn_arena *a, const char *schema_path)
+ * "rules/.knowable-rules.yaml", then "rules/.knowable-rules.yaml" one
+ * folder up), tidied ("teams/fraud/../../x" -> "x") when the tidy spelling
+ * names the same file, so that diagnostics print paths the user
+ * recognises.  It stops at a folder that holds .git and at the root:
+ * --root when the schema lies inside it, else the default root (the
+ * repository, else the schema's own folder: SPEC §5, §9), so a rulebook
+ * planted above the project is never read. */
+char *kn_rulebook_discover(kn_arena *a, const char *schema_path, const char *root)
 {
     char *real = realpath(schema_path, NULL);
     if (!real) {
@@ -550,14 +556,39 @@ char *kn_rulebook_discover(kn_arena *a, const char *schema_path)
     if (slash) {
         *slash = '\0';
     }
+    const char *root_real = NULL;
+    if (!root) {
+        root = kn_path_default_root(a, schema_path); /* the repository, else the schema's folder */
+    }
+    if (root) {
+        char *r = realpath(root, NULL);
+        if (r) {
+            root_real = kn_strdup(a, r);
+            free(r);
+        }
+    }
+    if (root_real) {
+        size_t n = strlen(root_real);
+        bool inside = strcmp(root_real, "/") == 0 ||
+                      (strncmp(dir, root_real, n) == 0 && (dir[n] == '/' || dir[n] == '\0'));
+        if (!inside) {
+            root_real = NULL;
+        }
+    }
     const char *shown = dir_of(a, schema_path);
     for (int guard = 0; guard < 256; guard++) {
         char *cand = kn_printf(a, "%s/.knowable-rules.yaml", dir);
         if (exists(cand, false)) {
-            return strcmp(shown, ".") == 0 ? kn_strdup(a, ".knowable-rules.yaml")
-                                           : kn_printf(a, "%s/.knowable-rules.yaml", shown);
+            char *path = strcmp(shown, ".") == 0 ? kn_strdup(a, ".knowable-rules.yaml")
+                                                 : kn_printf(a, "%s/.knowable-rules.yaml", shown);
+            char *tidy = kn_path_tidy(a, path);
+            char *r1 = realpath(tidy, NULL), *r2 = realpath(cand, NULL);
+            bool same = r1 && r2 && strcmp(r1, r2) == 0;
+            free(r1);
+            free(r2);
+            return same ? tidy : path;
         }
-        if (exists(kn_printf(a, "%s/.git", dir), true) || exists(kn_printf(a, "%s/.git", dir), false)) {
+        if (kn_path_is_project(a, dir) || !root_real || strcmp(dir, root_real) == 0) {
             return NULL;
         }
         slash = strrchr(dir, '/');
@@ -571,7 +602,7 @@ char *kn_rulebook_discover(kn_arena *a, const char *schema_path)
 }
 
 kn_rulebook *kn_rulebook_for(kn_arena *a, kn_sink *sink, const char *const *paths, size_t n_paths,
-                             const char *schema)
+                             const char *schema, const char *root)
 {
     kn_rulebook *rb = kn_rulebook_new(a);
     if (!kn_rulebook_load_default(rb, a, sink)) {
@@ -582,7 +613,7 @@ kn_rulebook *kn_rulebook_for(kn_arena *a, kn_sink *sink, const char *const *path
             kn_rulebook_load(rb, a, sink, paths[i]);
         }
     } else if (schema) {
-        char *found = kn_rulebook_discover(a, schema);
+        char *found = kn_rulebook_discover(a, schema, root);
         if (found) {
             kn_rulebook_load(rb, a, sink, found);
         }

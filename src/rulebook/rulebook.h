@@ -58,14 +58,17 @@ bool kn_rulebook_load_default(kn_rulebook *rb, kn_arena *a, kn_sink *sink);
 bool kn_rulebook_load(kn_rulebook *rb, kn_arena *a, kn_sink *sink, const char *path);
 
 /* Finds .knowable-rules.yaml in the schema's folder or a parent, stopping
- * at a folder that holds .git.  Returns an arena path or NULL. */
-char *kn_rulebook_discover(kn_arena *a, const char *schema_path);
+ * at a folder that holds .git and at root (--root, or NULL: the
+ * repository the schema lies in, else its own folder; a root the schema
+ * does not lie in stops the search at the schema's own folder).  Returns
+ * an arena path or NULL. */
+char *kn_rulebook_discover(kn_arena *a, const char *schema_path, const char *root);
 
 /* The rulebook a command runs under: the built-in default, then each of
  * paths in order or, when there are none and schema is given, the
  * discovered .knowable-rules.yaml.  Errors go to the sink (marked fatal). */
 kn_rulebook *kn_rulebook_for(kn_arena *a, kn_sink *sink, const char *const *paths, size_t n_paths,
-                             const char *schema);
+                             const char *schema, const char *root);
 
 /* Copies the severities into the sink. */
 void kn_rulebook_apply(const kn_rulebook *rb, kn_sink *sink);

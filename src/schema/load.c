@@ -14,6 +14,7 @@
 #include <pcre2.h>
 
 #include "../util/names.h"
+#include "../util/path.h"
 #include "../util/text.h"
 #include "shape.h"
 
@@ -965,6 +966,15 @@ static bool prefix_leaves_root(ld *l, const char *joined)
 
 static void load_file(ld *l, const char *real, const char *display, bool main_file, kn_node *via);
 
+/* The printed path of an included file: tidied ("teams/a/../shared/r.yaml"
+ * -> "teams/shared/r.yaml") when the tidy spelling names the same file. */
+static const char *display_of(ld *l, const char *joined, const char *real)
+{
+    char *tidy = kn_path_tidy(l->a, joined);
+    char *tidy_real = strcmp(tidy, joined) == 0 ? NULL : real_path(l, tidy);
+    return tidy_real && strcmp(tidy_real, real) == 0 ? tidy : joined;
+}
+
 static void refuse(ld *l, kn_node *at, const char *fmt, const char *path, const char *extra)
 {
     kn_diag *d = err(l, KN_R_INCLUDE_REFUSED, at, "include '%s' is refused: %s", esc(l, path), fmt);
@@ -992,9 +1002,13 @@ static void load_includes(ld *l, const file_ctx *fc, kn_node *list)
         if (!real || !inside_root(l, real)) {
             refuse(l, item, "it leaves the root folder", path,
                    l->opt->root ? kn_printf(l->a, "the root is '%s' (--root)", esc(l, l->opt->root))
-                                : kn_printf(l->a, "the root is the folder of '%s', the schema named on the command "
-                                                  "line; set --root to allow a wider folder",
-                                            esc(l, l->s->path)));
+                   : kn_path_is_project(l->a, l->root_real)
+                       ? kn_printf(l->a, "the root is the repository '%s' lies in (the nearest folder upwards that "
+                                         "holds .git); set --root to allow a wider folder",
+                                   esc(l, l->s->path))
+                       : kn_printf(l->a, "the root is the folder of '%s' (no folder above it holds .git); set "
+                                         "--root to allow a wider folder",
+                                   esc(l, l->s->path)));
             continue;
         }
         /* A folder, a FIFO or a device would fail or block when read. */
@@ -1027,7 +1041,7 @@ static void load_includes(ld *l, const file_ctx *fc, kn_node *list)
             refuse(l, item, "too many nested or included files", path, NULL);
             continue;
         }
-        load_file(l, real, join_path(l, dir_of(l, fc->display), path), false, item);
+        load_file(l, real, display_of(l, join_path(l, dir_of(l, fc->display), path), real), false, item);
     }
 }
 
@@ -1688,8 +1702,10 @@ kn_schema *kn_schema_load(kn_arena *a, kn_sink *sink, const char *path, const kn
         kn_sink_mark_fatal(sink);
         return NULL;
     }
-    const char *root = opt->root ? opt->root : dir_of(&l, real);
-    l.root_real = real_path(&l, root);
+    /* The root (SPEC §9): --root, else the repository the schema lies in,
+     * else its own folder. */
+    const char *root = opt->root ? opt->root : kn_path_default_root(a, path);
+    l.root_real = root ? real_path(&l, root) : NULL;
     if (!l.root_real) {
         kn_pos p = {path, 0, 0, 0};
         kn_diag_push(sink, KN_R_INCLUDE_REFUSED, &p, NULL, "the root folder '%s' does not exist", esc(&l, root));

@@ -1,7 +1,13 @@
 /* output.c - files the tool writes (-o, baselines, pictures, registers):
  * written to a temporary file in the same folder and renamed into place,
  * so a reader never sees half a file; a path that names an input is
- * refused, so the tool never writes over a schema or a data file. */
+ * refused, so the tool never writes over a schema or a data file.
+ *
+ * Only a regular file (or a new one) is replaced by renaming.  A symbolic
+ * link is followed and the file it names is replaced, so the link stays;
+ * anything that is not a regular file (a device such as /dev/null or
+ * /dev/stdout, a FIFO) is written through, never renamed over: as root
+ * in a CI container, -o /dev/null must not delete /dev/null. */
 #include <knowable/knowable.h>
 
 #include <errno.h>
@@ -13,8 +19,8 @@
 #include "text.h"
 
 struct kn_output {
-    char *path;
-    char *tmp;
+    char *path; /* where the file goes (a symbolic link resolved) */
+    char *tmp;  /* the temporary file, or NULL when writing through */
     FILE *f;
 };
 
@@ -34,6 +40,15 @@ static void say(FILE *err, const char *path, const char *why)
     fprintf(err, "': %s\n", why);
 }
 
+static void free_output(kn_output *o)
+{
+    if (o) {
+        free(o->path);
+        free(o->tmp);
+        free(o);
+    }
+}
+
 kn_output *kn_output_open(const char *path, const char *const *inputs, size_t n_inputs, FILE *err)
 {
     for (size_t i = 0; i < n_inputs; i++) {
@@ -47,38 +62,66 @@ kn_output *kn_output_open(const char *path, const char *const *inputs, size_t n_
         say(err, path, "out of memory");
         return NULL;
     }
-    size_t len = strlen(path);
-    o->path = malloc(len + 1);
-    o->tmp = malloc(len + 16);
-    if (!o->path || !o->tmp) {
-        free(o->path);
-        free(o->tmp);
-        free(o);
+    struct stat lst, st;
+    bool exists = lstat(path, &lst) == 0;
+    if (exists && S_ISLNK(lst.st_mode)) {
+        /* Follow the link: the file it names is replaced, the link stays. */
+        o->path = realpath(path, NULL);
+        if (!o->path) {
+            say(err, path, errno == ENOENT ? "it is a symbolic link to a file that does not exist" : strerror(errno));
+            free_output(o);
+            return NULL;
+        }
+        exists = stat(o->path, &st) == 0;
+    } else {
+        o->path = strdup(path);
+        st = lst;
+    }
+    if (!o->path) {
         say(err, path, "out of memory");
+        free_output(o);
         return NULL;
     }
-    memcpy(o->path, path, len + 1);
-    snprintf(o->tmp, len + 16, "%s.tmp-XXXXXX", path);
+    if (exists && S_ISDIR(st.st_mode)) {
+        say(err, path, "it is a folder");
+        free_output(o);
+        return NULL;
+    }
+    if (exists && !S_ISREG(st.st_mode)) {
+        /* A device or a FIFO: write through, never rename over it. */
+        o->f = fopen(o->path, "w");
+        if (!o->f) {
+            say(err, path, strerror(errno));
+            free_output(o);
+            return NULL;
+        }
+        return o;
+    }
+    size_t len = strlen(o->path);
+    o->tmp = malloc(len + 16);
+    if (!o->tmp) {
+        say(err, path, "out of memory");
+        free_output(o);
+        return NULL;
+    }
+    snprintf(o->tmp, len + 16, "%s.tmp-XXXXXX", o->path);
     int fd = mkstemp(o->tmp);
     if (fd < 0) {
         say(err, path, strerror(errno));
-        free(o->path);
-        free(o->tmp);
-        free(o);
+        free_output(o);
         return NULL;
     }
-    /* mkstemp makes the file 0600; a written report is an ordinary file. */
+    /* mkstemp makes the file 0600; a written report is an ordinary file
+     * (a replaced file keeps its permissions). */
     mode_t mask = umask(0);
     umask(mask);
-    fchmod(fd, 0666 & ~mask);
+    fchmod(fd, exists ? (st.st_mode & 07777) : (0666 & ~mask));
     o->f = fdopen(fd, "w");
     if (!o->f) {
         say(err, path, strerror(errno));
         close(fd);
         unlink(o->tmp);
-        free(o->path);
-        free(o->tmp);
-        free(o);
+        free_output(o);
         return NULL;
     }
     return o;
@@ -102,15 +145,15 @@ bool kn_output_close(kn_output *o, bool ok, FILE *err)
         say(err, o->path, strerror(errno));
         good = false;
     }
-    if (good && rename(o->tmp, o->path) != 0) {
-        say(err, o->path, strerror(errno));
-        good = false;
+    if (o->tmp) {
+        if (good && rename(o->tmp, o->path) != 0) {
+            say(err, o->path, strerror(errno));
+            good = false;
+        }
+        if (!good) {
+            unlink(o->tmp);
+        }
     }
-    if (!good) {
-        unlink(o->tmp);
-    }
-    free(o->path);
-    free(o->tmp);
-    free(o);
+    free_output(o);
     return good;
 }

@@ -332,22 +332,45 @@ static void discovery_walks_up_and_stops_at_git(void **state)
     fx *f = *state;
     put(f, "repo/.knowable-rules.yaml", "knowable_rulebook: 1\n");
     char *schema = put(f, "repo/models/loans/loans.knowable.yaml", "knowable: 1\n");
-    char *found = kn_rulebook_discover(f->a, schema);
+    char *root = kn_printf(f->a, "%s/repo", f->dir);
+    char *found = kn_rulebook_discover(f->a, schema, root);
     assert_non_null(found);
-    assert_string_equal(found, kn_printf(f->a, "%s/repo/models/loans/../../.knowable-rules.yaml", f->dir));
+    /* Printed tidy: "loans/../../" folded away. */
+    assert_string_equal(found, kn_printf(f->a, "%s/repo/.knowable-rules.yaml", f->dir));
     struct stat st;
     assert_int_equal(stat(found, &st), 0);
 
     /* A nearer one wins. */
     put(f, "repo/models/.knowable-rules.yaml", "knowable_rulebook: 1\n");
-    assert_string_equal(kn_rulebook_discover(f->a, schema),
-                        kn_printf(f->a, "%s/repo/models/loans/../.knowable-rules.yaml", f->dir));
+    assert_string_equal(kn_rulebook_discover(f->a, schema, root),
+                        kn_printf(f->a, "%s/repo/models/.knowable-rules.yaml", f->dir));
 
     /* A folder holding .git ends the search before the file above it. */
     put(f, "outer/.knowable-rules.yaml", "knowable_rulebook: 1\n");
     put(f, "outer/proj/.git/HEAD", "ref: refs/heads/main\n");
     char *other = put(f, "outer/proj/x.knowable.yaml", "knowable: 1\n");
-    assert_null(kn_rulebook_discover(f->a, other));
+    assert_null(kn_rulebook_discover(f->a, other, NULL));
+    assert_null(kn_rulebook_discover(f->a, other, f->dir));
+}
+
+/* Without .git the search stops at the root: the schema's own folder by
+ * default, so a rulebook planted two folders up is never read. */
+static void discovery_stops_at_the_root(void **state)
+{
+    fx *f = *state;
+    put(f, "planted/.knowable-rules.yaml", "knowable_rulebook: 1\n");
+    char *schema = put(f, "planted/team/models/x.knowable.yaml", "knowable: 1\n");
+    assert_null(kn_rulebook_discover(f->a, schema, NULL));
+    assert_null(kn_rulebook_discover(f->a, schema, kn_printf(f->a, "%s/planted/team", f->dir)));
+    /* A root the schema does not lie in is no root for it. */
+    assert_null(kn_rulebook_discover(f->a, schema, kn_printf(f->a, "%s/elsewhere", f->dir)));
+    /* --root at the rulebook's folder lets the search reach it. */
+    assert_string_equal(kn_rulebook_discover(f->a, schema, kn_printf(f->a, "%s/planted", f->dir)),
+                        kn_printf(f->a, "%s/planted/.knowable-rules.yaml", f->dir));
+    /* In the schema's own folder it is found without a root. */
+    put(f, "planted/team/models/.knowable-rules.yaml", "knowable_rulebook: 1\n");
+    assert_string_equal(kn_rulebook_discover(f->a, schema, NULL),
+                        kn_printf(f->a, "%s/planted/team/models/.knowable-rules.yaml", f->dir));
 }
 
 static void discovery_from_a_bare_file_name(void **state)
@@ -359,7 +382,7 @@ static void discovery_from_a_bare_file_name(void **state)
     char cwd[4096];
     assert_non_null(getcwd(cwd, sizeof cwd));
     assert_int_equal(chdir(kn_printf(f->a, "%s/w", f->dir)), 0);
-    char *found = kn_rulebook_discover(f->a, "s.knowable.yaml");
+    char *found = kn_rulebook_discover(f->a, "s.knowable.yaml", NULL);
     assert_int_equal(chdir(cwd), 0);
     assert_non_null(found);
     assert_string_equal(found, ".knowable-rules.yaml");
@@ -383,6 +406,7 @@ int main(void)
         cmocka_unit_test_setup_teardown(thresholds_and_flags_are_checked, setup, teardown),
         cmocka_unit_test_setup_teardown(missing_version_and_duplicate_keys_are_fatal, setup, teardown),
         cmocka_unit_test_setup_teardown(missing_file_is_fatal, setup, teardown),
+        cmocka_unit_test_setup_teardown(discovery_stops_at_the_root, setup, teardown),
         cmocka_unit_test_setup_teardown(discovery_walks_up_and_stops_at_git, setup, teardown),
         cmocka_unit_test_setup_teardown(discovery_from_a_bare_file_name, setup, teardown),
     };
