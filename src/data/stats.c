@@ -123,6 +123,14 @@ static uint64_t order_key(double v)
 #define RADIX_SIZE (1u << RADIX_BITS)
 #define RADIX_PASSES 6 /* 6 * 11 >= 64 */
 
+#define RADIX_MIN 4096 /* fewer scores are sorted with qsort */
+
+static int by_key(const void *pa, const void *pb)
+{
+    uint64_t a = ((const scored *)pa)->key, b = ((const scored *)pb)->key;
+    return (a > b) - (a < b);
+}
+
 /* LSD radix sort by key, 11-bit digits; passes where every key has the
  * same digit are skipped.  Returns whichever buffer holds the result. */
 static scored *radix_sort(scored *v, scored *tmp, size_t n, size_t (*count)[RADIX_SIZE])
@@ -172,7 +180,9 @@ bool kn_stats_auc(kn_arena *a, const double *score, const bool *positive, size_t
 {
     memset(out, 0, sizeof *out);
     out->auc = out->separation = 0.5;
-    const size_t counts_size = RADIX_PASSES * RADIX_SIZE * sizeof(size_t);
+    /* Small inputs are sorted by comparison: the radix sort's counts
+     * (96 KiB) would cost more than the sort on a wide file of few rows. */
+    const size_t counts_size = n > RADIX_MIN ? RADIX_PASSES * RADIX_SIZE * sizeof(size_t) : 0;
     if (n > (SIZE_MAX - counts_size) / (2 * sizeof(scored))) {
         kn_arena_oom(a);
     }
@@ -199,7 +209,12 @@ bool kn_stats_auc(kn_arena *a, const double *score, const bool *positive, size_t
         kn_defer_run(a, d);
         return false;
     }
-    const scored *v = radix_sort(buf, buf + n, m, (size_t(*)[RADIX_SIZE])(void *)(buf + 2 * n));
+    const scored *v = buf;
+    if (counts_size) {
+        v = radix_sort(buf, buf + n, m, (size_t(*)[RADIX_SIZE])(void *)(buf + 2 * n));
+    } else {
+        qsort(buf, m, sizeof *buf, by_key);
+    }
     /* twice U, exact in integers */
     uint64_t two_u = 0, neg_below = 0;
     for (size_t i = 0; i < m;) {

@@ -23,7 +23,7 @@ enum { EXAMPLE_MAX = 40 };
  * with many columns costs little. */
 #define BLOCK_BITS 14
 #define BLOCK_ROWS ((size_t)1 << BLOCK_BITS)
-#define FIRST_ROWS ((size_t)1024)
+#define FIRST_ROWS ((size_t)64)
 
 typedef struct cells {
     unsigned char **blocks;

@@ -17,7 +17,7 @@
  *   sample: N * (4 + 8 [numeric target] + 4 per number, category or
  *           boolean feature + 8 per timestamp/date feature + 8 per untyped
  *           feature + 4 per identifier segment + 1/8 per feature),
- *           in blocks of 16,384 rows (the first grows from 1,024 rows);
+ *           in blocks of 16,384 rows (the first grows from 64 rows);
  *   dictionaries: at most 10,000 values and 1 MiB of text per column
  *           (50 values per identifier segment), about 60 bytes a value;
  *   exact tallies: at most 64 bytes per distinct feature row with a

@@ -224,6 +224,46 @@ case_did_you_mean() {
     [ "$n" = 5000 ] || fail "many: $n unknown references reported, expected 5000"
 }
 
+# An endless first line (issue 14): the reader refuses the header at its
+# first problem instead of scanning to a line end that never comes.
+case_data_endless_header() {
+    printf '%s\n' 'knowable: 1' 'dataset: d' 'prediction: {moment: x, target: t}' 'events: {x: {}, y: {after: x}}' \
+        'columns:' '  t: {role: target, known: y, type: boolean}' >d.knowable.yaml
+    run zero check --data /dev/zero d.knowable.yaml
+    expect_rc 1
+    expect_grep '^/dev/zero:1:1: error: NUL byte in field 1.*\[csv-malformed\]' zero.out "no csv-malformed at 1:1"
+    run init init /dev/zero
+    expect_rc 2
+    expect_grep 'NUL byte' init.err "init does not name the NUL byte"
+    # a first line of 20 MB without a line break: refused at the 1 MiB field cap
+    awk 'BEGIN { s = "aaaaaaaaaaaaaaaaaaaaaaaaaaaaaaaaaaaaaaaaaaaaaaaaaa"; for (i = 0; i < 400000; i++) printf "%s", s }' >long.csv
+    run long check --data long.csv d.knowable.yaml
+    expect_rc 1
+    expect_grep 'longer than 1048576 bytes' long.out "no field-too-long on the header"
+}
+
+# 99,999 declared columns, all in the data (issue 14: 17.6 s, header
+# matching quadratic in the columns, a full block of the sample per column),
+# and 20,000 undeclared names against 20,000 declared ones ("did you mean"
+# compared every name with every name).
+case_data_wide_header() {
+    awk 'BEGIN { print "knowable: 1\ndataset: d\nprediction: {moment: x, target: t}\nevents: {x: {}, y: {after: x}}\ncolumns:\n  t: {role: target, known: y, type: boolean}";
+                 for (i = 0; i < 99999; i++) printf "  c%d: {known: x, type: number}\n", i }' >w.knowable.yaml
+    awk 'BEGIN { printf "t"; for (i = 0; i < 99999; i++) printf ",c%d", i; print "";
+                 for (r = 0; r < 20; r++) { printf "%s", (r % 2 ? "true" : "false"); for (i = 0; i < 99999; i++) printf ",%d", (i * r) % 97; print "" } }' >w.csv
+    run wide check --fail-on never --data w.csv w.knowable.yaml
+    expect_rc 0
+    grep -q 'csv-malformed\|column-not-in' wide.out && fail "wide: the header was not matched whole"
+    expect_grep 'in 1 schema' wide.out "wide: no summary"
+    awk 'BEGIN { print "knowable: 1\ndataset: d\nprediction: {moment: x, target: t}\nevents: {x: {}, y: {after: x}}\ncolumns:\n  t: {role: target, known: y, type: boolean}";
+                 for (i = 0; i < 20000; i++) printf "  declared_column_number_%d: {known: x, type: number}\n", i }' >u.knowable.yaml
+    awk 'BEGIN { printf "t"; for (i = 0; i < 20000; i++) printf ",data_column_name_%d", i; print ""; printf "true"; for (i = 0; i < 20000; i++) printf ","; print "" }' >u.csv
+    run unknown check --fail-on never --data u.csv u.knowable.yaml
+    expect_rc 0
+    n=$(grep -c 'column-not-in-schema' unknown.out)
+    [ "$n" = 20000 ] || fail "unknown: $n column-not-in-schema findings, expected 20000"
+}
+
 fn=case_$(echo "$case" | tr - _)
 command -v "$fn" >/dev/null 2>&1 || { echo "no case '$case'"; exit 1; }
 "$fn"
