@@ -34,10 +34,11 @@ typedef enum kn_status {
 } kn_status;
 
 typedef enum kn_format {
-    KN_FORMAT_TEXT,
-    KN_FORMAT_JSON,
-    KN_FORMAT_SARIF,
-    KN_FORMAT_MARKDOWN, /* `sources` only */
+    KN_FORMAT_DEFAULT,  /* the command's own: text for check, markdown for sources */
+    KN_FORMAT_TEXT,     /* check */
+    KN_FORMAT_JSON,     /* check, sources */
+    KN_FORMAT_SARIF,    /* check */
+    KN_FORMAT_MARKDOWN, /* sources */
 } kn_format;
 
 typedef enum kn_fail_on {
@@ -62,12 +63,17 @@ typedef struct kn_options {
     const char *root;           /* --root, or NULL */
     const char *today;          /* YYYY-MM-DD for waiver expiry; NULL: the clock
                                    (or the KNOWABLE_TODAY environment variable) */
+    const char *output;         /* -o: the report goes to this file, written to a
+                                   temporary file and renamed into place, never
+                                   over a file the run read; NULL: to out */
+    const char *svg;            /* timeline --svg FILE, written the same way */
+    bool force;                 /* init -o may replace an existing file */
     bool show_waived;
     bool color;
     bool quiet; /* -q: diagnostics only, no notes and no summary line */
 } kn_options;
 
-/* Fills defaults: text, fail on error, no colour. */
+/* Fills defaults: the command's own format, fail on error, no colour. */
 void kn_options_init(kn_options *o);
 
 /* `knowable check`: loads the rulebook(s) and each schema, runs every
@@ -82,32 +88,39 @@ kn_status kn_check(const kn_options *o, const char *const *schemas, size_t n,
  * after writing a suggestion to err. */
 kn_status kn_explain(const char *rule, FILE *out, FILE *err);
 
-/* `knowable rules`: every rule with its effective severity. */
-kn_status kn_rules(const kn_options *o, FILE *out, FILE *err);
+/* `knowable rules [SCHEMA]`: every rule with its effective severity under
+ * the rulebook in force for schema (NULL: --rulebook, else the built-in
+ * default), and which file set each severity. */
+kn_status kn_rules(const kn_options *o, const char *schema, FILE *out, FILE *err);
 
 /* `knowable sources`: the register of sources (markdown or json). */
 kn_status kn_sources(const kn_options *o, const char *const *schemas, size_t n,
                      FILE *out, FILE *err);
 
-/* `knowable timeline`: text to out; an SVG picture to svg when non-NULL. */
-kn_status kn_timeline_report(const kn_options *o, const char *schema, FILE *out,
-                      FILE *svg, FILE *err);
+/* `knowable timeline`: text to out (or o->output); the SVG picture to the
+ * file o->svg when it is set. */
+kn_status kn_timeline_report(const kn_options *o, const char *schema, FILE *out, FILE *err);
 
-/* `knowable init`: a draft schema from a CSV sample. */
+/* `knowable init`: a draft schema from a CSV sample.  With o->output, an
+ * existing file is replaced only with o->force. */
 kn_status kn_init(const kn_options *o, const char *csv, FILE *out, FILE *err);
 
-/* `knowable json-schema`: a JSON Schema (draft-07) of the schema format. */
-kn_status kn_json_schema(FILE *out, FILE *err);
+/* `knowable json-schema`: a JSON Schema (draft-07) of the schema format
+ * (to o->output when set). */
+kn_status kn_json_schema(const kn_options *o, FILE *out, FILE *err);
 
 /* Output files are written to a temporary file in the same folder and
- * renamed into place; a path naming one of the inputs is refused.  A
- * symbolic link is followed (the link stays); a device or a FIFO is
- * written through, never renamed over.
+ * renamed into place; a path naming one of the inputs is refused, when the
+ * file is opened and again when it is closed (kn_output_refuse adds the
+ * files a run read meanwhile).  A symbolic link is followed (the link
+ * stays); a device or a FIFO is written through, never renamed over.
  * kn_output_open returns NULL (and writes why to err) on failure. */
 typedef struct kn_output kn_output;
 kn_output *kn_output_open(const char *path, const char *const *inputs,
                           size_t n_inputs, FILE *err);
 FILE *kn_output_file(kn_output *o);
+/* Adds inputs that the file may not replace (borrowed until close). */
+void kn_output_refuse(kn_output *o, const char *const *inputs, size_t n_inputs);
 /* Flushes, closes and renames into place when ok; otherwise removes the
  * temporary file.  Frees o.  Returns false (and writes why) on failure. */
 bool kn_output_close(kn_output *o, bool ok, FILE *err);

@@ -35,9 +35,10 @@ void kn_check_identity(kn_ctx *c, const kn_schema *s, const kn_timeline *t);
  * entity-straddles-split. */
 void kn_check_preparation(kn_ctx *c, const kn_schema *s, const kn_timeline *t);
 
-/* waivers.c: hides waived diagnostics (after kn_sink_finish) and reports
- * waiver-without-reason, waiver-expired, waiver-unused. */
-void kn_check_waivers(kn_ctx *c, kn_schema *s);
+/* waivers.c: declares the schema's waivers to the sink, whose finishing
+ * pass applies them and reports waiver-without-reason, waiver-expired and
+ * waiver-unused. */
+void kn_check_waivers(kn_ctx *c, const kn_schema *s);
 
 /* data.c: `check --data` - the schema against one CSV file (SPEC §4.7):
  * column-not-in-schema, column-not-in-data, value-mismatch, csv-malformed,

@@ -50,7 +50,11 @@ static const char check_help[] =
     "exit status: 0 nothing at or above --fail-on, 1 findings, 2 the check could not be done\n";
 
 static const char explain_help[] = "usage: knowable explain RULE\n\nWhat RULE finds, why it matters, an example and how to fix it.\n";
-static const char rules_help[] = "usage: knowable rules [--rulebook FILE]...\n\nEvery rule with its effective severity.\n";
+static const char rules_help[] =
+    "usage: knowable rules [--rulebook FILE]... [SCHEMA]\n\n"
+    "Every rule with its effective severity: under the rulebooks named, else under the\n"
+    "rulebook in force for SCHEMA (the nearest .knowable-rules.yaml), else the built-in\n"
+    "default; each severity a rulebook set says which file set it.\n";
 static const char sources_help[] =
     "usage: knowable sources SCHEMA... [--format markdown|json] [-o FILE] [--root DIR]\n\n"
     "The register of feature sources: external sources first, with their provenance,\n"
@@ -60,7 +64,7 @@ static const char timeline_help[] =
     "Each event's range relative to the moment, then each column's availability and verdict.\n"
     "--svg FILE also draws the picture.\n";
 static const char init_help[] =
-    "usage: knowable init DATA.csv [-o FILE] [--max-rows N]\n\n"
+    "usage: knowable init DATA.csv [-o FILE [--force]] [--max-rows N]\n\n"
     "A draft schema from a CSV sample's header and values (the first N rows, default\n"
     "10,000), with placeholders to fill in.\n";
 static const char json_schema_help[] = "usage: knowable json-schema [-o FILE]\n\nA JSON Schema (draft-07) of the schema file format.\n";
@@ -131,6 +135,8 @@ static int parse(int argc, char **argv, int first, args *ar)
             ar->help = true;
         } else if (strcmp(a, "-q") == 0 || strcmp(a, "--quiet") == 0) {
             ar->opt.quiet = true;
+        } else if (strcmp(a, "--force") == 0) {
+            ar->opt.force = true;
         } else if (strcmp(a, "--show-waived") == 0) {
             ar->opt.show_waived = true;
         } else if (is_opt(a, "--data")) {
@@ -239,34 +245,14 @@ static int parse(int argc, char **argv, int first, args *ar)
     return KN_EXIT_OK;
 }
 
-/* Runs fn writing to -o FILE (atomically) or to standard output. */
+/* Runs fn: the library writes -o FILE itself (atomically, and never over
+ * a file the run read), else standard output. */
 typedef kn_status (*writer_fn)(args *ar, FILE *out);
 
 static kn_status with_output(args *ar, writer_fn fn)
 {
-    if (!ar->output) {
-        return fn(ar, stdout);
-    }
-    const char *inputs[MAX_SCHEMAS + KN_MAX_RULEBOOKS + 4];
-    size_t n = 0;
-    for (size_t i = 0; i < ar->n_positional; i++) {
-        inputs[n++] = ar->positional[i];
-    }
-    for (size_t i = 0; i < ar->opt.n_rulebooks; i++) {
-        inputs[n++] = ar->opt.rulebooks[i];
-    }
-    inputs[n++] = ar->opt.data;
-    inputs[n++] = ar->opt.baseline;
-    inputs[n++] = ar->svg;
-    kn_output *o = kn_output_open(ar->output, inputs, n, stderr);
-    if (!o) {
-        return KN_EXIT_FAILED;
-    }
-    kn_status st = fn(ar, kn_output_file(o));
-    if (!kn_output_close(o, st != KN_EXIT_FAILED, stderr)) {
-        return KN_EXIT_FAILED;
-    }
-    return st;
+    ar->opt.output = ar->output;
+    return fn(ar, stdout);
 }
 
 static kn_status run_check(args *ar, FILE *out)
@@ -286,25 +272,13 @@ static kn_status run_init(args *ar, FILE *out)
 
 static kn_status run_timeline(args *ar, FILE *out)
 {
-    if (!ar->svg) {
-        return kn_timeline_report(&ar->opt, ar->positional[0], out, NULL, stderr);
-    }
-    const char *inputs[2] = {ar->positional[0], ar->output};
-    kn_output *svg = kn_output_open(ar->svg, inputs, 2, stderr);
-    if (!svg) {
-        return KN_EXIT_FAILED;
-    }
-    kn_status st = kn_timeline_report(&ar->opt, ar->positional[0], out, kn_output_file(svg), stderr);
-    if (!kn_output_close(svg, st != KN_EXIT_FAILED, stderr)) {
-        return KN_EXIT_FAILED;
-    }
-    return st;
+    ar->opt.svg = ar->svg;
+    return kn_timeline_report(&ar->opt, ar->positional[0], out, stderr);
 }
 
 static kn_status run_json_schema(args *ar, FILE *out)
 {
-    (void)ar;
-    return kn_json_schema(out, stderr);
+    return kn_json_schema(&ar->opt, out, stderr);
 }
 
 /* The command closest to a mistyped one (one edit or a shared prefix of
@@ -413,14 +387,14 @@ static int dispatch(int argc, char **argv)
         return kn_explain(ar.positional[0], stdout, stderr);
     }
     if (strcmp(cmd, "rules") == 0) {
-        return kn_rules(&ar.opt, stdout, stderr);
+        if (ar.n_positional > 1) {
+            return bad("%s takes at most one schema file", "rules");
+        }
+        return kn_rules(&ar.opt, ar.n_positional ? ar.positional[0] : NULL, stdout, stderr);
     }
     if (strcmp(cmd, "sources") == 0) {
         if (!ar.n_positional) {
             return bad("%s needs at least one schema file", "sources");
-        }
-        if (ar.opt.format == KN_FORMAT_TEXT) {
-            ar.opt.format = KN_FORMAT_MARKDOWN;
         }
         return with_output(&ar, run_sources);
     }

@@ -6,6 +6,7 @@
 
 #include <stdio.h>
 
+#include "../rulebook/rulebook.h"
 #include "../schema/schema.h"
 #include "../time/timeline.h"
 
@@ -25,5 +26,17 @@ void kn_timeline_write_text(FILE *out, const kn_schema *s, const kn_timeline *t)
  * says why nothing is placed.  Scratch memory comes from t's arena.  Write
  * errors are left in out's error indicator. */
 void kn_timeline_write_svg(FILE *out, const kn_schema *s, const kn_timeline *t);
+
+/* `knowable sources`: the register of the sources of n schemas (n >= 1),
+ * each read under its own rulebook (the register requires the provenance
+ * fields any of them requires), as Markdown or JSON.  Scratch memory in a. */
+void kn_sources_write(FILE *out, kn_arena *a, kn_schema *const *schemas, const kn_rulebook *const *rulebooks,
+                      size_t n, bool json);
+
+/* `knowable init`: a draft schema from the CSV file at csv (the first
+ * max_rows rows, 0: the default), naming identifiers with id_names (a
+ * kn_regex *, may be NULL).  Returns false after pushing csv-malformed
+ * (and marking the sink fatal) when the file cannot be read as CSV. */
+bool kn_init_write(FILE *out, kn_sink *sink, kn_arena *a, const char *csv, long long max_rows, void *id_names);
 
 #endif

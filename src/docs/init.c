@@ -12,7 +12,6 @@
  *
  * Header names the schema cannot hold (empty, repeated, or longer than a
  * YAML scalar may be) are written as comments that say why. */
-#include "../entry.h"
 #include <knowable/knowable.h>
 
 #include <errno.h>
@@ -22,8 +21,8 @@
 
 #include "../data/csv.h"
 #include "../data/values.h"
+#include "../docs/docs.h"
 #include "../report/diag.h"
-#include "../report/render.h"
 #include "../rulebook/rulebook.h"
 #include "../util/arena.h"
 #include "../util/names.h"
@@ -464,19 +463,6 @@ static void write_draft(FILE *out, const char *path, colstat *cols, size_t n, ui
 
 /* ---- the command ---------------------------------------------------------- */
 
-static kn_regex *identifier_pattern(kn_arena *a, const kn_options *o, FILE *err)
-{
-    kn_sink *sink = kn_sink_new(a);
-    kn_rulebook *rb = kn_rulebook_for(a, sink, o->rulebooks, o->n_rulebooks, NULL, NULL);
-    if (kn_sink_fatal(sink)) {
-        kn_render_opts ro = {o->color, o->quiet, false, 1};
-        kn_sink_finish(sink);
-        kn_render_text(err, sink, &ro);
-        return NULL;
-    }
-    return rb->identifier_code;
-}
-
 static void close_file(void *p)
 {
     if (p) {
@@ -484,12 +470,9 @@ static void close_file(void *p)
     }
 }
 
-kn_status kn_init(const kn_options *o, const char *csv, FILE *out, FILE *err)
+bool kn_init_write(FILE *out, kn_sink *sink, kn_arena *a, const char *csv, long long max_rows, void *id_names)
 {
-    KN_ENTRY_ARENA(a, err);
-    kn_status status = KN_EXIT_FAILED;
-
-    kn_regex *id_names = identifier_pattern(a, o, err);
+    bool ok = false;
     kn_defer *d = kn_arena_defer(a, close_file, NULL);
     FILE *f = fopen(csv, "rb");
     d->ptr = f;
@@ -497,9 +480,9 @@ kn_status kn_init(const kn_options *o, const char *csv, FILE *out, FILE *err)
     kn_csv_row header, row;
     kn_csv_error e;
     if (!f) {
-        fprintf(err, "knowable: cannot read ");
-        kn_fput_term(err, csv, strlen(csv));
-        fprintf(err, ": %s\n", strerror(errno));
+        kn_pos p = {csv, 0, 0, 0};
+        kn_diag_push(sink, KN_R_CSV_MALFORMED, &p, "", "cannot read the data file: %s", strerror(errno));
+        kn_sink_mark_fatal(sink);
         goto done;
     }
     r = kn_csv_open_file(a, f, NULL);
@@ -529,7 +512,7 @@ kn_status kn_init(const kn_options *o, const char *csv, FILE *out, FILE *err)
         }
     }
 
-    uint64_t limit = o->max_rows > 0 ? (uint64_t)o->max_rows : INIT_ROWS;
+    uint64_t limit = max_rows > 0 ? (uint64_t)max_rows : INIT_ROWS;
     uint64_t rows = 0, bad_rows = 0;
     const char *bad_first = NULL;
     for (;;) {
@@ -559,16 +542,17 @@ kn_status kn_init(const kn_options *o, const char *csv, FILE *out, FILE *err)
         infer(&cols[i], id_names);
     }
     write_draft(out, csv, cols, n, rows, bad_rows, bad_first ? kn_escape_term(a, bad_first, strlen(bad_first)) : "",
-                o->max_rows > 0 && rows >= limit);
-    status = KN_EXIT_OK;
+                max_rows > 0 && rows >= limit);
+    ok = true;
     goto done;
 
-bad_csv:
-    fputs("knowable: ", err);
-    kn_fput_term(err, csv, strlen(csv));
-    fprintf(err, ":%llu:%llu: error: %s\n", (unsigned long long)e.line, (unsigned long long)e.column,
-            kn_csv_error_message(a, &e));
+bad_csv: {
+    /* The same diagnostic `check --data` gives; without a header there is
+     * nothing to draft, so the command cannot be done (exit 2). */
+    kn_pos p = {csv, (uint32_t)e.line, (uint32_t)e.column, 0};
+    kn_diag_push(sink, KN_R_CSV_MALFORMED, &p, "", "%s", kn_csv_error_message(a, &e));
+    kn_sink_mark_fatal(sink);
+}
 done:
-    kn_arena_free(a);
-    return status;
+    return ok;
 }

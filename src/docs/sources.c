@@ -7,14 +7,13 @@
  * as missing), then internal ones, each followed by the columns that come
  * from it, by which key and as of which event.  Markdown or JSON.  Reads the
  * schema model only; pushes no diagnostics of its own. */
-#include "../entry.h"
 #include <knowable/knowable.h>
 
 #include <setjmp.h>
 #include <string.h>
 
 #include "../report/diag.h"
-#include "../report/render.h"
+#include "docs.h"
 #include "../rulebook/rulebook.h"
 #include "../schema/schema.h"
 #include "../time/duration.h"
@@ -681,57 +680,35 @@ static void write_json(FILE *out, reg *r)
 
 /* ---- entry point ---- */
 
-static kn_rulebook *rulebook(kn_arena *a, kn_sink *sink, const kn_options *o, const char *schema)
+void kn_sources_write(FILE *out, kn_arena *a, kn_schema *const *schemas, const kn_rulebook *const *rulebooks,
+                      size_t n, bool json)
 {
-    return kn_rulebook_for(a, sink, o->rulebooks, o->n_rulebooks, schema, o->root);
-}
-
-kn_status kn_sources(const kn_options *o, const char *const *schemas, size_t n, FILE *out, FILE *err)
-{
-    if (o->format != KN_FORMAT_MARKDOWN && o->format != KN_FORMAT_JSON && o->format != KN_FORMAT_TEXT) {
-        fputs("knowable: the sources register is written as markdown or json\n", err);
-        return KN_EXIT_FAILED;
+    /* One set of required fields for the register: those any schema's
+     * rulebook requires, so the result does not depend on their order. */
+    kn_rulebook *rb = kn_alloc(a, sizeof *rb);
+    *rb = *rulebooks[0];
+    for (size_t i = 1; i < n; i++) {
+        for (size_t f = 0; f < KN_SF_COUNT; f++) {
+            rb->require_external[f] = rb->require_external[f] || rulebooks[i]->require_external[f];
+        }
+        if (strcmp(rulebooks[i]->origin, rb->origin) != 0) {
+            rb->origin = "the rulebook of each schema";
+        }
     }
-    KN_ENTRY_ARENA(a, err);
-
-    kn_status status = KN_EXIT_OK;
-    kn_sink *sink = kn_sink_new(a);
-    kn_render_opts ro = {o->color, o->quiet, false, n};
-    kn_rulebook *rb = rulebook(a, sink, o, n ? schemas[0] : NULL);
     reg r = {0};
     r.a = a;
     r.rb = rb;
     r.schemas = kn_alloc_array(a, n ? n : 1, sizeof(kn_schema *));
+    for (size_t i = 0; i < n; i++) {
+        r.schemas[i] = schemas[i];
+    }
     r.n_schemas = n;
     r.by_id = kn_names_new(a);
     r.entries = kn_vec_new(a, sizeof(entry *));
-    bool ok = !kn_sink_fatal(sink);
-    if (ok) {
-        kn_rulebook_apply(rb, sink);
-        kn_load_options lo = {0};
-        lo.root = o->root;
-        kn_yaml_limits_default(&lo.limits);
-        lo.rulebook = rb;
-        for (size_t i = 0; i < n; i++) {
-            r.schemas[i] = kn_schema_load(a, sink, schemas[i], &lo);
-            if (!r.schemas[i] || !r.schemas[i]->shape_ok) {
-                ok = false;
-            }
-        }
-    }
-    if (!ok || kn_sink_fatal(sink)) {
-        kn_sink_finish(sink);
-        kn_render_text(err, sink, &ro);
-        fputs("knowable: the schema has errors (above); fix them before writing its register of sources\n", err);
-        status = KN_EXIT_FAILED;
+    gather(&r);
+    if (json) {
+        write_json(out, &r);
     } else {
-        gather(&r);
-        if (o->format == KN_FORMAT_JSON) {
-            write_json(out, &r);
-        } else {
-            write_markdown(out, &r);
-        }
+        write_markdown(out, &r);
     }
-    kn_arena_free(a);
-    return status;
 }

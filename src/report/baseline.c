@@ -8,7 +8,7 @@
  * being inserted above a finding and columns being reordered.
  *
  * The file is JSON:
- *   {"knowable_baseline": 1, "findings": [{"fingerprint": "16 hex digits",
+ *   {"knowable_baseline": 2, "findings": [{"fingerprint": "16 hex digits",
  *    "rule": ..., "file": ..., "subject": ..., "message": ...}, ...]}
  * The reader below accepts any JSON (RFC 8259) of that shape, ignores keys
  * it does not know, and is bounded in size and nesting depth. */
@@ -38,7 +38,7 @@ bool kn_baseline_write(const kn_sink *s, const char *path, const char *const *in
     size_t n;
     kn_diag **all = kn_sink_diags(s, &n);
     size_t written = 0;
-    fputs("{\n  \"knowable_baseline\": 1,\n  \"findings\": [", f);
+    fputs("{\n  \"knowable_baseline\": 2,\n  \"findings\": [", f);
     for (size_t i = 0; i < n; i++) {
         const kn_diag *d = all[i];
         if (d->waived) {
@@ -301,7 +301,7 @@ static bool read_value(reader *r, slot what, int depth)
                 return fail(r, "no 'findings' list");
             }
             if (ok && !r->has_version) {
-                return fail(r, "no 'knowable_baseline: 1'; is this a knowable baseline?");
+                return fail(r, "no 'knowable_baseline: 2'; is this a knowable baseline?");
             }
             return ok;
         }
@@ -344,7 +344,7 @@ static bool read_value(reader *r, slot what, int depth)
             }
             kn_vec_push(r->fingerprints, &fp);
         } else if (what == S_VERSION) {
-            return fail(r, "'knowable_baseline' must be 1");
+            return fail(r, "'knowable_baseline' must be 2");
         }
         return true;
     }
@@ -361,15 +361,19 @@ static bool read_value(reader *r, slot what, int depth)
         double x;
         ok = read_number(r, &x);
         if (ok && what == S_VERSION) {
-            if (x != 1) {
-                return fail(r, "'knowable_baseline' is not 1; this knowable reads version 1");
+            if (x == 1) {
+                return fail(r, "it was written by an older knowable, whose fingerprints changed with "
+                               "numbers and path spelling; write it again with --write-baseline");
+            }
+            if (x != 2) {
+                return fail(r, "'knowable_baseline' is not 2; this knowable reads version 2");
             }
             r->has_version = true;
             return true;
         }
     }
     if (ok && what == S_VERSION) {
-        return fail(r, "'knowable_baseline' must be 1");
+        return fail(r, "'knowable_baseline' must be 2");
     }
     return ok;
 }
@@ -404,7 +408,7 @@ static char *slurp(kn_arena *a, const char *path, size_t *len, FILE *err)
     return buf;
 }
 
-bool kn_baseline_apply(kn_sink *s, const char *path, FILE *err)
+bool kn_baseline_read(kn_sink *s, const char *path, FILE *err)
 {
     kn_arena *a = kn_sink_arena(s);
     size_t len = 0;
@@ -428,36 +432,11 @@ bool kn_baseline_apply(kn_sink *s, const char *path, FILE *err)
         return false;
     }
     size_t nf = r.fingerprints->len;
-    uint64_t *fps = r.fingerprints->data;
-    if (nf > 1) {
+    uint64_t *fps = kn_alloc_array(a, nf ? nf : 1, sizeof *fps);
+    if (nf) {
+        memcpy(fps, r.fingerprints->data, nf * sizeof *fps);
         qsort(fps, nf, sizeof *fps, cmp_u64);
     }
-    bool *used = kn_alloc_array(a, nf ? nf : 1, sizeof *used);
-    size_t n;
-    kn_diag **all = kn_sink_diags(s, &n);
-    for (size_t i = 0; i < n; i++) {
-        kn_diag *d = all[i];
-        if (d->waived) {
-            continue;
-        }
-        /* Lower bound, then the first unused copy: a fingerprint recorded
-         * twice matches two findings, and a third is new. */
-        size_t lo = 0, hi = nf;
-        while (lo < hi) {
-            size_t mid = lo + (hi - lo) / 2;
-            if (fps[mid] < d->fingerprint) {
-                lo = mid + 1;
-            } else {
-                hi = mid;
-            }
-        }
-        while (lo < nf && fps[lo] == d->fingerprint && used[lo]) {
-            lo++;
-        }
-        if (lo < nf && fps[lo] == d->fingerprint) {
-            used[lo] = true;
-            d->baselined = true;
-        }
-    }
+    kn_sink_baseline(s, fps, nf);
     return true;
 }

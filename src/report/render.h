@@ -5,7 +5,7 @@
 #include <stdbool.h>
 #include <stdio.h>
 
-#include "diag.h"
+#include "diag_impl.h"
 
 typedef struct kn_render_opts {
     bool color;
@@ -30,12 +30,11 @@ void kn_render_json(FILE *out, const kn_sink *s, const kn_render_opts *o);
  * kn_render_json; waived ones shown get a suppression). */
 void kn_render_sarif(FILE *out, const kn_sink *s, const kn_render_opts *o);
 
-/* Marks every diagnostic whose fingerprint the baseline file at path
- * records as baselined (each recorded fingerprint matches as many findings
- * as it was recorded for).  Waived diagnostics are left alone.  Returns
- * false and writes why to err when the file cannot be read or is not a
- * knowable baseline. */
-bool kn_baseline_apply(kn_sink *s, const char *path, FILE *err);
+/* Reads the baseline file at path (before the analysis, so a bad file
+ * stops the run at once) and hands its fingerprints to the sink, which
+ * applies them when it finishes.  Returns false and writes why to err when
+ * the file cannot be read or is not a knowable baseline. */
+bool kn_baseline_read(kn_sink *s, const char *path, FILE *err);
 
 /* Writes every diagnostic that is not waived (baselined or not) to path as a
  * knowable baseline: JSON with each finding's fingerprint, and its rule,

@@ -39,3 +39,8 @@ const char *kn_severity_name(kn_severity s)
     }
     return "off";
 }
+
+bool kn_rule_is_schema(kn_rule r)
+{
+    return strcmp(kn_rule_get(r)->family, "schema") == 0;
+}

@@ -13,6 +13,8 @@
  * own patterns to the default ones. */
 #include "rulebook.h"
 
+#include "../report/yaml_sink.h"
+
 #include <errno.h>
 #include <limits.h>
 #include <stdlib.h>
@@ -172,7 +174,16 @@ static void load_severity(rb_ld *l, const kn_node *v)
             }
             continue;
         }
+        if (kn_rule_is_schema(r) && sev != KN_SEV_ERROR) {
+            /* SPEC §4.1: a broken schema never passes a gate. */
+            fail(l, KN_R_SCHEMA_SHAPE, s,
+                 "'%s' is a schema rule and stays an error: a schema that cannot be read correctly "
+                 "must never pass a gate (waive a finding on its column instead, with a reason)",
+                 id);
+            continue;
+        }
         l->rb->severity[r] = sev;
+        l->rb->severity_from[r] = l->depth > 0 ? l->chain_display[l->depth - 1] : NULL;
     }
 }
 
@@ -368,9 +379,7 @@ static bool load_tree(rb_ld *l, const kn_node *root, const char *path, int depth
 /* The number of diagnostics in the sink so far (before kn_sink_finish). */
 static size_t pushed(const kn_sink *sink)
 {
-    size_t n;
-    (void)kn_sink_diags(sink, &n);
-    return n;
+    return kn_sink_pushed(sink);
 }
 
 /* Reads one rulebook file and everything it extends.  Anything the YAML
@@ -406,7 +415,8 @@ static bool load_file(rb_ld *l, const char *path, const kn_node *from)
     size_t before = pushed(l->sink);
     kn_yaml_limits lim;
     kn_yaml_limits_default(&lim);
-    kn_node *root = kn_yaml_load_file(l->a, l->sink, path, path, &lim);
+    kn_yaml_reporter rep = kn_sink_yaml_reporter(l->sink);
+    kn_node *root = kn_yaml_load_file(l->a, &rep, path, path, &lim);
     if (!root || pushed(l->sink) != before) {
         l->failed = true;
         kn_sink_mark_fatal(l->sink);
@@ -510,7 +520,8 @@ bool kn_rulebook_load_default(kn_rulebook *rb, kn_arena *a, kn_sink *sink)
 {
     kn_yaml_limits lim;
     kn_yaml_limits_default(&lim);
-    kn_node *root = kn_yaml_parse(a, sink, "(built-in rules/default.yaml)", kn_default_rulebook,
+    kn_yaml_reporter rep = kn_sink_yaml_reporter(sink);
+    kn_node *root = kn_yaml_parse(a, &rep, "(built-in rules/default.yaml)", kn_default_rulebook,
                                   kn_default_rulebook_len, &lim);
     if (!root) {
         return false;
@@ -623,7 +634,5 @@ kn_rulebook *kn_rulebook_for(kn_arena *a, kn_sink *sink, const char *const *path
 
 void kn_rulebook_apply(const kn_rulebook *rb, kn_sink *sink)
 {
-    for (size_t i = 0; i < KN_RULE_COUNT; i++) {
-        kn_sink_set_severity(sink, (kn_rule)i, rb->severity[i]);
-    }
+    kn_sink_begin_unit(sink, rb->severity);
 }

@@ -33,6 +33,8 @@ typedef struct kn_thresholds {
 
 typedef struct kn_rulebook {
     kn_severity severity[KN_RULE_COUNT];
+    const char *severity_from[KN_RULE_COUNT]; /* the rulebook file that set it
+                                                 (NULL: the built-in default) */
     bool strict_moment;
     bool require_external[KN_SF_COUNT]; /* require.external_source */
     bool require_feature_known;         /* require.feature contains known */
@@ -70,7 +72,7 @@ char *kn_rulebook_discover(kn_arena *a, const char *schema_path, const char *roo
 kn_rulebook *kn_rulebook_for(kn_arena *a, kn_sink *sink, const char *const *paths, size_t n_paths,
                              const char *schema, const char *root);
 
-/* Copies the severities into the sink. */
+/* Starts the sink's unit of findings judged under this rulebook. */
 void kn_rulebook_apply(const kn_rulebook *rb, kn_sink *sink);
 
 #endif

@@ -13,6 +13,7 @@
 #define PCRE2_CODE_UNIT_WIDTH 8
 #include <pcre2.h>
 
+#include "../report/yaml_sink.h"
 #include "../util/names.h"
 #include "../util/path.h"
 #include "../util/text.h"
@@ -1047,7 +1048,8 @@ static void load_includes(ld *l, const file_ctx *fc, kn_node *list)
 
 static void load_file(ld *l, const char *real, const char *display, bool main_file, kn_node *via)
 {
-    kn_node *root = kn_yaml_load_file(l->a, l->sink, real, display, &l->opt->limits);
+    kn_yaml_reporter rep = kn_sink_yaml_reporter(l->sink);
+    kn_node *root = kn_yaml_load_file(l->a, &rep, real, display, &l->opt->limits);
     if (!root) {
         l->errors = true;
         return;

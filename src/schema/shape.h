@@ -6,6 +6,7 @@
 #define KN_SCHEMA_SHAPE_H
 
 #include <stdbool.h>
+#include <stdio.h>
 #include <stddef.h>
 
 typedef enum kn_value_kind {
@@ -66,4 +67,7 @@ extern const char *const kn_roles[], *const kn_types[], *const kn_kinds[],
     *const kn_histories[], *const kn_anon_methods[], *const kn_steps[], *const kn_fits[],
     *const kn_split_methods[];
 extern const kn_shape kn_shape_source;
+
+/* `knowable json-schema`: the tables as a JSON Schema (draft-07). */
+void kn_json_schema_write(FILE *out);
 #endif

@@ -3,7 +3,7 @@
 
 #include <string.h>
 
-#include "../report/diag.h"
+#include "hash.h"
 
 typedef struct slot {
     const char *name;

@@ -22,6 +22,8 @@ struct kn_output {
     char *path; /* where the file goes (a symbolic link resolved) */
     char *tmp;  /* the temporary file, or NULL when writing through */
     FILE *f;
+    const char *const *refused; /* more inputs, checked at close */
+    size_t n_refused;
 };
 
 static bool same_file(const char *a, const char *b)
@@ -132,6 +134,12 @@ FILE *kn_output_file(kn_output *o)
     return o->f;
 }
 
+void kn_output_refuse(kn_output *o, const char *const *inputs, size_t n_inputs)
+{
+    o->refused = inputs;
+    o->n_refused = n_inputs;
+}
+
 bool kn_output_close(kn_output *o, bool ok, FILE *err)
 {
     bool good = ok;
@@ -144,6 +152,14 @@ bool kn_output_close(kn_output *o, bool ok, FILE *err)
     if (fclose(o->f) != 0 && good) {
         say(err, o->path, strerror(errno));
         good = false;
+    }
+    /* The run may have read files that were unknown when it opened this
+     * one (included registers, a discovered rulebook). */
+    for (size_t i = 0; good && i < o->n_refused; i++) {
+        if (o->refused[i] && (strcmp(o->refused[i], o->path) == 0 || same_file(o->refused[i], o->path))) {
+            say(err, o->path, "the run read it; knowable never writes over an input");
+            good = false;
+        }
     }
     if (o->tmp) {
         if (good && rename(o->tmp, o->path) != 0) {

@@ -50,7 +50,7 @@ typedef struct anchor {
 
 typedef struct loader {
     kn_arena *arena;
-    kn_sink *sink;
+    const kn_yaml_reporter *rep;
     const char *display;
     const char *buf;
     size_t len;
@@ -174,8 +174,7 @@ static void fail(loader *ld, const kn_pos *pos, const char *fmt, ...)
     va_start(ap, fmt);
     char *msg = kn_vprintf(ld->arena, fmt, ap);
     va_end(ap);
-    kn_diag_push(ld->sink, KN_R_YAML_SYNTAX, pos, NULL, "%s", msg);
-    kn_sink_mark_fatal(ld->sink);
+    ld->rep->problem(ld->rep->ctx, KN_YAML_SYNTAX, pos, NULL, msg, NULL, NULL);
     ld->failed = true;
 }
 
@@ -271,10 +270,10 @@ static void check_duplicates(loader *ld, kn_node *map)
         }
         if (first) {
             char *name = kn_escape_term(ld->arena, k->u.scalar.text, k->u.scalar.len);
-            kn_diag *d = kn_diag_push(ld->sink, KN_R_DUPLICATE_KEY, &k->pos, name,
-                                      "key '%s' appears twice in this mapping; "
-                                      "YAML keeps only one of the two values", name);
-            kn_diag_note(ld->sink, d, &first->pos, "'%s' is first given here", name);
+            ld->rep->problem(ld->rep->ctx, KN_YAML_DUPLICATE_KEY, &k->pos, name,
+                             kn_printf(ld->arena, "key '%s' appears twice in this mapping; "
+                                                  "YAML keeps only one of the two values", name),
+                             &first->pos, kn_printf(ld->arena, "'%s' is first given here", name));
         }
     }
 }
@@ -380,18 +379,18 @@ static void parser_error(loader *ld, yaml_parser_t *p)
         pos = mark_pos(ld, p->problem_mark);
     }
     const char *problem = p->problem ? p->problem : error_kind(p->error);
-    kn_diag *d;
+    const char *msg;
     if (p->error == YAML_READER_ERROR && p->problem_value != -1) {
-        d = kn_diag_push(ld->sink, KN_R_YAML_SYNTAX, &pos, NULL, "%s: %s (byte 0x%02x)",
-                         error_kind(p->error), problem, (unsigned)(p->problem_value & 0xff));
+        msg = kn_printf(ld->arena, "%s: %s (byte 0x%02x)", error_kind(p->error), problem,
+                        (unsigned)(p->problem_value & 0xff));
     } else {
-        d = kn_diag_push(ld->sink, KN_R_YAML_SYNTAX, &pos, NULL, "%s: %s", error_kind(p->error), problem);
+        msg = kn_printf(ld->arena, "%s: %s", error_kind(p->error), problem);
     }
+    kn_pos cpos = {0};
     if (p->context) {
-        kn_pos cpos = mark_pos(ld, p->context_mark);
-        kn_diag_note(ld->sink, d, &cpos, "%s", p->context);
+        cpos = mark_pos(ld, p->context_mark);
     }
-    kn_sink_mark_fatal(ld->sink);
+    ld->rep->problem(ld->rep->ctx, KN_YAML_SYNTAX, &pos, NULL, msg, p->context ? &cpos : NULL, p->context);
     ld->failed = true;
 }
 
@@ -406,12 +405,12 @@ static void release_event(void *p)
     yaml_event_delete(p);
 }
 
-kn_node *kn_yaml_parse(kn_arena *a, kn_sink *sink, const char *display,
+kn_node *kn_yaml_parse(kn_arena *a, const kn_yaml_reporter *rep, const char *display,
                        const char *buf, size_t len, const kn_yaml_limits *lim)
 {
     loader ld = {0};
     ld.arena = a;
-    ld.sink = sink;
+    ld.rep = rep;
     ld.display = display;
     ld.buf = buf;
     ld.len = len;
@@ -565,7 +564,7 @@ bool kn_read_file(kn_arena *a, const char *path, size_t max, char **out,
     return true;
 }
 
-kn_node *kn_yaml_load_file(kn_arena *a, kn_sink *sink, const char *path,
+kn_node *kn_yaml_load_file(kn_arena *a, const kn_yaml_reporter *rep, const char *path,
                            const char *display, const kn_yaml_limits *lim)
 {
     char *buf;
@@ -573,18 +572,18 @@ kn_node *kn_yaml_load_file(kn_arena *a, kn_sink *sink, const char *path,
     const char *err;
     if (!kn_read_file(a, path, lim->max_file_bytes, &buf, &len, &err)) {
         kn_pos p = {display, 0, 0, 0};
+        const char *msg;
         if (strcmp(err, "file too large") == 0) {
             p.line = p.col = 1;
-            kn_diag_push(sink, KN_R_YAML_SYNTAX, &p, NULL,
-                         "the file is larger than %zu bytes, the most a schema may hold",
-                         lim->max_file_bytes);
+            msg = kn_printf(a, "the file is larger than %zu bytes, the most a schema may hold",
+                            lim->max_file_bytes);
         } else {
-            kn_diag_push(sink, KN_R_YAML_SYNTAX, &p, NULL, "cannot read the file: %s", err);
+            msg = kn_printf(a, "cannot read the file: %s", err);
         }
-        kn_sink_mark_fatal(sink);
+        rep->problem(rep->ctx, KN_YAML_SYNTAX, &p, NULL, msg, NULL, NULL);
         return NULL;
     }
-    return kn_yaml_parse(a, sink, display, buf, len, lim);
+    return kn_yaml_parse(a, rep, display, buf, len, lim);
 }
 
 bool kn_node_is_null(const kn_node *n)

@@ -11,8 +11,8 @@
 #include <stddef.h>
 #include <stdint.h>
 
-#include "../report/diag.h"
 #include "../util/arena.h"
+#include "../util/pos.h"
 
 typedef enum kn_node_kind {
     KN_NODE_SCALAR,
@@ -59,16 +59,27 @@ typedef struct kn_yaml_limits {
 
 void kn_yaml_limits_default(kn_yaml_limits *l);
 
+/* What the reader finds goes to the caller through this (the reader knows
+ * nothing of diagnostics): a syntax problem (fatal: the parse stops) or a
+ * key given twice in one mapping (the parse goes on).  subject may be NULL;
+ * note_at and note are NULL when there is no second position. */
+typedef enum kn_yaml_problem { KN_YAML_SYNTAX, KN_YAML_DUPLICATE_KEY } kn_yaml_problem;
+typedef struct kn_yaml_reporter {
+    void (*problem)(void *ctx, kn_yaml_problem what, const kn_pos *at, const char *subject,
+                    const char *message, const kn_pos *note_at, const char *note);
+    void *ctx;
+} kn_yaml_reporter;
+
 /* Parses buf (len bytes) as one YAML document.  display is the path printed
  * in diagnostics.  Returns the root node (arena memory), or NULL after
- * pushing yaml-syntax (or duplicate-key, which does not stop loading) into
- * the sink and marking it fatal.  An empty document yields a null scalar. */
-kn_node *kn_yaml_parse(kn_arena *a, kn_sink *sink, const char *display,
+ * reporting a syntax problem (a duplicate key is reported and does not stop
+ * loading).  An empty document yields a null scalar. */
+kn_node *kn_yaml_parse(kn_arena *a, const kn_yaml_reporter *rep, const char *display,
                        const char *buf, size_t len, const kn_yaml_limits *lim);
 
 /* Reads a file (refusing more than lim->max_file_bytes) and parses it.
- * On a read failure pushes a diagnostic at display:0 and returns NULL. */
-kn_node *kn_yaml_load_file(kn_arena *a, kn_sink *sink, const char *path,
+ * On a read failure reports a syntax problem at display:0 and returns NULL. */
+kn_node *kn_yaml_load_file(kn_arena *a, const kn_yaml_reporter *rep, const char *path,
                            const char *display, const kn_yaml_limits *lim);
 
 /* Reads a whole file into arena memory (NUL-terminated).  Returns false and

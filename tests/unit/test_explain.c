@@ -13,7 +13,7 @@
 #include <string.h>
 #include <yaml.h>
 
-#include "../../src/report/diag.h"
+#include "../../src/report/diag_impl.h"
 
 /* The rule ids and families, read from the one table of rules. */
 static const struct {

@@ -16,6 +16,7 @@
 #include <sys/stat.h>
 #include <unistd.h>
 
+#include "../../src/report/diag_impl.h"
 #include "../../src/schema/schema.h"
 
 typedef struct fx {
@@ -84,7 +85,7 @@ static kn_schema *load_with(fx *f, const char *include)
 /* The single include-refused diagnostic's message (fails otherwise). */
 static const char *refusal(fx *f)
 {
-    kn_sink_finish(f->sink);
+    kn_sink_finish(f->sink, NULL);
     size_t n;
     kn_diag **d = kn_sink_diags(f->sink, &n);
     const char *found = NULL;

@@ -16,6 +16,7 @@
 #include <sys/stat.h>
 #include <unistd.h>
 
+#include "../../src/report/diag_impl.h"
 #include "../../src/rulebook/rulebook.h"
 #include "../../src/util/regex.h"
 
@@ -75,7 +76,7 @@ static char *put(fx *f, const char *name, const char *text)
 /* The only diagnostic in the sink (after finish). */
 static kn_diag *only(fx *f)
 {
-    kn_sink_finish(f->sink);
+    kn_sink_finish(f->sink, NULL);
     size_t n;
     kn_diag **all = kn_sink_diags(f->sink, &n);
     assert_int_equal(n, 1);
@@ -169,8 +170,29 @@ static void severity_override_and_off(void **state)
     assert_int_equal(f->rb->severity[rule("unused-source")], KN_SEV_WARNING);
     assert_int_equal(f->rb->severity[rule("after-moment")], KN_SEV_ERROR);
     assert_string_equal(f->rb->origin, p);
+    assert_string_equal(f->rb->severity_from[rule("join-latest-value")], p);
+    assert_null(f->rb->severity_from[rule("after-moment")]);
+    /* The sink judges what is pushed under this rulebook by it. */
     kn_rulebook_apply(f->rb, f->sink);
-    assert_int_equal(kn_sink_severity(f->sink, rule("suspicious-name")), KN_SEV_OFF);
+    size_t before = kn_sink_pushed(f->sink);
+    kn_diag_push(f->sink, (kn_rule)rule("suspicious-name"), NULL, "x", "a suspicious name");
+    kn_diag_push(f->sink, (kn_rule)rule("unused-source"), NULL, "y", "an unused source");
+    assert_int_equal(kn_sink_pushed(f->sink), before + 2);
+    kn_sink_finish(f->sink, NULL);
+    size_t n;
+    kn_diag **all = kn_sink_diags(f->sink, &n);
+    bool unused_seen = false;
+    for (size_t i = 0; i < n; i++) {
+        assert_int_not_equal(all[i]->rule, rule("suspicious-name"));
+        if (all[i]->rule == (kn_rule)rule("unused-source")) {
+            assert_int_equal(all[i]->severity, KN_SEV_WARNING);
+            unused_seen = true;
+        }
+    }
+    assert_true(unused_seen);
+    /* A finished sink takes nothing more. */
+    assert_null(kn_diag_push(f->sink, (kn_rule)rule("unused-source"), NULL, "z", "late"));
+    assert_int_equal(kn_sink_pushed(f->sink), n);
 }
 
 static void later_file_overrides_earlier_and_names_accumulate(void **state)
@@ -282,7 +304,7 @@ static void names_entry_needs_pattern_and_why(void **state)
     fx *f = *state;
     char *p = put(f, "a.yaml", "knowable_rulebook: 1\nnames:\n  - pattern: '^late_'\n    applies_to: title\n");
     assert_false(kn_rulebook_load(f->rb, f->a, f->sink, p));
-    kn_sink_finish(f->sink);
+    kn_sink_finish(f->sink, NULL);
     size_t n;
     kn_diag **all = kn_sink_diags(f->sink, &n);
     assert_int_equal(n, 1);
@@ -297,7 +319,7 @@ static void thresholds_and_flags_are_checked(void **state)
                   "knowable_rulebook: 1\nstrict_moment: maybe\nthresholds: {uncertainty: 1.5, min_group_size: 0}\n"
                   "require: {external_source: [provder]}\n");
     assert_false(kn_rulebook_load(f->rb, f->a, f->sink, p));
-    kn_sink_finish(f->sink);
+    kn_sink_finish(f->sink, NULL);
     size_t n;
     kn_diag **all = kn_sink_diags(f->sink, &n);
     assert_int_equal(n, 4);

@@ -11,6 +11,7 @@
 #include <stdlib.h>
 #include <string.h>
 
+#include "../../src/report/diag_impl.h"
 #include "../../src/schema/schema.h"
 #include "../../src/schema/shape.h"
 

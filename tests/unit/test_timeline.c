@@ -18,6 +18,7 @@
 #include <stdlib.h>
 #include <string.h>
 
+#include "../../src/report/diag_impl.h"
 #include "../../src/checks/checks.h"
 #include "../../src/docs/docs.h"
 #include "../../src/time/timeline.h"
@@ -896,7 +897,7 @@ static void test_inherits_maybe_late_is_a_warning(void **state)
     assert_int_equal(d->severity, KN_SEV_WARNING);
     assert_contains(d->message, "may be available after the moment: between 1h before and 1h after");
     /* the sink re-applies the rulebook's severity at finish; the cap holds */
-    kn_sink_finish(W->sink);
+    kn_sink_finish(W->sink, NULL);
     assert_int_equal(only(KN_R_INHERITS_LATE_INPUT)->severity, KN_SEV_WARNING);
 }
 

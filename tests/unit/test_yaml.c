@@ -12,6 +12,8 @@
 #include <stdlib.h>
 #include <string.h>
 
+#include "../../src/report/diag_impl.h"
+#include "../../src/report/yaml_sink.h"
 #include "../../src/yaml/tree.h"
 
 typedef struct fx {
@@ -42,12 +44,13 @@ static int teardown(void **state)
 
 static kn_node *parse(fx *f, const char *text)
 {
-    return kn_yaml_parse(f->a, f->sink, "t.yaml", text, strlen(text), &f->lim);
+    kn_yaml_reporter rep = kn_sink_yaml_reporter(f->sink);
+    return kn_yaml_parse(f->a, &rep, "t.yaml", text, strlen(text), &f->lim);
 }
 
 static kn_diag *only_diag(fx *f)
 {
-    kn_sink_finish(f->sink);
+    kn_sink_finish(f->sink, NULL);
     size_t n;
     kn_diag **d = kn_sink_diags(f->sink, &n);
     assert_int_equal(n, 1);
@@ -172,7 +175,8 @@ static void nul_and_bad_utf8_are_reported(void **state)
 
     f->sink = kn_sink_new(f->a);
     static const char raw_nul[] = "a: b\nc: d\0e\n";
-    assert_null(kn_yaml_parse(f->a, f->sink, "t.yaml", raw_nul, sizeof raw_nul - 1, &f->lim));
+    kn_yaml_reporter rep = kn_sink_yaml_reporter(f->sink);
+    assert_null(kn_yaml_parse(f->a, &rep, "t.yaml", raw_nul, sizeof raw_nul - 1, &f->lim));
     d = only_diag(f);
     assert_int_equal(d->rule, KN_R_YAML_SYNTAX);
     assert_int_equal(d->pos.line, 2);

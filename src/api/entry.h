@@ -11,7 +11,7 @@
 #include <setjmp.h>
 #include <stdio.h>
 
-#include "util/arena.h"
+#include "../util/arena.h"
 
 #define KN_ENTRY_ARENA(a, err)                                                                                   \
     kn_arena *a = kn_arena_new();                                                                                \
