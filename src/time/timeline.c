@@ -992,23 +992,21 @@ static bool *copy_seen(kn_timeline *t, const scratch *sc)
     return seen;
 }
 
-/* Every constraint as declared, whatever its state, as an undirected tie:
- * the events a broken or contradictory event could have bounded. */
-static void full_reach(const kn_timeline *t, bool *reach, size_t *queue)
+/* Reachability from the moment (forward: paths that bound an event from
+ * above; reverse: from below) over every constraint as declared, whatever
+ * its state: what the declarations tie to the moment before anything is
+ * set aside.  A constraint whose lag could not be read ties both ways. */
+static void full_reach(const kn_timeline *t, bool reverse, bool *reach, size_t *queue)
 {
     const kn_schema *s = t->schema;
     size_t n_cons = 0;
     for (size_t i = 0; i < s->n_events; i++) {
         n_cons += s->events[i]->n_cons;
     }
-    /* Adjacency in CSR form, both directions. */
     size_t *off = kn_alloc_array(t->arena, t->n_ev + 2, sizeof *off);
     size_t *adj = kn_alloc_array(t->arena, sat_mul(n_cons, 2) + 1, sizeof *adj);
+    size_t *fill = kn_alloc_array(t->arena, t->n_ev + 1, sizeof *fill);
     for (int pass = 0; pass < 2; pass++) {
-        size_t *fill = pass ? kn_alloc_array(t->arena, t->n_ev + 1, sizeof *fill) : NULL;
-        if (pass) {
-            memcpy(fill, off, (t->n_ev + 1) * sizeof *fill);
-        }
         for (size_t i = 0; i < s->n_events; i++) {
             for (size_t k = 0; k < s->events[i]->n_cons; k++) {
                 const kn_constraint *c = &s->events[i]->cons[k];
@@ -1016,12 +1014,21 @@ static void full_reach(const kn_timeline *t, bool *reach, size_t *queue)
                 if (a == NONE || b == NONE) {
                     continue;
                 }
-                if (!pass) {
-                    off[a + 1]++;
-                    off[b + 1]++;
-                } else {
-                    adj[fill[a]++] = b;
-                    adj[fill[b]++] = a;
+                bool unread = c->broken || !c->lag.present;
+                /* a -> b bounds b from above (hi); b -> a bounds a (lo) */
+                bool ab = unread || c->lag.hi < KN_TIME_INF, ba = unread || c->lag.lo > -KN_TIME_INF;
+                size_t from[2] = {a, b}, to[2] = {b, a};
+                bool has[2] = {ab, ba};
+                for (int e = 0; e < 2; e++) {
+                    if (!has[e]) {
+                        continue;
+                    }
+                    size_t u = reverse ? to[e] : from[e], v = reverse ? from[e] : to[e];
+                    if (!pass) {
+                        off[u + 1]++;
+                    } else {
+                        adj[fill[u]++] = v;
+                    }
                 }
             }
         }
@@ -1029,6 +1036,7 @@ static void full_reach(const kn_timeline *t, bool *reach, size_t *queue)
             for (size_t i = 0; i < t->n_ev; i++) {
                 off[i + 1] += off[i];
             }
+            memcpy(fill, off, (t->n_ev + 1) * sizeof *fill);
         }
     }
     size_t head = 0, tail = 0;
@@ -1058,11 +1066,13 @@ static void set_aside_cut_off(kn_timeline *t, const scratch *sc, const bool *rea
     if (!any) {
         return;
     }
-    bool *reach = kn_alloc_array(t->arena, t->n_ev + 1, sizeof *reach);
+    bool *up = kn_alloc_array(t->arena, t->n_ev + 1, sizeof *up);
+    bool *down = kn_alloc_array(t->arena, t->n_ev + 1, sizeof *down);
     size_t *queue = kn_alloc_array(t->arena, t->n_ev + 1, sizeof *queue);
-    full_reach(t, reach, queue);
+    full_reach(t, false, up, queue);
+    full_reach(t, true, down, queue);
     for (size_t i = 0; i < t->n_ev; i++) {
-        if (reach[i] && (!reached_up[i] || !sc->seen[i])) {
+        if ((up[i] && !reached_up[i]) || (down[i] && !sc->seen[i])) {
             t->aside[i] = true;
         }
     }
