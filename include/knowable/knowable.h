@@ -61,6 +61,9 @@ typedef struct kn_options {
     const char *baseline;       /* --baseline */
     const char *write_baseline; /* --write-baseline */
     const char *root;           /* --root, or NULL */
+    const char *stdin_name;     /* --stdin-name: the path a schema read from
+                                   "-" stands for (positions, root, includes,
+                                   rulebook discovery), or NULL */
     const char *today;          /* YYYY-MM-DD for waiver expiry; NULL: the clock
                                    (or the KNOWABLE_TODAY environment variable) */
     const char *output;         /* -o: the report goes to this file, written to a

@@ -105,6 +105,10 @@ kn_rulebook *kn_run_rulebook(kn_run *r, const char *schema)
         }
         return r->named;
     }
+    /* A schema read from "-" is placed where --stdin-name says. */
+    if (schema && strcmp(schema, "-") == 0 && o->stdin_name) {
+        schema = o->stdin_name;
+    }
     const char *found = schema ? kn_rulebook_discover(r->arena, schema, r->opt->root) : NULL;
     if (!found) {
         if (!r->builtin) {
@@ -141,6 +145,7 @@ kn_unit *kn_run_load(kn_run *r, const char *path)
     kn_rulebook_apply(u->rulebook, r->sink);
     kn_load_options lo = {0};
     lo.root = r->opt->root;
+    lo.stdin_name = r->opt->stdin_name;
     kn_yaml_limits_default(&lo.limits);
     lo.rulebook = u->rulebook;
     u->schema = kn_schema_load(r->arena, r->sink, path, &lo);

@@ -18,7 +18,7 @@ static const char usage_text[] =
     "table is known at the prediction moment.\n"
     "\n"
     "commands:\n"
-    "  check [OPTIONS] SCHEMA...      lint schemas (the main job)\n"
+    "  check [OPTIONS] [--] SCHEMA... lint schemas (the main job)\n"
     "  explain RULE                   what a rule finds, why, how to fix it\n"
     "  rules [--rulebook F]           every rule with its effective severity\n"
     "  sources SCHEMA... [--format markdown|json] [-o FILE]\n"
@@ -26,12 +26,19 @@ static const char usage_text[] =
     "  timeline SCHEMA [--svg FILE]   each event and column placed relative to the moment\n"
     "  init DATA.csv [-o FILE]        draft a schema from a data sample\n"
     "  json-schema                    a JSON Schema of the schema format, for editors\n"
-    "  help COMMAND                   help on one command\n"
+    "  help COMMAND                   help on one command (`knowable help help`)\n"
     "\n"
-    "  --help, --version\n";
+    "  --help, --version\n"
+    "\n"
+    "Put -- before file names (knowable check -- $(git ls-files '*.knowable.yaml')):\n"
+    "after it nothing is read as an option, whatever a file is called.  A schema\n"
+    "named - is read from standard input.\n";
 
 static const char check_help[] =
-    "usage: knowable check [OPTIONS] SCHEMA...\n"
+    "usage: knowable check [OPTIONS] [--] SCHEMA...\n"
+    "\n"
+    "Put -- before the schema files so that no file name is read as an option.\n"
+    "A schema named - is read from standard input.\n"
     "\n"
     "options:\n"
     "  --data FILE            cross-check one schema against a CSV sample\n"
@@ -42,8 +49,13 @@ static const char check_help[] =
     "  --baseline FILE        report only findings not in FILE\n"
     "  --write-baseline FILE  record the current findings in FILE\n"
     "  --show-waived          print waived findings as notes\n"
-    "  --color auto|always|never   (auto honours NO_COLOR and non-terminals)\n"
-    "  --root DIR             includes may not leave DIR (default: the schema's folder)\n"
+    "  --color auto|always|never   auto: colour on a terminal, none when NO_COLOR is set\n"
+    "                         or TERM=dumb; FORCE_COLOR or CLICOLOR_FORCE (not 0) force it\n"
+    "  --root DIR             includes may not leave DIR, and rulebook discovery stops\n"
+    "                         there (default: the repository the schema lies in, the\n"
+    "                         nearest folder upwards with .git, else the schema's folder)\n"
+    "  --stdin-name PATH      the path a schema read from - stands for: messages,\n"
+    "                         includes, the root and rulebook discovery use it\n"
     "  --max-rows N           sample at most N data rows (reservoir sampling)\n"
     "  -q, --quiet            diagnostics only: no notes, no summary\n"
     "\n"
@@ -55,16 +67,20 @@ static const char rules_help[] =
     "Every rule with its effective severity: under the rulebooks named, else under the\n"
     "rulebook in force for SCHEMA (the nearest .knowable-rules.yaml), else the built-in\n"
     "default; each severity a rulebook set says which file set it.\n";
+static const char help_help[] =
+    "usage: knowable help [COMMAND]\n\n"
+    "Without COMMAND, the list of commands; with one, its options.  The commands are\n"
+    "check, explain, rules, sources, timeline, init, json-schema and help.\n";
 static const char sources_help[] =
-    "usage: knowable sources SCHEMA... [--format markdown|json] [-o FILE] [--root DIR]\n\n"
+    "usage: knowable sources [--format markdown|json] [-o FILE] [--root DIR] [--] SCHEMA...\n\n"
     "The register of feature sources: external sources first, with their provenance,\n"
     "then which columns come from each source, by which key and as of which event.\n";
 static const char timeline_help[] =
-    "usage: knowable timeline SCHEMA [--svg FILE] [--rulebook FILE] [--root DIR]\n\n"
+    "usage: knowable timeline [--svg FILE] [--rulebook FILE] [--root DIR] [--] SCHEMA\n\n"
     "Each event's range relative to the moment, then each column's availability and verdict.\n"
     "--svg FILE also draws the picture.\n";
 static const char init_help[] =
-    "usage: knowable init DATA.csv [-o FILE [--force]] [--max-rows N]\n\n"
+    "usage: knowable init [-o FILE [--force]] [--max-rows N] [--] DATA.csv\n\n"
     "A draft schema from a CSV sample's header and values (the first N rows, default\n"
     "10,000), with placeholders to fill in.\n";
 static const char json_schema_help[] = "usage: knowable json-schema [-o FILE]\n\nA JSON Schema (draft-07) of the schema file format.\n";
@@ -112,6 +128,126 @@ static bool is_opt(const char *a, const char *name)
 {
     size_t n = strlen(name);
     return strncmp(a, name, n) == 0 && (a[n] == '\0' || a[n] == '=');
+}
+
+/* Whether an environment variable is set to something other than "" and "0". */
+static bool env_on(const char *name)
+{
+    const char *v = getenv(name);
+    return v && *v && strcmp(v, "0") != 0 && strcmp(v, "false") != 0;
+}
+
+/* --color: always and never as said; auto colours a terminal, unless
+ * NO_COLOR is set or TERM is dumb, and FORCE_COLOR or CLICOLOR_FORCE (set,
+ * not 0) force colour wherever the report goes.  FORCE_COLOR=0 turns it
+ * off, as in the tools that read it. */
+static bool want_color(const char *color, const char *output)
+{
+    if (strcmp(color, "always") == 0) {
+        return true;
+    }
+    if (strcmp(color, "never") == 0) {
+        return false;
+    }
+    const char *force = getenv("FORCE_COLOR");
+    if (force && (strcmp(force, "0") == 0 || strcmp(force, "false") == 0)) {
+        return false;
+    }
+    if (env_on("FORCE_COLOR") || env_on("CLICOLOR_FORCE")) {
+        return true;
+    }
+    const char *no = getenv("NO_COLOR");
+    const char *term = getenv("TERM");
+    if ((no && *no) || (term && strcmp(term, "dumb") == 0)) {
+        return false;
+    }
+    return !output && isatty(STDOUT_FILENO);
+}
+
+/* Edit distance with adjacent transpositions (optimal string alignment),
+ * capped: returns cap + 1 as soon as it must exceed cap. */
+static size_t distance(const char *x, size_t lx, const char *y, size_t ly, size_t cap)
+{
+    enum { W = 40 };
+    if (lx >= W || ly >= W) {
+        return cap + 1;
+    }
+    size_t d[W][W];
+    for (size_t i = 0; i <= lx; i++) {
+        d[i][0] = i;
+    }
+    for (size_t j = 0; j <= ly; j++) {
+        d[0][j] = j;
+    }
+    for (size_t i = 1; i <= lx; i++) {
+        size_t row_min = cap + 1;
+        for (size_t j = 1; j <= ly; j++) {
+            size_t cost = x[i - 1] != y[j - 1];
+            size_t best = d[i - 1][j - 1] + cost;
+            if (d[i - 1][j] + 1 < best) {
+                best = d[i - 1][j] + 1;
+            }
+            if (d[i][j - 1] + 1 < best) {
+                best = d[i][j - 1] + 1;
+            }
+            if (i > 1 && j > 1 && x[i - 1] == y[j - 2] && x[i - 2] == y[j - 1] && d[i - 2][j - 2] + 1 < best) {
+                best = d[i - 2][j - 2] + 1;
+            }
+            d[i][j] = best;
+            if (best < row_min) {
+                row_min = best;
+            }
+        }
+        if (row_min > cap) {
+            return cap + 1;
+        }
+    }
+    return d[lx][ly];
+}
+
+/* The option closest to a mistyped one, for "did you mean": within two
+ * edits (one for short names), or a unique prefix ("--write" ->
+ * "--write-baseline").  "--fromat=json" is matched on "--fromat". */
+static const char *near_option(const char *word)
+{
+    static const char *const opts[] = {
+        "--help",     "--quiet",          "--show-waived", "--data",    "--rulebook",   "--format",
+        "--output",   "--fail-on",        "--baseline",    "--write-baseline", "--color", "--root",
+        "--max-rows", "--svg",            "--today",       "--stdin-name",     "--version", "--force",
+    };
+    size_t n = strcspn(word, "=");
+    if (n < 3 || word[0] != '-') {
+        return NULL;
+    }
+    const char *best = NULL, *prefixed = NULL;
+    size_t best_d = 0, n_prefixed = 0;
+    /* "-format" (one dash) is "--format" mistyped. */
+    char w[40];
+    size_t wl = 0;
+    if (word[1] != '-' && n + 1 < sizeof w) {
+        w[wl++] = '-';
+    }
+    for (size_t i = 0; i < n && wl + 1 < sizeof w; i++) {
+        w[wl++] = word[i];
+    }
+    w[wl] = '\0';
+    for (size_t i = 0; i < sizeof opts / sizeof *opts; i++) {
+        size_t lo = strlen(opts[i]);
+        size_t cap = lo <= 6 ? 1 : 2;
+        size_t d = distance(w, wl, opts[i], lo, cap);
+        if (d <= cap && (!best || d < best_d)) {
+            best = opts[i];
+            best_d = d;
+        }
+        if (wl >= 4 && wl < lo && strncmp(opts[i], w, wl) == 0) {
+            prefixed = opts[i];
+            n_prefixed++;
+        }
+    }
+    if (best) {
+        return best;
+    }
+    return n_prefixed == 1 ? prefixed : NULL;
 }
 
 static int parse(int argc, char **argv, int first, args *ar)
@@ -226,6 +362,11 @@ static int parse(int argc, char **argv, int first, args *ar)
                 return bad("%s needs a file", "--svg");
             }
             ar->svg = v;
+        } else if (is_opt(a, "--stdin-name")) {
+            if (!(v = value_of(argc, argv, &i, "--stdin-name"))) {
+                return bad("%s needs the path the schema on standard input stands for", "--stdin-name");
+            }
+            ar->opt.stdin_name = v;
         } else if (is_opt(a, "--today")) {
             /* For tests and reproducible reports: the date waivers expire against. */
             if (!(v = value_of(argc, argv, &i, "--today"))) {
@@ -233,15 +374,24 @@ static int parse(int argc, char **argv, int first, args *ar)
             }
             ar->opt.today = v;
         } else {
-            return bad("unknown option '%s'", a);
+            const char *near = near_option(a);
+            if (near) {
+                return bad("unknown option '%s'; did you mean '%s'?", a, near);
+            }
+            return bad("unknown option '%s' (a file whose name starts with '-' goes after --)", a);
         }
     }
-    if (strcmp(ar->color, "always") == 0) {
-        ar->opt.color = true;
-    } else if (strcmp(ar->color, "auto") == 0) {
-        const char *no = getenv("NO_COLOR");
-        ar->opt.color = !(no && *no) && !ar->output && isatty(STDOUT_FILENO);
+    size_t n_stdin = 0;
+    for (size_t i = 0; i < ar->n_positional; i++) {
+        n_stdin += strcmp(ar->positional[i], "-") == 0;
     }
+    if (n_stdin > 1) {
+        return bad("standard input ('-') can be read only once");
+    }
+    if (ar->opt.stdin_name && !n_stdin) {
+        return bad("--stdin-name names the schema read from standard input; give that schema as '-'");
+    }
+    ar->opt.color = want_color(ar->color, ar->output);
     return KN_EXIT_OK;
 }
 
@@ -322,7 +472,7 @@ static const char *help_for(const char *cmd)
         const char *name, *text;
     } t[] = {{"check", check_help},       {"explain", explain_help},   {"rules", rules_help},
              {"sources", sources_help},   {"timeline", timeline_help}, {"init", init_help},
-             {"json-schema", json_schema_help}};
+             {"json-schema", json_schema_help}, {"help", help_help}};
     for (size_t i = 0; i < sizeof t / sizeof *t; i++) {
         if (strcmp(t[i].name, cmd) == 0) {
             return t[i].text;

@@ -557,16 +557,11 @@ static bool exists(const char *path, bool dir)
  * planted above the project is never read. */
 char *kn_rulebook_discover(kn_arena *a, const char *schema_path, const char *root)
 {
-    char *real = realpath(schema_path, NULL);
-    if (!real) {
+    char *dir = kn_path_real_dir(a, schema_path);
+    if (!dir) {
         return NULL;
     }
-    char *dir = kn_strdup(a, real);
-    free(real);
-    char *slash = strrchr(dir, '/');
-    if (slash) {
-        *slash = '\0';
-    }
+    char *slash;
     const char *root_real = NULL;
     if (!root) {
         root = kn_path_default_root(a, schema_path); /* the repository, else the schema's folder */

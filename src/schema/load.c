@@ -68,6 +68,8 @@ typedef struct ld {
     kn_schema *s;
     const kn_load_options *opt;
     const char *root_real;
+    const char *stdin_real; /* the schema read from standard input ("-"): its
+                               path as named by --stdin-name, or NULL */
     kn_vec *stack;   /* file_ctx: the include chain */
     kn_name_map *loaded;
     kn_vec *events, *sources, *columns; /* pointers */
@@ -470,8 +472,13 @@ static bool check_shape(ld *l, const kn_shape *sh, const owner *o, const kn_node
         int other = sh->keys[j].unless ? kn_shape_find(sh, sh->keys[j].unless) : -1;
         if (sh->keys[j].required && !present[j] && !(other >= 0 && present[other])) {
             const kn_node *at = o->at ? o->at : node;
-            err(l, KN_R_SCHEMA_SHAPE, at, "%s lacks the required key '%s' (%s)", owner_str(l, o), sh->keys[j].name,
-                sh->keys[j].doc);
+            const char *doc = sh->keys[j].doc;
+            if (doc && *doc) {
+                err(l, KN_R_SCHEMA_SHAPE, at, "%s lacks the required key '%s' (%s)", owner_str(l, o),
+                    sh->keys[j].name, doc);
+            } else {
+                err(l, KN_R_SCHEMA_SHAPE, at, "%s lacks the required key '%s'", owner_str(l, o), sh->keys[j].name);
+            }
         }
     }
     return true;
@@ -1049,7 +1056,8 @@ static void load_includes(ld *l, const file_ctx *fc, kn_node *list)
 static void load_file(ld *l, const char *real, const char *display, bool main_file, kn_node *via)
 {
     kn_yaml_reporter rep = kn_sink_yaml_reporter(l->sink);
-    kn_node *root = kn_yaml_load_file(l->a, &rep, real, display, &l->opt->limits);
+    const char *from = main_file && l->stdin_real ? "/dev/stdin" : real;
+    kn_node *root = kn_yaml_load_file(l->a, &rep, from, display, &l->opt->limits);
     if (!root) {
         l->errors = true;
         return;
@@ -1073,6 +1081,25 @@ static void load_file(ld *l, const char *real, const char *display, bool main_fi
             main_file ? "a schema" : "an included file", kn_node_kind_name(root));
         l->stack->len--;
         return;
+    }
+    /* A rulebook given where a schema belongs (a file list from
+     * `git ls-files '*.knowable.yaml'` can hold one) is refused outright:
+     * checked as a schema it would pass or fail for the wrong reasons. */
+    for (size_t i = 0; i < root->u.map.n; i++) {
+        kn_node *k = root->u.map.pairs[i].key;
+        const char *name = kn_node_str(k);
+        if (name && strcmp(name, "knowable_rulebook") == 0) {
+            kn_diag *d = err(l, KN_R_SCHEMA_SHAPE, k,
+                             "'%s' is a rulebook (it has the key knowable_rulebook), not %s; pass a rulebook with "
+                             "--rulebook FILE, or name it .knowable-rules.yaml beside the schemas",
+                             esc(l, display), main_file ? "a schema" : "a register to include");
+            kn_diag_note(l->sink, d, &k->pos,
+                         "put -- before the file names (knowable check -- FILE...) so that no file name is read as "
+                         "an option");
+            kn_sink_mark_fatal(l->sink);
+            l->stack->len--;
+            return;
+        }
     }
     /* Keys an included file may not have get a clearer message than "unknown". */
     if (!main_file) {
@@ -1697,7 +1724,19 @@ kn_schema *kn_schema_load(kn_arena *a, kn_sink *sink, const char *path, const kn
     l.sources = kn_vec_new(a, sizeof(kn_source *));
     l.columns = kn_vec_new(a, sizeof(kn_column *));
 
-    char *real = real_path(&l, path);
+    char *real;
+    if (strcmp(path, "-") == 0) {
+        /* Standard input: --stdin-name gives the path it stands for, which
+         * places the root and the includes (the file need not exist). */
+        path = opt->stdin_name ? opt->stdin_name : "<stdin>";
+        l.s->path = path;
+        const char *base = strrchr(path, '/') ? strrchr(path, '/') + 1 : path;
+        char *dir = kn_path_real_dir(a, opt->stdin_name ? path : "./-");
+        real = dir ? kn_printf(a, "%s%s%s", dir, strcmp(dir, "/") == 0 ? "" : "/", base) : NULL;
+        l.stdin_real = real;
+    } else {
+        real = real_path(&l, path);
+    }
     if (!real) {
         kn_pos p = {path, 0, 0, 0};
         kn_diag_push(sink, KN_R_YAML_SYNTAX, &p, NULL, "cannot read the file: %s", strerror(errno));

@@ -323,9 +323,11 @@ typedef struct kn_load_options {
     const char *root;   /* includes may not leave it; NULL: schema's folder */
     kn_yaml_limits limits;
     const struct kn_rulebook *rulebook; /* for compiling patterns, may be NULL */
+    const char *stdin_name; /* the path a schema read from "-" stands for, or NULL */
 } kn_load_options;
 
-/* Loads a schema file and its includes.  Returns the model (arena memory)
+/* Loads a schema file and its includes; path "-" reads standard input
+ * (printed as opt->stdin_name, or "<stdin>").  Returns the model (arena memory)
  * or NULL when the file could not be read or parsed at all (the sink then
  * holds the reason and is marked fatal).  A model with schema errors is
  * still returned, with shape_ok false. */

@@ -17,32 +17,58 @@ bool kn_path_is_project(kn_arena *a, const char *dir)
     return stat(git, &st) == 0 && (S_ISDIR(st.st_mode) || S_ISREG(st.st_mode));
 }
 
-char *kn_path_default_root(kn_arena *a, const char *schema_path)
+static char *real_or_null(kn_arena *a, const char *path)
 {
     /* A buffer of our own: a heap result would leak if a later arena
      * allocation ran out of memory and jumped. */
     char r[PATH_MAX];
-    if (!realpath(schema_path, r)) {
+    if (!realpath(path, r)) {
         if (errno == ENOMEM) {
             kn_arena_oom(a);
         }
         return NULL;
     }
-    char *slash = strrchr(r, '/');
+    return kn_strdup(a, r);
+}
+
+/* Cuts the last component off an absolute path ("/a/b" -> "/a", "/a" -> "/"). */
+static void cut_last(char *p)
+{
+    char *slash = strrchr(p, '/');
     if (slash) {
-        *(slash == r ? slash + 1 : slash) = '\0';
+        *(slash == p ? slash + 1 : slash) = '\0';
     }
-    char *own = kn_strdup(a, r);
-    char *dir = kn_strdup(a, r);
+}
+
+char *kn_path_real_dir(kn_arena *a, const char *path)
+{
+    char *real = real_or_null(a, path);
+    if (real) {
+        cut_last(real);
+        return real;
+    }
+    const char *slash = strrchr(path, '/');
+    if (!slash) {
+        return real_or_null(a, ".");
+    }
+    return real_or_null(a, slash == path ? "/" : kn_strndup(a, path, (size_t)(slash - path)));
+}
+
+char *kn_path_default_root(kn_arena *a, const char *schema_path)
+{
+    char *own = kn_path_real_dir(a, schema_path);
+    if (!own) {
+        return NULL;
+    }
+    char *dir = kn_strdup(a, own);
     for (;;) {
         if (kn_path_is_project(a, dir)) {
             return dir;
         }
-        slash = strrchr(dir, '/');
-        if (!slash || strcmp(dir, "/") == 0) {
+        if (strcmp(dir, "/") == 0 || !strchr(dir, '/')) {
             return own;
         }
-        *(slash == dir ? slash + 1 : slash) = '\0';
+        cut_last(dir);
     }
 }
 

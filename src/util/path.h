@@ -11,8 +11,13 @@
 /* The real folder of the project a schema lies in: the nearest folder
  * upwards from the schema's own folder that holds .git (a folder or a
  * file, as in a worktree), else the schema's own folder.  NULL when the
- * schema's path does not resolve. */
+ * schema's folder does not resolve (see kn_path_real_dir). */
 char *kn_path_default_root(kn_arena *a, const char *schema_path);
+
+/* The real folder a file lies in, whether or not the file exists (a name
+ * given with --stdin-name need not): the folder of the resolved file,
+ * else the resolved folder part of path.  NULL when neither resolves. */
+char *kn_path_real_dir(kn_arena *a, const char *path);
 
 /* Whether the real folder dir holds .git. */
 bool kn_path_is_project(kn_arena *a, const char *dir);

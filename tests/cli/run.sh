@@ -224,6 +224,149 @@ case_output_special() {
     [ "$(stat -c %a report.txt)" = 640 ] || fail "regular: the mode changed to $(stat -c %a report.txt)"
 }
 
+# ---- item 5: options and messages ----------------------------------------
+case_options() {
+    schema s.knowable.yaml
+    # Unknown options get a suggestion.
+    run typo check --fromat json -- s.knowable.yaml
+    expect_rc 2
+    expect typo.err "unknown option '--fromat'; did you mean '--format'?"
+    run typo-eq check --rulebok=x.yaml -- s.knowable.yaml
+    expect_rc 2
+    expect typo-eq.err "did you mean '--rulebook'?"
+    run one-dash check -show-waived -- s.knowable.yaml
+    expect_rc 2
+    expect one-dash.err "did you mean '--show-waived'?"
+    run far check --zzz -- s.knowable.yaml
+    expect_rc 2
+    expect_not far.err 'did you mean'
+    # help help, and help on every command.
+    run help-help help help
+    expect_rc 0
+    expect help-help.out '^usage: knowable help'
+    for c in check explain rules sources timeline init json-schema; do
+        run "help-$c" help "$c"
+        expect_rc 0
+        expect "help-$c.out" "^usage: knowable $c"
+    done
+    run help-check-dashdash help check
+    expect help-check-dashdash.out 'Put -- before'
+}
+
+case_colour() {
+    esc=$(printf '\033')
+    printf 'knowable: 1\ndataset: x\n' >bad.knowable.yaml
+    # Not a terminal: no colour, unless forced.
+    run plain check -- bad.knowable.yaml
+    expect_not plain.out "$esc"
+    for v in FORCE_COLOR=1 CLICOLOR_FORCE=1 FORCE_COLOR=true; do
+        env "$v" "$knowable" check -- bad.knowable.yaml >forced.out 2>&1
+        grep -q "$esc\[" forced.out || fail "$v: no colour in the output"
+    done
+    FORCE_COLOR=0 "$knowable" check -- bad.knowable.yaml >f0.out 2>&1
+    grep -q "$esc" f0.out && fail "FORCE_COLOR=0: colour in the output"
+    CLICOLOR_FORCE=0 "$knowable" check -- bad.knowable.yaml >c0.out 2>&1
+    grep -q "$esc" c0.out && fail "CLICOLOR_FORCE=0: colour in the output"
+    # --color never wins over the environment.
+    FORCE_COLOR=1 "$knowable" check --color never -- bad.knowable.yaml >never.out 2>&1
+    grep -q "$esc" never.out && fail "--color never: colour in the output"
+    # On a terminal (script(1) gives one): colour, but none for TERM=dumb
+    # or NO_COLOR.
+    if command -v script >/dev/null 2>&1; then
+        TERM=xterm script -qec "$knowable check -- bad.knowable.yaml" /dev/null >tty.out 2>&1
+        grep -q "$esc\[" tty.out || fail "terminal: no colour"
+        TERM=dumb script -qec "$knowable check -- bad.knowable.yaml" /dev/null >dumb.out 2>&1
+        grep -q "$esc\[" dumb.out && fail "TERM=dumb: colour on the terminal"
+        grep -q 'bad.knowable.yaml' dumb.out || fail "TERM=dumb: no report"
+        NO_COLOR=1 TERM=xterm script -qec "$knowable check -- bad.knowable.yaml" /dev/null >nocolor.out 2>&1
+        grep -q "$esc\[" nocolor.out && fail "NO_COLOR: colour on the terminal"
+    else
+        echo "script(1) missing: the terminal checks are left out"
+    fi
+}
+
+case_stdin() {
+    mkdir -p repo/.git repo/shared repo/teams/fraud
+    register repo/shared/register.yaml P5D
+    printf 'knowable_rulebook: 1\nseverity: {after-moment: warning}\n' >repo/teams/.knowable-rules.yaml
+    schema in.yaml ../../shared/register.yaml
+    # '-' with --stdin-name: positions, includes, root and rulebook follow PATH.
+    "$knowable" check --stdin-name repo/teams/fraud/new.knowable.yaml -- - <in.yaml >named.out 2>&1
+    rc=$?
+    name=named
+    expect_rc 0
+    expect named.out '^repo/teams/fraud/new.knowable.yaml:11:[0-9]*: warning: .*\[after-moment\]'
+    expect named.out '^repo/shared/register.yaml:5:'
+    # Without --stdin-name: "<stdin>", the root is the current folder.
+    schema plain.yaml
+    "$knowable" check - <plain.yaml >anon.out 2>&1
+    rc=$?
+    name=anon
+    expect_rc 0
+    expect anon.out '0 errors'
+    printf 'knowable: 1\n' | "$knowable" check - >anon-bad.out 2>&1
+    rc=$?
+    name=anon-bad
+    expect_rc 1
+    expect anon-bad.out "^<stdin>:1:1: error: the schema lacks the required key 'dataset'"
+    # Standard input is read once; --stdin-name needs '-'.
+    run twice check -- - -
+    expect_rc 2
+    expect twice.err 'only once'
+    run name-alone check --stdin-name x.yaml -- plain.yaml
+    expect_rc 2
+    # timeline and sources read '-' too.
+    "$knowable" timeline --stdin-name repo/teams/fraud/new.knowable.yaml -- - <in.yaml >tl.out 2>&1
+    rc=$?
+    name=tl
+    expect_rc 0
+    expect tl.out 'hub_scans'
+}
+
+case_messages() {
+    # A missing required key: no empty parentheses.
+    printf 'knowable: 1\ndataset: x\nevents: {a: {}}\ncolumns: {y: {known: a}}\n' >np.knowable.yaml
+    run no-prediction check -- np.knowable.yaml
+    expect_rc 1
+    expect no-prediction.out "lacks the required key 'prediction'"
+    expect_not no-prediction.out '()'
+    # An expired waiver that covers nothing does not speak of "the 0 findings".
+    schema w.knowable.yaml
+    cat >>w.knowable.yaml <<'YAML'
+  parcel_count:
+    known: order_placed
+    waive:
+      - {rule: suspicious-name, reason: fixed at order time, expires: 2026-01-01}
+YAML
+    run waiver check -- w.knowable.yaml
+    expect waiver.out 'waiver-expired'
+    expect_not waiver.out ' 0 finding'
+}
+
+# ---- item 10: a file name cannot switch the gate off ----------------------
+case_dashdash() {
+    # A schema with an error, a rulebook that turns everything off named
+    # like a schema, and an empty file named like an option.
+    printf 'knowable_rulebook: 1\nseverity: {after-moment: off, maybe-after-moment: off}\n' >off.knowable.yaml
+    : >./--rulebook=off.knowable.yaml
+    register shared.yaml P5D
+    schema late.knowable.yaml shared.yaml
+    # With -- (as every documented command line has it).
+    run dashdash check -- --rulebook=off.knowable.yaml late.knowable.yaml off.knowable.yaml
+    [ "$rc" = 0 ] && fail "dashdash: the gate passed"
+    expect dashdash.out "^off.knowable.yaml:1:1: error: 'off.knowable.yaml' is a rulebook"
+    expect dashdash.out '\[after-moment\]'
+    # Without --, the rulebook among the schemas is still refused.
+    run no-dashdash check --rulebook=off.knowable.yaml late.knowable.yaml off.knowable.yaml
+    [ "$rc" = 0 ] && fail "no-dashdash: the gate passed"
+    expect no-dashdash.out 'is a rulebook (it has the key knowable_rulebook)'
+    # A rulebook pulled in as a register is refused too.
+    schema inc.knowable.yaml off.knowable.yaml
+    run included check -- inc.knowable.yaml
+    expect_rc 2
+    expect included.out 'is a rulebook'
+}
+
 "case_$(echo "$case" | tr '-' '_')"
 if [ "$fails" -ne 0 ]; then
     echo "$case: $fails failure(s)"
