@@ -27,9 +27,17 @@ typedef struct cx {
     const kn_timeline *t;
     /* All suspicious-name patterns for names (0) and descriptions (1) as
      * one alternation: a column none of them matches costs one match
-     * instead of one per pattern.  NULL when they cannot be combined. */
+     * instead of one per pattern.  NULL when they cannot be combined;
+     * holds[side][i] tells whether pattern i is in it (a pattern that does
+     * not compose is always matched on its own). */
     kn_regex *any[2];
+    bool *holds[2];
+    bool all_held[2]; /* every pattern of the side is in any[side] */
 } cx;
+
+/* The longest alternation of names patterns compiled (bytes); past it
+ * every pattern is matched on its own. */
+#define MAX_COMBINED (64 * 1024)
 
 static const kn_pos *at(const kn_column *c, const kn_node *n)
 {
@@ -558,14 +566,15 @@ static void check_suspicious(const cx *x, const kn_column *c)
     for (int side = 0; side < 2; side++) {
         const char *text = side == 0 ? c->name : c->description;
         /* Only a clean "no match" of the combined pattern skips the
-         * patterns one by one (a limit hit is reported by them). */
+         * patterns it holds (a limit hit is reported by them one by one). */
         maybe[side] = text && (!x->any[side] || kn_regex_match(x->any[side], text, strlen(text), NULL) != KN_MATCH_NONE);
     }
-    for (size_t i = 0; i < rb->n_names && (maybe[0] || maybe[1]); i++) {
+    bool look[2] = {maybe[0] || (c->name && !x->all_held[0]), maybe[1] || (c->description && !x->all_held[1])};
+    for (size_t i = 0; i < rb->n_names && (look[0] || look[1]); i++) {
         const kn_name_rule *nr = &rb->names[i];
         for (int side = 0; side < 2; side++) {
             bool on_name = side == 0;
-            if (!maybe[side]) {
+            if (!look[side] || (!maybe[side] && x->holds[side][i])) {
                 continue;
             }
             if (on_name ? nr->applies_to == KN_APPLIES_DESCRIPTION : nr->applies_to == KN_APPLIES_NAME) {
@@ -648,41 +657,127 @@ static void check_anonymization(const cx *x, const kn_column *c)
     kn_diag_note(sink, d, &c->key->pos, "%s", privacy_note);
 }
 
-/* The alternation of every names pattern that applies to a side, each in a
- * group of its own so that inline options stay inside it.  Patterns with
- * named groups or back references could clash once combined: then NULL. */
-static kn_regex *combined(kn_arena *a, const kn_rulebook *rb, bool description)
+/* Whether a names pattern keeps its meaning inside an alternation of
+ * others, proven by what it may contain: every group is a plain or
+ * non-capturing group, a lookaround, an atomic group or an inline option
+ * of i, m, s or n; no backtracking verb ((*COMMIT) and friends act on the
+ * whole match), no reference to a group by number or name (\1, \g, \k,
+ * (?1), (?R), (?&x), conditionals: group numbers shift once combined), no
+ * \Q quoting and no extended mode (whose comments run to the end of the
+ * line, past the pattern's end). */
+static bool composes(const char *p)
 {
-    const char *alt = NULL;
-    size_t n = 0;
-    for (size_t i = 0; i < rb->n_names; i++) {
-        const kn_name_rule *nr = &rb->names[i];
-        if (nr->applies_to == (description ? KN_APPLIES_NAME : KN_APPLIES_DESCRIPTION)) {
+    bool in_class = false;
+    for (const char *q = p; *q; q++) {
+        if (*q == '\\') {
+            char e = q[1];
+            if (!e || (e >= '0' && e <= '9') || e == 'g' || e == 'k' || e == 'Q' || e == 'E') {
+                return false;
+            }
+            q++;
             continue;
         }
-        for (const char *q = strchr(nr->pattern, '\\'); q && q[1]; q = strchr(q + 2, '\\')) {
-            if ((q[1] >= '1' && q[1] <= '9') || q[1] == 'g' || q[1] == 'k') {
-                return NULL; /* a back reference would change meaning */
+        if (in_class) {
+            in_class = *q != ']';
+            continue;
+        }
+        if (*q == '[') {
+            in_class = true;
+            if (q[1] == '^') {
+                q++;
             }
+            if (q[1] == ']') {
+                q++; /* a ']' first in a class is a literal */
+            }
+            continue;
         }
-        if (strstr(nr->pattern, "(?<") || strstr(nr->pattern, "(?P") || strstr(nr->pattern, "(?'")) {
-            return NULL;
+        if (*q == '#') {
+            return false;
         }
-        alt = alt ? kn_printf(a, "%s|(?:%s)", alt, nr->pattern) : kn_printf(a, "(?:%s)", nr->pattern);
-        n++;
+        if (*q != '(') {
+            continue;
+        }
+        if (q[1] == '*') {
+            return false;
+        }
+        if (q[1] != '?') {
+            continue; /* a capturing group */
+        }
+        const char *r = q + 2;
+        if (*r == ':' || *r == '=' || *r == '!' || *r == '>' ||
+            (*r == '<' && (r[1] == '=' || r[1] == '!'))) {
+            continue;
+        }
+        while (*r && strchr("imsn-", *r)) {
+            r++;
+        }
+        if (r == q + 2 || (*r != ')' && *r != ':')) {
+            return false;
+        }
     }
-    if (n < 2) {
+    return true;
+}
+
+/* The alternation of the names patterns that apply to a side and compose
+ * (each in a group of its own so that inline options stay inside it),
+ * built in one pass; *skips[i] is set for the patterns it holds, so that a
+ * clean "no match" of it skips exactly those.  NULL when fewer than two
+ * patterns compose or the alternation does not compile. */
+static kn_regex *combined(kn_arena *a, const kn_rulebook *rb, bool description, bool *holds)
+{
+    size_t n = 0, len = 1;
+    for (size_t i = 0; i < rb->n_names; i++) {
+        const kn_name_rule *nr = &rb->names[i];
+        holds[i] = nr->applies_to != (description ? KN_APPLIES_NAME : KN_APPLIES_DESCRIPTION) &&
+                   composes(nr->pattern);
+        if (holds[i]) {
+            len += strlen(nr->pattern) + 5;
+            n++;
+        }
+    }
+    if (n < 2 || len > MAX_COMBINED) {
+        memset(holds, 0, rb->n_names * sizeof *holds);
         return NULL;
     }
+    char *alt = kn_alloc(a, len), *p = alt;
+    for (size_t i = 0; i < rb->n_names; i++) {
+        if (!holds[i]) {
+            continue;
+        }
+        size_t k = strlen(rb->names[i].pattern);
+        if (p != alt) {
+            *p++ = '|';
+        }
+        memcpy(p, "(?:", 3);
+        memcpy(p + 3, rb->names[i].pattern, k);
+        p[3 + k] = ')';
+        p += k + 4;
+    }
+    *p = '\0';
     kn_regex_error err;
-    return kn_regex_compile(a, alt, strlen(alt), &err);
+    kn_regex *re = kn_regex_compile(a, alt, (size_t)(p - alt), &err);
+    if (!re) {
+        memset(holds, 0, rb->n_names * sizeof *holds);
+    }
+    return re;
 }
 
 void kn_check_identity(kn_ctx *ctx, const kn_schema *s, const kn_timeline *t)
 {
-    cx x = {ctx, s, t, {NULL, NULL}};
-    x.any[0] = combined(ctx->arena, ctx->rulebook, false);
-    x.any[1] = combined(ctx->arena, ctx->rulebook, true);
+    cx x = {ctx, s, t, {NULL, NULL}, {NULL, NULL}, {false, false}};
+    size_t n = ctx->rulebook->n_names;
+    x.holds[0] = kn_alloc_array(ctx->arena, n + 1, sizeof(bool));
+    x.holds[1] = kn_alloc_array(ctx->arena, n + 1, sizeof(bool));
+    x.any[0] = combined(ctx->arena, ctx->rulebook, false, x.holds[0]);
+    x.any[1] = combined(ctx->arena, ctx->rulebook, true, x.holds[1]);
+    for (int side = 0; side < 2; side++) {
+        x.all_held[side] = x.any[side] != NULL;
+        for (size_t i = 0; i < n && x.all_held[side]; i++) {
+            const kn_name_rule *nr = &ctx->rulebook->names[i];
+            bool applies = nr->applies_to != (side ? KN_APPLIES_NAME : KN_APPLIES_DESCRIPTION);
+            x.all_held[side] = !applies || x.holds[side][i];
+        }
+    }
     for (size_t i = 0; i < s->n_columns; i++) {
         const kn_column *c = s->columns[i];
         if (c->broken) {

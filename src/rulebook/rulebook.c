@@ -22,6 +22,7 @@
 #include <sys/stat.h>
 
 #include "../util/path.h"
+#include "../util/names.h"
 #include "../util/regex.h"
 #include "../util/text.h"
 
@@ -67,7 +68,19 @@ typedef struct rb_ld {
     const char *chain_display[MAX_EXTENDS_DEPTH + 2];
     const kn_node *chain_from[MAX_EXTENDS_DEPTH + 2]; /* the extends item that named it */
     int depth;
+    /* `extends` obeys the include rules (SPEC §9): relative paths of
+     * regular files inside root_real, the repository of the rulebook named
+     * first (the nearest folder upwards holding .git), else its folder.
+     * loaded holds the real path of every file read, so that a file
+     * extended along many paths is read once. */
+    const char *root_real;
+    kn_name_map *loaded;
+    kn_name_map *compiled; /* names pattern text -> its kn_regex, compiled once */
 } rb_ld;
+
+/* The most `names` entries a rulebook and everything it extends may hold:
+ * house rulebooks hold tens; each pattern costs a few KiB compiled. */
+#define MAX_NAMES 20000
 
 __attribute__((format(printf, 4, 5)))
 static kn_diag *fail(rb_ld *l, kn_rule r, const kn_node *at, const char *fmt, ...)
@@ -289,9 +302,20 @@ static void load_names(rb_ld *l, const kn_node *v)
             }
             continue;
         }
+        if (n >= MAX_NAMES) {
+            fail(l, KN_R_SCHEMA_SHAPE, item, "more than %d 'names' entries (with the rulebooks this one extends)",
+                 MAX_NAMES);
+            break;
+        }
         r.pattern = pat->u.scalar.text;
         r.pos = pat->pos;
-        r.code = compile(l, pat, "this suspicious-name pattern");
+        r.code = kn_names_get(l->compiled, r.pattern);
+        if (!r.code) {
+            r.code = compile(l, pat, "this suspicious-name pattern");
+            if (r.code && strlen(r.pattern) == pat->u.scalar.len) {
+                kn_names_put(l->compiled, r.pattern, r.code);
+            }
+        }
         if (r.code && ok) {
             rules[n++] = r;
         }
@@ -382,16 +406,57 @@ static size_t pushed(const kn_sink *sink)
     return kn_sink_pushed(sink);
 }
 
+static char *real_path(rb_ld *l, const char *path)
+{
+    char r[PATH_MAX];
+    if (!realpath(path, r)) {
+        if (errno == ENOMEM) {
+            kn_arena_oom(l->a);
+        }
+        return NULL;
+    }
+    return kn_strdup(l->a, r);
+}
+
+static bool inside_root(const rb_ld *l, const char *real)
+{
+    size_t n = strlen(l->root_real);
+    if (strcmp(l->root_real, "/") == 0) {
+        return true;
+    }
+    return strncmp(real, l->root_real, n) == 0 && (real[n] == '/' || real[n] == '\0');
+}
+
 /* Reads one rulebook file and everything it extends.  Anything the YAML
  * reader reports about a rulebook (a duplicate key included) makes the
- * rulebook unusable: the run stops with exit status 2. */
+ * rulebook unusable: the run stops with exit status 2.  from is the
+ * `extends` item that names the file (NULL for the rulebook named on the
+ * command line or discovered, which the include rules do not apply to). */
 static bool load_file(rb_ld *l, const char *path, const kn_node *from)
 {
-    char *real = realpath(path, NULL);
-    const char *id = path;
-    if (real) {
-        id = kn_strdup(l->a, real);
-        free(real);
+    const char *id = real_path(l, path);
+    if (from) {
+        const char *shown = kn_escape_term(l->a, kn_node_str(from), strlen(kn_node_str(from)));
+        if (!id) {
+            fail(l, KN_R_INCLUDE_REFUSED, from, "extends '%s' is refused: no such file", shown);
+            return false;
+        }
+        if (!inside_root(l, id)) {
+            kn_diag *d = fail(l, KN_R_INCLUDE_REFUSED, from, "extends '%s' is refused: it leaves the root folder",
+                              shown);
+            kn_diag_note(l->sink, d, &from->pos,
+                         "the root is '%s', the repository (or else the folder) of the rulebook named first",
+                         kn_escape_term(l->a, l->root_real, strlen(l->root_real)));
+            return false;
+        }
+        struct stat st = {0};
+        if (stat(id, &st) != 0 || !S_ISREG(st.st_mode)) {
+            fail(l, KN_R_INCLUDE_REFUSED, from, "extends '%s' is refused: %s", shown,
+                 S_ISDIR(st.st_mode) ? "it is a folder, not a file" : "it is not a regular file");
+            return false;
+        }
+    } else if (!id) {
+        id = path;
     }
     for (int i = 0; i < l->depth; i++) {
         if (strcmp(l->chain[i], id) != 0) {
@@ -407,11 +472,21 @@ static bool load_file(rb_ld *l, const char *path, const kn_node *from)
         }
         return false;
     }
+    if (kn_names_get(l->loaded, id)) {
+        return true; /* extended along another path already: read once */
+    }
     if (l->depth > MAX_EXTENDS_DEPTH) {
         fail(l, KN_R_INCLUDE_REFUSED, from, "rulebooks extend each other more than %d levels deep",
              MAX_EXTENDS_DEPTH);
         return false;
     }
+    if (!from) {
+        l->root_real = kn_path_default_root(l->a, id);
+        if (!l->root_real) {
+            l->root_real = dir_of(l->a, id);
+        }
+    }
+    kn_names_put(l->loaded, id, l);
     size_t before = pushed(l->sink);
     kn_yaml_limits lim;
     kn_yaml_limits_default(&lim);
@@ -526,7 +601,9 @@ bool kn_rulebook_load_default(kn_rulebook *rb, kn_arena *a, kn_sink *sink)
     if (!root) {
         return false;
     }
-    rb_ld l = {rb, a, sink, false, {0}, {0}, {0}, 0};
+    rb_ld l = {rb, a, sink, false, {0}, {0}, {0}, 0, "/", NULL, NULL};
+    l.loaded = kn_names_new(a);
+    l.compiled = kn_names_new(a);
     bool ok = load_tree(&l, root, ".", 0);
     rb->origin = "(built-in)";
     return ok;
@@ -534,7 +611,9 @@ bool kn_rulebook_load_default(kn_rulebook *rb, kn_arena *a, kn_sink *sink)
 
 bool kn_rulebook_load(kn_rulebook *rb, kn_arena *a, kn_sink *sink, const char *path)
 {
-    rb_ld l = {rb, a, sink, false, {0}, {0}, {0}, 0};
+    rb_ld l = {rb, a, sink, false, {0}, {0}, {0}, 0, "/", NULL, NULL};
+    l.loaded = kn_names_new(a);
+    l.compiled = kn_names_new(a);
     bool ok = load_file(&l, path, NULL) && !l.failed;
     rb->origin = path;
     return ok;

@@ -16,15 +16,32 @@ struct kn_regex {
     pcre2_code *code;
     pcre2_match_data *md;
     pcre2_match_context *mctx;
-    pcre2_jit_stack *jit_stack;
     bool jit;
     kn_regex_limits limits;
     char problem[160];
 };
 
 /* The JIT stack grows from 32 KiB up to this size; a pattern that needs
- * more reports PCRE2_ERROR_JIT_STACKLIMIT, which counts as a limit. */
+ * more reports PCRE2_ERROR_JIT_STACKLIMIT, which counts as a limit.  One
+ * stack serves every pattern of a thread (matches never nest), so that a
+ * rulebook of many patterns does not reserve a megabyte for each: 50,000
+ * patterns once reserved 50 GB of address space. */
 #define JIT_STACK_MAX (1024 * 1024)
+
+static _Thread_local pcre2_jit_stack *shared_jit_stack;
+static _Thread_local bool shared_jit_tried;
+
+/* The thread's JIT stack, made on first use; NULL when it could not be
+ * made (the JIT then uses 32 KiB of the machine stack, still bounded).  It
+ * lives as long as the thread. */
+static pcre2_jit_stack *jit_stack(void)
+{
+    if (!shared_jit_tried) {
+        shared_jit_tried = true;
+        shared_jit_stack = pcre2_jit_stack_create(32 * 1024, JIT_STACK_MAX, NULL);
+    }
+    return shared_jit_stack;
+}
 
 void kn_regex_limits_default(kn_regex_limits *l)
 {
@@ -46,11 +63,6 @@ static void free_md(void *p)
 static void free_mctx(void *p)
 {
     pcre2_match_context_free(p);
-}
-
-static void free_jit_stack(void *p)
-{
-    pcre2_jit_stack_free(p);
 }
 
 static void apply_limits(kn_regex *re)
@@ -81,14 +93,10 @@ static kn_regex *finish(kn_arena *a, kn_regex *re)
     size_t jit_size = 0;
     if (pcre2_pattern_info(re->code, PCRE2_INFO_JITSIZE, &jit_size) == 0 && jit_size > 0) {
         re->jit = true;
-        d = kn_arena_defer(a, free_jit_stack, NULL);
-        re->jit_stack = pcre2_jit_stack_create(32 * 1024, JIT_STACK_MAX, NULL);
-        if (re->jit_stack) {
-            d->ptr = re->jit_stack;
-            pcre2_jit_stack_assign(re->mctx, NULL, re->jit_stack);
+        pcre2_jit_stack *st = jit_stack();
+        if (st) {
+            pcre2_jit_stack_assign(re->mctx, NULL, st);
         }
-        /* Without a stack of its own the JIT uses 32 KiB of the machine
-         * stack, which is still bounded: no need to fail. */
     }
     kn_regex_limits_default(&re->limits);
     apply_limits(re);

@@ -264,6 +264,100 @@ case_data_wide_header() {
     [ "$n" = 20000 ] || fail "unknown: $n column-not-in-schema findings, expected 20000"
 }
 
+# A schema with one feature per name given, each known at the moment.
+names_schema() {
+    printf '%s\n' 'knowable: 1' 'dataset: d' 'prediction: {moment: x, target: t, label_known: y}' \
+        'events: {x: {}, y: {after: x}}' 'sources: {s: {kind: internal}}' 'columns:' '  t: {role: target, known: y}'
+    for c in "$@"; do
+        echo "  $c: {known: x, source: s}"
+    done
+}
+
+case_rulebook_extends() {
+    # Each level extends the next twelve times, eight levels deep: every
+    # file was read once per path (12^8 reads; depth 4 took over 100 s).
+    for d in 0 1 2 3 4 5 6 7 8; do
+        {
+            echo 'knowable_rulebook: 1'
+            if [ $d -lt 8 ]; then
+                printf 'extends: ['
+                for i in 1 2 3 4 5 6 7 8 9 10 11; do printf 'r%d.yaml, ' $((d + 1)); done
+                echo "r$((d + 1)).yaml]"
+            fi
+            echo 'names:'
+            echo "  - {pattern: 'level$d', why: level $d}"
+        } >r$d.yaml
+    done
+    names_schema level0 level8 >s.knowable.yaml
+    run fan check --rulebook r0.yaml s.knowable.yaml
+    expect_rc 0
+    for c in level0 level8; do
+        n=$(grep -c ": warning: feature '$c' .*\[suspicious-name\]" fan.out)
+        [ "$n" = 1 ] || fail "fan: $n findings for '$c', expected 1 (each file read once)"
+    done
+    # extends obeys the include rules: no absolute path, nothing outside
+    # the root, regular files only (a FIFO or /dev/stdin once blocked).
+    mkdir -p root/sub outside
+    printf 'knowable_rulebook: 1\nnames:\n  - {pattern: secret, why: outside}\n' >outside/x.yaml
+    ln -s /proc/self/status root/status.yaml
+    ln -s /dev/stdin root/stdin.yaml
+    mkdir root/folder.yaml
+    printf '%s\n' 'knowable_rulebook: 1' 'extends:' '  - ../outside/x.yaml' '  - /etc/passwd' '  - status.yaml' \
+        '  - stdin.yaml' '  - folder.yaml' '  - sub/../../outside/x.yaml' >root/rules.yaml
+    if mkfifo root/fifo.yaml 2>/dev/null; then
+        echo '  - fifo.yaml' >>root/rules.yaml
+    fi
+    names_schema secret >root/s.knowable.yaml
+    run escape check --rulebook root/rules.yaml root/s.knowable.yaml
+    expect_rc 2
+    for line in 3 4 5 6 7 8; do
+        expect_grep "^root/rules.yaml:$line:5: error: .*\[include-refused\]\$" escape.out "escape: line $line not refused"
+    done
+    if [ -p root/fifo.yaml ]; then
+        expect_grep '^root/rules.yaml:9:5: error: .*not a regular file \[include-refused\]$' escape.out \
+            "escape: the FIFO is not refused"
+    fi
+    grep -q -e secret -e 'Name:' escape.out && fail "escape: a file outside the root was read"
+}
+
+case_names_patterns() {
+    # 10,000 names entries through an alias (70 KB): the combined
+    # alternation was grown with kn_printf one entry at a time (1.6 GB,
+    # 19 s); 50,000 were killed by the kernel.
+    {
+        echo 'knowable_rulebook: 1'
+        echo 'names:'
+        echo "  - &a {pattern: '(?i)(^|_)(total|final)(_|\$)', why: totals}"
+        awk 'BEGIN { for (i = 1; i < 10000; i++) print "  - *a" }'
+    } >many.yaml
+    names_schema total_cost weight >s.knowable.yaml
+    run many check --rulebook many.yaml s.knowable.yaml
+    expect_rc 0
+    expect_grep "^s.knowable.yaml:[0-9]*:[0-9]*: warning: feature 'total_cost' .*\[suspicious-name\]" many.out \
+        "many: the pattern does not fire"
+    {
+        echo 'knowable_rulebook: 1'
+        echo 'names:'
+        echo "  - &a {pattern: '(?i)(^|_)(total|final)(_|\$)', why: totals}"
+        awk 'BEGIN { for (i = 1; i < 50000; i++) print "  - *a" }'
+    } >more.yaml
+    run more check --rulebook more.yaml s.knowable.yaml
+    expect_rc 2
+    expect_grep "^more.yaml:[0-9]*:[0-9]*: error: more than 20000 'names' entries .*\[schema-shape\]" more.out \
+        "more: no positioned error for too many entries"
+    # Patterns whose meaning changes inside an alternation: (*COMMIT) ends
+    # the whole match, (?1) names another group once numbers shift.
+    printf '%s\n' 'knowable_rulebook: 1' 'names:' "  - {pattern: 'a(*COMMIT)b', why: committed}" \
+        "  - {pattern: 'ac', why: plain after commit}" "  - {pattern: '(y)', why: a group first}" \
+        "  - {pattern: '^(x)(?1)\$', why: recursion by number}" >verbs.yaml
+    names_schema ac xx >v.knowable.yaml
+    run verbs check --rulebook verbs.yaml v.knowable.yaml
+    expect_rc 0
+    for c in ac xx; do
+        expect_grep "warning: feature '$c' .*\[suspicious-name\]" verbs.out "verbs: '$c' is not found"
+    done
+}
+
 fn=case_$(echo "$case" | tr - _)
 command -v "$fn" >/dev/null 2>&1 || { echo "no case '$case'"; exit 1; }
 "$fn"
