@@ -135,15 +135,30 @@ static int by_key(const void *pa, const void *pb)
  * same digit are skipped.  Returns whichever buffer holds the result. */
 static scored *radix_sort(scored *v, scored *tmp, size_t n, size_t (*count)[RADIX_SIZE])
 {
+    /* Digits where every key agrees need no pass: scores that came from
+     * 4-byte floats leave the low 29 bits of every key equal. */
+    uint64_t all_or = 0, all_and = UINT64_MAX;
+    for (size_t i = 0; i < n; i++) {
+        all_or |= v[i].key;
+        all_and &= v[i].key;
+    }
+    uint64_t varies = all_or ^ all_and;
+    int passes[RADIX_PASSES], n_passes = 0;
+    for (int p = 0; p < RADIX_PASSES; p++) {
+        if ((varies >> (p * RADIX_BITS)) & (RADIX_SIZE - 1)) {
+            passes[n_passes++] = p;
+        }
+    }
     memset(count, 0, RADIX_PASSES * sizeof *count);
     for (size_t i = 0; i < n; i++) {
         uint64_t k = v[i].key;
-        for (int p = 0; p < RADIX_PASSES; p++) {
-            count[p][(k >> (p * RADIX_BITS)) & (RADIX_SIZE - 1)]++;
+        for (int q = 0; q < n_passes; q++) {
+            count[q][(k >> (passes[q] * RADIX_BITS)) & (RADIX_SIZE - 1)]++;
         }
     }
-    for (int p = 0; p < RADIX_PASSES; p++) {
-        size_t *c = count[p];
+    for (int q = 0; q < n_passes; q++) {
+        int p = passes[q];
+        size_t *c = count[q];
         bool trivial = false;
         for (size_t d = 0; d < RADIX_SIZE; d++) {
             if (c[d] == n) {
@@ -443,6 +458,12 @@ void kn_groups_kanon(const kn_groups *g, size_t k, kn_kanon *out)
 struct kn_overlap {
     u64map map;
     size_t train_rows, test_rows;
+    /* One key waits while its slot is fetched from memory: the table of a
+     * large file does not fit in the caches, and the next row's work hides
+     * the miss. */
+    bool pending;
+    uint64_t pend_key, pend_line;
+    bool pend_test;
 };
 
 kn_overlap *kn_overlap_new(kn_arena *a)
@@ -452,7 +473,7 @@ kn_overlap *kn_overlap_new(kn_arena *a)
     return o;
 }
 
-void kn_overlap_add(kn_overlap *o, uint64_t key, bool test_side, uint64_t line)
+static void overlap_count(kn_overlap *o, uint64_t key, bool test_side, uint64_t line)
 {
     slot *s = u64map_get(&o->map, key);
     if (test_side) {
@@ -467,9 +488,27 @@ void kn_overlap_add(kn_overlap *o, uint64_t key, bool test_side, uint64_t line)
     }
 }
 
-/* Keys counted on both sides of the split. */
-void kn_overlap_result_get(const kn_overlap *o, kn_overlap_result *out)
+void kn_overlap_add(kn_overlap *o, uint64_t key, bool test_side, uint64_t line)
 {
+    if (o->map.cap) {
+        __builtin_prefetch(&o->map.slots[(size_t)mix64(key) & (o->map.cap - 1)], 1);
+    }
+    if (o->pending) {
+        overlap_count(o, o->pend_key, o->pend_test, o->pend_line);
+    }
+    o->pending = true;
+    o->pend_key = key;
+    o->pend_test = test_side;
+    o->pend_line = line;
+}
+
+/* Keys counted on both sides of the split. */
+void kn_overlap_result_get(kn_overlap *o, kn_overlap_result *out)
+{
+    if (o->pending) {
+        overlap_count(o, o->pend_key, o->pend_test, o->pend_line);
+        o->pending = false;
+    }
     memset(out, 0, sizeof *out);
     out->train_rows = o->train_rows;
     out->test_rows = o->test_rows;

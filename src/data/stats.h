@@ -115,7 +115,7 @@ typedef struct kn_overlap_result {
  * or one entity on both sides. */
 kn_overlap *kn_overlap_new(kn_arena *a);
 void kn_overlap_add(kn_overlap *o, uint64_t key, bool test_side, uint64_t line);
-void kn_overlap_result_get(const kn_overlap *o, kn_overlap_result *out);
+void kn_overlap_result_get(kn_overlap *o, kn_overlap_result *out);
 
 /* ---- reservoir sampling --------------------------------------------------- */
 

@@ -20,9 +20,9 @@
  *           in blocks of 16,384 rows (the first grows from 64 rows);
  *   dictionaries: at most 10,000 values and 1 MiB of text per column
  *           (50 values per identifier segment), about 60 bytes a value;
- *   exact tallies: at most 64 bytes per distinct feature row with a
+ *   exact tallies: 64 to 128 bytes per distinct feature row with a
  *           split side, per distinct entity with a side and per distinct
- *           quasi-identifier tuple (hash tables at most half full, 32-byte
+ *           quasi-identifier tuple (hash tables a quarter to half full, 32-byte
  *           slots), 1.5 times that while a table doubles;
  *   reader: see csv.h (1 MiB block plus about twice the longest record).
  * No allocation per row. */

@@ -27,7 +27,7 @@ except ImportError as e:
     print("skipped: %s" % e, file=sys.stderr)
     sys.exit(77)
 
-MISSING = ["", "NA", "NaN", "null", "na", "nan", "NULL", "Null"]
+MISSING = ["", "NA", "N/A", "NaN", "null", "na", "n/a", "nan", "NULL", "Null"]  # missing_values, default rulebook
 
 
 def entropy(y):

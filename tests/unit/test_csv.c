@@ -331,6 +331,24 @@ static void test_too_many_columns(void **state)
     assert_int_equal(kn_csv_read_header(r2, NULL, &e), KN_CSV_ROW);
 }
 
+/* A refused header stops the reader at once: an endless first line (a
+ * device that never ends) must not be read to its end. */
+static void test_header_refused_at_first_problem(void **state)
+{
+    size_t n = 8u << 20;
+    char *zeros = kn_alloc(*state, n); /* NUL bytes and no line break */
+    kn_csv_reader *r = kn_csv_open_buffer(*state, zeros, n, NULL);
+    kn_csv_error e;
+    assert_int_equal(kn_csv_read_header(r, NULL, &e), KN_CSV_FAILED);
+    assert_int_equal(e.problem, KN_CSV_NUL_BYTE);
+    assert_true(kn_csv_bytes_read(r) < 4096);
+    kn_csv_options o = {.max_columns = 3};
+    kn_csv_reader *r2 = open_str(*state, "a,b,c,d,e,f,g,h,i,j,k", &o);
+    assert_int_equal(kn_csv_read_header(r2, NULL, &e), KN_CSV_FAILED);
+    assert_int_equal(e.problem, KN_CSV_TOO_MANY_COLUMNS);
+    assert_true(kn_csv_bytes_read(r2) < 12);
+}
+
 static void test_bom_dropped(void **state)
 {
     kn_csv_row row;
@@ -431,6 +449,7 @@ int main(void)
         cmocka_unit_test_setup_teardown(test_empty_input, setup, teardown),
         cmocka_unit_test_setup_teardown(test_bad_header_is_fatal, setup, teardown),
         cmocka_unit_test_setup_teardown(test_too_many_columns, setup, teardown),
+        cmocka_unit_test_setup_teardown(test_header_refused_at_first_problem, setup, teardown),
         cmocka_unit_test_setup_teardown(test_bom_dropped, setup, teardown),
         cmocka_unit_test_setup_teardown(test_bom_only_at_start, setup, teardown),
         cmocka_unit_test_setup_teardown(test_block_sizes_agree, setup, teardown),

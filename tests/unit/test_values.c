@@ -246,10 +246,40 @@ static void test_timestamp_range_ends(void **state)
     assert_true(us > 0);
 }
 
+/* The rulebook's missing_values (SPEC §6): trimmed, ASCII case ignored,
+ * exactly the words listed. */
+static void test_missing_set(void **state)
+{
+    (void)state;
+    static const char *const words[] = {"", "NA", "N/A", "NaN", "null"};
+    kn_missing m;
+    kn_missing_init(&m, words, 5);
+    assert_true(kn_missing_test(&m, "", 0));
+    assert_true(kn_missing_test(&m, "  ", 2));
+    assert_true(kn_missing_test(&m, "n/a", 3));
+    assert_true(kn_missing_test(&m, " N/A\t", 5));
+    assert_true(kn_missing_test(&m, "NULL", 4));
+    assert_false(kn_missing_test(&m, "N/A/B", 5));
+    assert_false(kn_missing_test(&m, "NAN!", 4));
+    assert_false(kn_missing_test(&m, "12", 2));
+    assert_false(kn_missing_test(&m, "-", 1));
+    static const char *const dash[] = {"-", "unknown"};
+    kn_missing d;
+    kn_missing_init(&d, dash, 2);
+    assert_true(kn_missing_test(&d, "-", 1));
+    assert_true(kn_missing_test(&d, "Unknown", 7));
+    assert_false(kn_missing_test(&d, "", 0));
+    assert_false(kn_missing_test(&d, "NA", 2));
+    kn_missing none;
+    kn_missing_init(&none, NULL, 0);
+    assert_false(kn_missing_test(&none, "", 0));
+}
+
 int main(void)
 {
     const struct CMUnitTest tests[] = {
         cmocka_unit_test(test_missing_markers),
+        cmocka_unit_test(test_missing_set),
         cmocka_unit_test(test_number_forms),
         cmocka_unit_test(test_number_not_nul_terminated),
         cmocka_unit_test(test_number_invalid),
