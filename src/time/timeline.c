@@ -1200,8 +1200,8 @@ size_t kn_timeline_chain(const kn_timeline *t, const kn_event *e, bool upper,
                          const kn_chain_step **out)
 {
     *out = NULL;
-    size_t i = ev_index(t, e);
-    if (!t || i == NONE || t->contradictory) {
+    size_t i = t ? ev_index(t, e) : NONE;
+    if (i == NONE || t->unsolved || t->aside[i]) {
         return 0;
     }
     const size_t *pred = upper ? t->pred_up : t->pred_down;
@@ -1229,8 +1229,8 @@ size_t kn_timeline_chain(const kn_timeline *t, const kn_event *e, bool upper,
 void kn_timeline_note_chain(const kn_timeline *t, kn_sink *sink, kn_diag *d,
                             const kn_event *e, bool upper)
 {
-    size_t i = ev_index(t, e);
-    if (!t || i == NONE || t->contradictory) {
+    size_t i = t ? ev_index(t, e) : NONE;
+    if (i == NONE || t->unsolved || t->aside[i]) {
         return;
     }
     /* Walks the predecessors twice instead of copying the chain: a column
