@@ -81,11 +81,25 @@ static void note_pattern(const cx *x, kn_diag *d, const kn_pos *pattern_pos, con
 static bool rulebook_match(const cx *x, kn_regex *re, const char *pattern, const kn_pos *pattern_pos,
                            const kn_column *c, const kn_node *value, const char *text, size_t span[2])
 {
+    if (kn_regex_spent(re)) {
+        return false; /* reported once, where its time ran out */
+    }
     kn_match m = kn_regex_match(re, text, strlen(text), span);
     if (m == KN_MATCH_FOUND) {
         return true;
     }
     if (m == KN_MATCH_NONE) {
+        return false;
+    }
+    if (kn_regex_spent(re)) {
+        kn_diag *d = kn_diag_push(x->ctx->sink, KN_R_BAD_PATTERN, at(c, value), c->name,
+                                  "the rulebook pattern '%s' is no longer matched, from '%s' on: %s",
+                                  clip(x->ctx->arena, pattern, 60), clip(x->ctx->arena, text, 60),
+                                  kn_regex_problem(re));
+        kn_diag_key(x->ctx->sink, d, "spent %s", pattern);
+        note_pattern(x, d, pattern_pos, c,
+                     "the pattern is defined here; it is not matched against this or any later column, so "
+                     "findings of it may be missing");
         return false;
     }
     kn_arena *a = x->ctx->arena;

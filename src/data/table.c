@@ -491,8 +491,13 @@ static void check_value(kn_table *t, kn_tcol *c, const kn_csv_row *row, size_t s
 
     bool matched = false;
     if (c->md && !c->format_off && st != KN_VALUE_MISSING) {
+        uint64_t start = kn_regex_clock();
         int rc = pcre2_match(c->format, (PCRE2_SPTR)f->ptr, f->len, 0, 0, c->md, t->match_context);
-        if (rc >= 0) {
+        if (kn_regex_budget_charge(&c->format_budget, start, f->len)) {
+            c->format_off = true;
+            c->limit_line = row->line;
+            c->limit_problem = kn_strdup(t->a, kn_regex_budget_words());
+        } else if (rc >= 0) {
             matched = true;
         } else if (is_limit(rc)) {
             c->format_off = true;

@@ -35,6 +35,7 @@
 
 #include "../schema/schema.h"
 #include "../util/arena.h"
+#include "../util/regex.h"
 #include "csv.h"
 #include "dict.h"
 #include "stats.h"
@@ -93,6 +94,7 @@ typedef struct kn_tcol {
     uint64_t not_numbers;  /* untyped: non-missing cells that are not numbers */
     void *md;              /* pcre2_match_data * */
     bool format_off;       /* a match limit was hit: the format is no longer matched */
+    kn_regex_budget format_budget; /* total matching time of the format (util/regex.h) */
     uint64_t limit_line;
     char *limit_problem;
     kn_segment *segs;

@@ -8,6 +8,7 @@
 
 #include <stdio.h>
 #include <string.h>
+#include <time.h>
 
 #define PCRE2_CODE_UNIT_WIDTH 8
 #include <pcre2.h>
@@ -17,8 +18,10 @@ struct kn_regex {
     pcre2_match_data *md;
     pcre2_match_context *mctx;
     bool jit;
+    kn_regex_budget budget;
+    bool spent; /* the budget ran out: every later match answers KN_MATCH_LIMIT */
     kn_regex_limits limits;
-    char problem[160];
+    char problem[256];
 };
 
 /* The JIT stack grows from 32 KiB up to this size; a pattern that needs
@@ -171,15 +174,52 @@ static bool valid_utf8(const char *s, size_t len)
     return true;
 }
 
+uint64_t kn_regex_clock(void)
+{
+    struct timespec ts;
+    clock_gettime(CLOCK_MONOTONIC, &ts);
+    return (uint64_t)ts.tv_sec * 1000000000u + (uint64_t)ts.tv_nsec;
+}
+
+bool kn_regex_budget_charge(kn_regex_budget *b, uint64_t start, size_t len)
+{
+    uint64_t now = kn_regex_clock();
+    b->spent_ns += now > start ? now - start : 0;
+    b->bytes += len;
+    uint64_t allowed = (uint64_t)KN_REGEX_BUDGET_BASE_MS * 1000000u + b->bytes * KN_REGEX_BUDGET_NS_PER_BYTE;
+    return b->spent_ns > allowed;
+}
+
+bool kn_regex_spent(const kn_regex *re)
+{
+    return re->spent;
+}
+
+const char *kn_regex_budget_words(void)
+{
+    return "the pattern spent its total matching time (1 s plus 1 microsecond per byte matched): each "
+           "match stays under the per-match limits but costs far more than a pattern should";
+}
+
 kn_match kn_regex_match(kn_regex *re, const char *subject, size_t len, size_t span[2])
 {
+    if (re->spent) {
+        snprintf(re->problem, sizeof re->problem, "%s", kn_regex_budget_words());
+        return KN_MATCH_LIMIT;
+    }
     re->problem[0] = '\0';
+    uint64_t start = kn_regex_clock();
     /* pcre2_jit_match skips pcre2_match's checks (a third of the cost of a
      * match on a short name), which is safe once the subject is known to be
      * valid UTF-8; anything else goes through pcre2_match and its checks. */
     int rc = re->jit && valid_utf8(subject, len)
                  ? pcre2_jit_match(re->code, (PCRE2_SPTR)subject, len, 0, 0, re->md, re->mctx)
                  : pcre2_match(re->code, (PCRE2_SPTR)subject, len, 0, 0, re->md, re->mctx);
+    if (kn_regex_budget_charge(&re->budget, start, len)) {
+        re->spent = true;
+        snprintf(re->problem, sizeof re->problem, "%s", kn_regex_budget_words());
+        return KN_MATCH_LIMIT;
+    }
     if (rc >= 0) {
         if (span) {
             PCRE2_SIZE *ov = pcre2_get_ovector_pointer(re->md);

@@ -67,6 +67,37 @@ typedef enum kn_match {
  * the start and end of the match. */
 kn_match kn_regex_match(kn_regex *re, const char *subject, size_t len, size_t span[2]);
 
+/* A total budget of matching time for one pattern, so that a pattern tuned
+ * to stay just under the per-match limits cannot cost hours over a large
+ * sample: every match of the pattern is timed, and once the time spent
+ * exceeds KN_REGEX_BUDGET_BASE_MS plus KN_REGEX_BUDGET_NS_PER_BYTE for
+ * each byte matched so far (a legitimate pattern needs well under a tenth
+ * of that), the pattern is spent.  kn_regex_match applies it to every
+ * kn_regex (a spent pattern answers KN_MATCH_LIMIT at once, with its
+ * problem saying so); code that calls PCRE2 itself keeps a
+ * kn_regex_budget per pattern. */
+#define KN_REGEX_BUDGET_BASE_MS 1000
+#define KN_REGEX_BUDGET_NS_PER_BYTE 1000
+
+typedef struct kn_regex_budget {
+    uint64_t spent_ns;
+    uint64_t bytes;
+} kn_regex_budget;
+
+/* A monotonic clock in nanoseconds, to pass to kn_regex_budget_charge. */
+uint64_t kn_regex_clock(void);
+
+/* Charges one match of len bytes that started at start; true when the
+ * budget is now spent. */
+bool kn_regex_budget_charge(kn_regex_budget *b, uint64_t start, size_t len);
+
+/* True when re's budget ran out (its later matches answer KN_MATCH_LIMIT
+ * at once). */
+bool kn_regex_spent(const kn_regex *re);
+
+/* Words for a spent budget (static text). */
+const char *kn_regex_budget_words(void);
+
 /* The PCRE2 code (pcre2_code_8 *), for pcre2_pattern_info. */
 void *kn_regex_code(const kn_regex *re);
 

@@ -358,6 +358,35 @@ case_names_patterns() {
     done
 }
 
+case_pattern_budget() {
+    # '^(a|aa)+$' against 26 a's and a b stays under the per-match limit
+    # but costs about 5 ms a value: 20,000 rows took 100 s, with no
+    # diagnostic.  Each pattern now has a total budget of matching time.
+    printf '%s\n' 'knowable: 1' 'dataset: d' 'prediction: {moment: x, target: t}' 'events: {x: {}, y: {after: x}}' \
+        'columns:' '  t: {role: target, known: y, type: boolean}' "  shelf_mark: {known: x, format: '^(a|aa)+\$'}" \
+        >format.knowable.yaml
+    { echo 't,shelf_mark'; awk 'BEGIN { for (r = 0; r < 20000; r++) print "true,aaaaaaaaaaaaaaaaaaaaaaaaaab" }'; } >big.csv
+    run format check --data big.csv format.knowable.yaml
+    expect_rc 1
+    expect_grep '^format.knowable.yaml:7:34: error: .*spent its total matching time.*\[bad-pattern\]$' format.out \
+        "format: no positioned bad-pattern for the spent budget"
+    expect_grep '^big.csv:[0-9]*: note: on this row' format.out "format: no note at the row where it stopped"
+    # The same pattern in a rulebook, against 3,000 descriptions (14 s before).
+    printf '%s\n' 'knowable_rulebook: 1' 'names:' "  - {pattern: '^(a|aa)+\$', applies_to: description, why: slow}" \
+        >slow.yaml
+    awk 'BEGIN {
+        print "knowable: 1\ndataset: d\nprediction: {moment: x, target: t, label_known: y}\nevents: {x: {}, y: {after: x}}"
+        print "sources: {s: {kind: internal}}\ncolumns:\n  t: {role: target, known: y}"
+        for (i = 0; i < 3000; i++) printf "  c%d: {known: x, source: s, description: aaaaaaaaaaaaaaaaaaaaaaaaaab}\n", i
+    }' >desc.knowable.yaml
+    run names check --rulebook slow.yaml desc.knowable.yaml
+    expect_rc 1
+    n=$(grep -c 'error: the rulebook pattern .* is no longer matched, from .*\[bad-pattern\]$' names.out)
+    [ "$n" = 1 ] || fail "names: $n reports of the spent pattern, expected 1"
+    expect_grep '^slow.yaml:3:[0-9]*: note: the pattern is defined here; it is not matched against this or any later' \
+        names.out "names: no note at the pattern"
+}
+
 fn=case_$(echo "$case" | tr - _)
 command -v "$fn" >/dev/null 2>&1 || { echo "no case '$case'"; exit 1; }
 "$fn"
