@@ -15,7 +15,7 @@ if [ -f "$dir/$base.args" ]; then
 fi
 cd "$dir" || exit 1
 # shellcheck disable=SC2086
-actual=$(KNOWABLE_TODAY=2026-06-01 NO_COLOR=1 ${KNOWABLE_WRAPPER:-} "$bin" check $args "$base.knowable.yaml" 2>&1; echo "exit $?")
+actual=$(KNOWABLE_TODAY=2026-06-01 NO_COLOR=1 ${KNOWABLE_WRAPPER:-} "$bin" check $args -- "$base.knowable.yaml" 2>&1; echo "exit $?")
 if [ "${KNOWABLE_UPDATE_GOLDEN:-}" = 1 ]; then
     printf '%s\n' "$actual" > "$base.expected"
     echo "updated $dir/$base.expected"

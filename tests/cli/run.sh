@@ -367,6 +367,57 @@ case_dashdash() {
     expect included.out 'is a rulebook'
 }
 
+# ---- item 10: the README's CI lines, as they stand ------------------------
+# readme_block: the sh block after the "CI lines" marker of the README.
+readme_block() {
+    awk '/<!-- CI lines:/ { found = 1; next }
+         found && /^```sh/ { inside = 1; next }
+         inside && /^```/ { exit }
+         inside { print }' "$src/README.md"
+}
+
+case_readme_ci() {
+    if ! command -v git >/dev/null 2>&1; then
+        echo "git missing"
+        exit 77
+    fi
+    readme_block >ci-lines.sh
+    [ -s ci-lines.sh ] || { fail "no CI block after the marker in README.md"; return; }
+    grep -q -- ' -- \$(git ls-files' ci-lines.sh || fail "README's CI lines do not put -- before the file names"
+    mkdir bin
+    ln -s "$knowable" bin/knowable
+    # A clean repository: the baseline is written (exit 0) and then used.
+    mkdir clean
+    (
+        cd clean || exit 1
+        git init -q . && git config user.email ci@example.invalid && git config user.name ci
+        register shared.yaml P5D
+        schema late.knowable.yaml shared.yaml
+        git add -A
+        PATH="../bin:$PATH" sh -e ../ci-lines.sh
+    ) >clean.out 2>&1
+    rc=$?
+    name=clean
+    expect_rc 0
+    [ -f clean/.knowable-baseline.json ] || fail "clean: no baseline written"
+    # A pull request adds an option-named file and a rulebook that turns
+    # everything off: the same lines must not pass.
+    (
+        cd clean || exit 1
+        printf 'knowable_rulebook: 1\nseverity: {after-moment: off}\n' >off.knowable.yaml
+        : >./--rulebook=off.knowable.yaml
+        schema new-late.knowable.yaml shared.yaml
+        git add -A
+        PATH="../bin:$PATH" sh -c "$(sed -n 3p ../ci-lines.sh)"
+    ) >attack.out 2>&1
+    rc=$?
+    name=attack
+    sed 's/^/    clean| /' clean.out | head -n 6
+    sed 's/^/    attack| /' attack.out | head -n 6
+    [ "$rc" = 0 ] && fail "attack: the README's check line passed with --rulebook=off.knowable.yaml in the tree"
+    expect attack.out 'is a rulebook'
+}
+
 "case_$(echo "$case" | tr '-' '_')"
 if [ "$fails" -ne 0 ]; then
     echo "$case: $fails failure(s)"
