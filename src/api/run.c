@@ -12,6 +12,7 @@
 #include "../report/render.h"
 #include "../util/names.h"
 #include "../util/text.h"
+#include "../yaml/cache.h"
 
 static const char *today(kn_arena *a, const kn_options *o)
 {
@@ -148,6 +149,10 @@ kn_unit *kn_run_load(kn_run *r, const char *path)
     lo.stdin_name = r->opt->stdin_name;
     kn_yaml_limits_default(&lo.limits);
     lo.rulebook = u->rulebook;
+    if (!r->files) {
+        r->files = kn_file_cache_new(r->arena);
+    }
+    lo.cache = r->files;
     u->schema = kn_schema_load(r->arena, r->sink, path, &lo);
     return u;
 }

@@ -38,6 +38,7 @@ typedef struct kn_run {
     kn_rulebook *builtin;     /* when nothing is named or discovered */
     kn_vec *units;            /* kn_unit * */
     kn_vec *outputs;          /* kn_defer * of each kn_output opened */
+    struct kn_file_cache *files; /* included files parsed once per run (yaml/cache.h) */
     bool failed;              /* the run cannot be done: exit 2 */
 } kn_run;
 

@@ -15,6 +15,7 @@
 
 #include "../report/yaml_sink.h"
 #include "../util/names.h"
+#include "../yaml/cache.h"
 #include "../util/path.h"
 #include "../util/text.h"
 #include "shape.h"
@@ -1057,7 +1058,11 @@ static void load_file(ld *l, const char *real, const char *display, bool main_fi
 {
     kn_yaml_reporter rep = kn_sink_yaml_reporter(l->sink);
     const char *from = main_file && l->stdin_real ? "/dev/stdin" : real;
-    kn_node *root = kn_yaml_load_file(l->a, &rep, from, display, &l->opt->limits);
+    /* An included file comes from the run's cache when there is one: a
+     * register shared by many schemas is parsed once per run. */
+    kn_node *root = !main_file && l->opt->cache
+                        ? kn_file_cache_load(l->opt->cache, &rep, real, display, &l->opt->limits)
+                        : kn_yaml_load_file(l->a, &rep, from, display, &l->opt->limits);
     if (!root) {
         l->errors = true;
         return;

@@ -324,6 +324,7 @@ typedef struct kn_load_options {
     kn_yaml_limits limits;
     const struct kn_rulebook *rulebook; /* for compiling patterns, may be NULL */
     const char *stdin_name; /* the path a schema read from "-" stands for, or NULL */
+    struct kn_file_cache *cache; /* included files parsed once per run (yaml/cache.h); NULL: none */
 } kn_load_options;
 
 /* Loads a schema file and its includes; path "-" reads standard input
