@@ -1613,28 +1613,40 @@ static const kn_node *block_clock(const dur_block *b)
  * hours, minutes or seconds (or NULL).  With report, pushes the hints: a
  * duration in months or years beside such a duration, and a latency or
  * delay in months also against file_clock (the file's first one). */
-static const kn_node *hint_block(ld *l, const kn_node *entry, bool report, const kn_node *file_clock)
+static const kn_node *hint_block(ld *l, const kn_node *entry, bool report, const kn_node *file_clock,
+                                 bool *calendar)
 {
     if (!entry || entry->kind != KN_NODE_MAP) {
         return NULL;
     }
-    static const char *const lag_keys[] = {"latency", "refresh", "matures", "delay", "gap", "embargo"};
     dur_block b;
     b.n = 0;
-    for (size_t i = 0; i < sizeof lag_keys / sizeof *lag_keys; i++) {
-        hint_take_lag(&b, map_get(entry, lag_keys[i]), i == 0 || i == 3);
-    }
-    static const char *const rel_keys[] = {"after", "before"};
-    for (size_t i = 0; i < 2; i++) {
-        const kn_node *rel = map_get(entry, rel_keys[i]);
-        for (size_t j = 0; rel && rel->kind == KN_NODE_MAP && j < rel->u.map.n; j++) {
-            hint_take_lag(&b, rel->u.map.pairs[j].value, false);
+    /* One pass over the block's keys; most are neither durations nor lags. */
+    for (size_t i = 0; i < entry->u.map.n; i++) {
+        const char *k = kn_node_str(entry->u.map.pairs[i].key);
+        const kn_node *v = entry->u.map.pairs[i].value;
+        if (!k) {
+            continue;
+        }
+        if (strcmp(k, "latency") == 0 || strcmp(k, "delay") == 0) {
+            hint_take_lag(&b, v, true);
+        } else if (strcmp(k, "refresh") == 0 || strcmp(k, "matures") == 0 || strcmp(k, "gap") == 0 ||
+                   strcmp(k, "embargo") == 0) {
+            hint_take_lag(&b, v, false);
+        } else if (strcmp(k, "after") == 0 || strcmp(k, "before") == 0) {
+            for (size_t j = 0; v && v->kind == KN_NODE_MAP && j < v->u.map.n; j++) {
+                hint_take_lag(&b, v->u.map.pairs[j].value, false);
+            }
+        } else if (strcmp(k, "window") == 0) {
+            hint_take(&b, map_get(v, "from"), false, NULL, false);
+            hint_take(&b, map_get(v, "to"), false, NULL, false);
+        } else if (strcmp(k, "join") == 0) {
+            hint_take(&b, map_get(map_get(v, "as_of"), "offset"), false, NULL, false);
         }
     }
-    const kn_node *window = map_get(entry, "window");
-    hint_take(&b, map_get(window, "from"), false, NULL, false);
-    hint_take(&b, map_get(window, "to"), false, NULL, false);
-    hint_take(&b, map_get(map_get(map_get(entry, "join"), "as_of"), "offset"), false, NULL, false);
+    for (size_t i = 0; i < b.n; i++) {
+        *calendar = *calendar || (b.slot[i].units & (KN_DU_MONTHS | KN_DU_YEARS));
+    }
 
     const kn_node *own = block_clock(&b);
     if (!report) {
@@ -1691,21 +1703,23 @@ static void hint_calendar_units(ld *l, const kn_node *root)
     }
     static const char *const collections[] = {"events", "sources", "columns"};
     const kn_node *file_clock = NULL;
+    bool calendar = false;
     for (int pass = 0; pass < 2; pass++) {
         for (size_t i = 0; i < 3; i++) {
             const kn_node *c = map_get(root, collections[i]);
             for (size_t j = 0; c && c->kind == KN_NODE_MAP && j < c->u.map.n; j++) {
-                const kn_node *found = hint_block(l, c->u.map.pairs[j].value, pass == 1, file_clock);
+                const kn_node *found = hint_block(l, c->u.map.pairs[j].value, pass == 1, file_clock, &calendar);
                 if (pass == 0 && !file_clock) {
                     file_clock = found;
                 }
             }
         }
-        const kn_node *found = hint_block(l, map_get(root, "split"), pass == 1, file_clock);
+        const kn_node *found = hint_block(l, map_get(root, "split"), pass == 1, file_clock, &calendar);
         if (pass == 0 && !file_clock) {
             file_clock = found;
         }
-        if (!file_clock) {
+        /* The second pass only reports: nothing to report without both kinds. */
+        if (!file_clock || !calendar) {
             return;
         }
     }
