@@ -202,7 +202,17 @@ void kn_run_render(kn_run *r, FILE *out, kn_format fmt)
     for (size_t i = 0; i < r->units->len; i++) {
         judged += units[i]->rulebook != NULL;
     }
-    kn_render_opts ro = {o->color, o->quiet, o->show_waived, judged};
+    /* The rulebooks in force, when some schema is not judged by the
+     * built-in one alone, in the order first used. */
+    const char *names = "";
+    kn_name_map *seen = kn_names_new(r->arena);
+    for (size_t i = 0; i < r->units->len; i++) {
+        const kn_rulebook *rb = units[i]->rulebook;
+        if (rb && strcmp(rb->origin, "(built-in)") != 0 && kn_names_put(seen, rb->origin, seen)) {
+            names = *names ? kn_printf(r->arena, "%s, %s", names, rb->origin) : rb->origin;
+        }
+    }
+    kn_render_opts ro = {o->color, o->quiet, o->show_waived, judged, names};
     switch (fmt) {
     case KN_FORMAT_JSON:
         kn_render_json(out, r->sink, &ro);

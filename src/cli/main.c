@@ -59,6 +59,10 @@ static const char check_help[] =
     "  --max-rows N           sample at most N data rows (reservoir sampling)\n"
     "  -q, --quiet            diagnostics only: no notes, no summary\n"
     "\n"
+    "rulebook: without --rulebook, each schema is judged under the nearest\n"
+    ".knowable-rules.yaml in its folder or a parent (no higher than its repository\n"
+    "or --root), else the built-in default; `knowable rules SCHEMA` shows which.\n"
+    "\n"
     "exit status: 0 nothing at or above --fail-on, 1 findings, 2 the check could not be done\n";
 
 static const char explain_help[] = "usage: knowable explain RULE\n\nWhat RULE finds, why it matters, an example and how to fix it.\n";

@@ -12,6 +12,8 @@ typedef struct kn_render_opts {
     bool quiet;
     bool show_waived;
     size_t n_schemas;
+    const char *rulebooks; /* the rulebook files in force, when not only the
+                              built-in one ("a.yaml, b.yaml"); NULL or "" */
 } kn_render_opts;
 
 /* FILE:LINE:COL: SEVERITY: MESSAGE [RULE], notes, then the summary line.

@@ -97,6 +97,11 @@ void kn_render_summary(FILE *out, const kn_sink *s, const kn_render_opts *o)
         fprintf(out, " (%zu matched the baseline)", b);
     }
     fprintf(out, " in %zu schema%s", o->n_schemas, o->n_schemas == 1 ? "" : "s");
+    if (o->rulebooks && *o->rulebooks) {
+        fputs(" (rulebook ", out);
+        kn_fput_term(out, o->rulebooks, strlen(o->rulebooks));
+        fputc(')', out);
+    }
     unsigned long long kept, total;
     if (kn_sink_sample(s, &kept, &total)) {
         fprintf(out, "; data statistics on a sample of %llu of %llu rows", kept, total);

@@ -37,7 +37,7 @@ int LLVMFuzzerTestOneInput(const uint8_t *data, size_t size)
     kn_rulebook_load(rb, a, sink, path);
     kn_rulebook_apply(rb, sink);
     kn_sink_finish(sink, NULL);
-    kn_render_opts ro = {false, false, true, 1};
+    kn_render_opts ro = {false, false, true, 1, NULL};
     kn_render_text(fuzz_devnull(), sink, &ro);
     kn_arena_free(a);
     return 0;

@@ -54,7 +54,7 @@ static char *render(render_fn fn, fixture *f, bool show_waived)
     size_t len = 0;
     FILE *out = open_memstream(&buf, &len);
     assert_non_null(out);
-    kn_render_opts o = {false, false, show_waived, 1};
+    kn_render_opts o = {false, false, show_waived, 1, NULL};
     fn(out, f->s, &o);
     fclose(out);
     return buf;
