@@ -189,12 +189,99 @@ static scored *radix_sort(scored *v, scored *tmp, size_t n, size_t (*count)[RADI
     return v;
 }
 
+/* Floats to unsigned keys with the same order. */
+static uint32_t order_key32(float v)
+{
+    if (v == 0.0f) {
+        v = 0.0f;
+    }
+    uint32_t bits;
+    memcpy(&bits, &v, sizeof bits);
+    return (bits & UINT32_C(0x80000000)) ? ~bits : bits ^ UINT32_C(0x80000000);
+}
+
+/* Twice the Mann-Whitney U over scores sorted by key, tie groups counted
+ * together. */
+#define TWO_U(v, m, key_of, pos_of, two_u, neg_below)                        \
+    for (size_t i_ = 0; i_ < (m);) {                                         \
+        uint64_t pos_g = 0, neg_g = 0;                                       \
+        size_t j_ = i_;                                                      \
+        while (j_ < (m) && key_of((v)[j_]) == key_of((v)[i_])) {             \
+            pos_g += pos_of((v)[j_]);                                        \
+            neg_g += 1 - pos_of((v)[j_]);                                    \
+            j_++;                                                            \
+        }                                                                    \
+        (two_u) += pos_g * (2 * (neg_below) + neg_g);                        \
+        (neg_below) += neg_g;                                                \
+        i_ = j_;                                                             \
+    }
+
+#define PACKED_KEY(w) ((w) >> 32)
+#define PACKED_POS(w) ((w)&1u)
+
+/* The AUC of scores that are all exactly 4-byte floats (the sample's
+ * numeric cells): key and class packed in one word, two 16-bit passes of
+ * an LSD radix sort over the key.  Returns false when a score is not a
+ * float (the caller then sorts 64-bit keys). */
+static bool auc_of_floats(kn_arena *a, const double *score, const bool *positive, size_t n, kn_auc *out)
+{
+    for (size_t i = 0; i < n; i++) {
+        if (!isnan(score[i]) && (double)(float)score[i] != score[i]) {
+            return false;
+        }
+    }
+    kn_defer *d = kn_arena_defer(a, free, NULL);
+    uint64_t *buf = kn_xrealloc(a, NULL, 2 * n * sizeof *buf + 2 * 65536 * sizeof(size_t));
+    d->ptr = buf;
+    uint64_t *tmp = buf + n;
+    size_t *count = (size_t *)(void *)(buf + 2 * n);
+    memset(count, 0, 2 * 65536 * sizeof *count);
+    size_t m = 0;
+    for (size_t i = 0; i < n; i++) {
+        if (isnan(score[i])) {
+            continue;
+        }
+        uint64_t k = order_key32((float)score[i]);
+        buf[m++] = k << 32 | (positive[i] ? 1u : 0u);
+        count[k & 0xffff]++;
+        count[65536 + (k >> 16)]++;
+        out->n_pos += positive[i];
+    }
+    out->n_neg = m - out->n_pos;
+    if (out->n_pos && out->n_neg) {
+        uint64_t *from = buf, *to = tmp;
+        for (int p = 0; p < 2; p++) {
+            size_t *c = count + 65536 * p, sum = 0;
+            for (size_t j = 0; j < 65536; j++) {
+                size_t t = c[j];
+                c[j] = sum;
+                sum += t;
+            }
+            for (size_t i = 0; i < m; i++) {
+                to[c[(from[i] >> (32 + 16 * p)) & 0xffff]++] = from[i];
+            }
+            uint64_t *swap = from;
+            from = to;
+            to = swap;
+        }
+        uint64_t two_u = 0, neg_below = 0;
+        TWO_U(from, m, PACKED_KEY, PACKED_POS, two_u, neg_below)
+        out->auc = (double)two_u / (2.0 * (double)out->n_pos * (double)out->n_neg);
+        out->separation = out->auc >= 0.5 ? out->auc : 1.0 - out->auc;
+    }
+    kn_defer_run(a, d);
+    return true;
+}
+
 /* ROC AUC as the Mann-Whitney U statistic with average ranks for ties:
  * after one sort, each tie group adds pos_g * (neg_below + neg_g / 2). */
 bool kn_stats_auc(kn_arena *a, const double *score, const bool *positive, size_t n, kn_auc *out)
 {
     memset(out, 0, sizeof *out);
     out->auc = out->separation = 0.5;
+    if (n > RADIX_MIN && n <= SIZE_MAX / 64 && auc_of_floats(a, score, positive, n, out)) {
+        return out->n_pos && out->n_neg;
+    }
     /* Small inputs are sorted by comparison: the radix sort's counts
      * (96 KiB) would cost more than the sort on a wide file of few rows. */
     const size_t counts_size = n > RADIX_MIN ? RADIX_PASSES * RADIX_SIZE * sizeof(size_t) : 0;
@@ -232,18 +319,9 @@ bool kn_stats_auc(kn_arena *a, const double *score, const bool *positive, size_t
     }
     /* twice U, exact in integers */
     uint64_t two_u = 0, neg_below = 0;
-    for (size_t i = 0; i < m;) {
-        uint64_t pos_g = 0, neg_g = 0;
-        size_t j = i;
-        while (j < m && v[j].key == v[i].key) {
-            pos_g += v[j].positive;
-            neg_g += 1 - v[j].positive;
-            j++;
-        }
-        two_u += pos_g * (2 * neg_below + neg_g);
-        neg_below += neg_g;
-        i = j;
-    }
+#define SCORED_KEY(e) ((e).key)
+#define SCORED_POS(e) ((e).positive)
+    TWO_U(v, m, SCORED_KEY, SCORED_POS, two_u, neg_below)
     kn_defer_run(a, d);
     out->auc = (double)two_u / (2.0 * (double)out->n_pos * (double)out->n_neg);
     out->separation = out->auc >= 0.5 ? out->auc : 1.0 - out->auc;

@@ -111,13 +111,20 @@ def main():
         u_block("random categories #%d (seed 4177, n=%d)" % (i, n), xs, ys)
 
     # larger inputs, above the 4,096 scores where the AUC switches from a
-    # comparison sort to the radix sort (invented, seeded)
+    # comparison sort to a radix sort: 32-bit keys when every score is a
+    # 4-byte float, as the sample's numbers are (invented, seeded)
     rng = random.Random(4178)
     for i in range(6):
         n = rng.randint(5000, 20000)
         scores = [rng.randint(0, rng.choice([10, 1000, 10 ** 6])) * rng.choice([1.0, -0.25]) for _ in range(n)]
         labels = [1 if rng.random() < 0.3 else 0 for _ in range(n)]
         auc_block("large random ties #%d (seed 4178, n=%d)" % (i, n), scores, labels)
+    # and scores that are not 4-byte floats (the 64-bit radix path)
+    for i in range(3):
+        n = rng.randint(5000, 20000)
+        scores = [rng.random() * rng.choice([1.0, 1e-300, -3.0]) for _ in range(n)]
+        labels = [1 if rng.random() < 0.4 else 0 for _ in range(n)]
+        auc_block("large random doubles #%d (seed 4178, n=%d)" % (i, n), scores, labels)
 
     text = "".join(b[1] for b in blocks)
     res = subprocess.run([probe], input=text, capture_output=True, text=True, check=False)
