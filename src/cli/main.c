@@ -97,7 +97,62 @@ typedef struct args {
     const char *svg;
     const char *color; /* auto|always|never */
     bool help;
+    const char *seen[64]; /* the options given, by their long names (first 64) */
+    size_t n_seen;
 } args;
+
+/* Options that belong to some commands only, and the commands (a
+ * space-separated list) that take each; any other option is common to
+ * every command that reads schemas or writes a report.  `check --svg` is a
+ * usage error (exit 2), not an option silently ignored. */
+static const struct {
+    const char *option, *commands;
+} own_options[] = {
+    {"--data", "check"},          {"--baseline", "check"},   {"--write-baseline", "check"},
+    {"--fail-on", "check"},       {"--show-waived", "check"}, {"--max-rows", "check init"},
+    {"--svg", "timeline"},        {"--force", "init"},       {"--stdin-name", "check sources timeline rules"},
+};
+
+/* The first option given to cmd that belongs to other commands, or NULL. */
+static const char *foreign_option(const args *ar, const char *cmd)
+{
+    size_t lc = strlen(cmd);
+    for (size_t i = 0; i < ar->n_seen; i++) {
+        for (size_t k = 0; k < sizeof own_options / sizeof *own_options; k++) {
+            if (strcmp(ar->seen[i], own_options[k].option) != 0) {
+                continue;
+            }
+            bool ok = false;
+            for (const char *c = own_options[k].commands; *c && !ok;) {
+                size_t n = strcspn(c, " ");
+                ok = n == lc && strncmp(c, cmd, n) == 0;
+                c += n;
+                c += *c == ' ';
+            }
+            if (!ok) {
+                return own_options[k].option;
+            }
+        }
+    }
+    return NULL;
+}
+
+/* A copy of the first n bytes of s that lives to the end of the process,
+ * from a fixed pool (a command line holds few options; a name that does
+ * not fit is kept as ""). */
+static const char *kn_cli_strndup(const char *s, size_t n)
+{
+    static char pool[4096];
+    static size_t used;
+    if (used + n + 1 > sizeof pool) {
+        return "";
+    }
+    char *p = pool + used;
+    memcpy(p, s, n);
+    p[n] = '\0';
+    used += n + 1;
+    return p;
+}
 
 __attribute__((format(printf, 1, 2)))
 static int bad(const char *fmt, ...)
@@ -268,6 +323,14 @@ static int parse(int argc, char **argv, int first, args *ar)
             }
             ar->positional[ar->n_positional++] = a;
             continue;
+        }
+        if (strcmp(a, "--") != 0 && ar->n_seen < sizeof ar->seen / sizeof *ar->seen) {
+            /* The long name, without "=VALUE"; -o, -q and -h by theirs. */
+            const char *name = strcmp(a, "-o") == 0 ? "--output"
+                               : strcmp(a, "-q") == 0 ? "--quiet"
+                               : strcmp(a, "-h") == 0 ? "--help"
+                                                      : kn_cli_strndup(a, strcspn(a, "="));
+            ar->seen[ar->n_seen++] = name;
         }
         if (strcmp(a, "--") == 0) {
             only_positional = true;
@@ -524,6 +587,10 @@ static int dispatch(int argc, char **argv)
     if (ar.help) {
         fputs(h, stdout);
         return KN_EXIT_OK;
+    }
+    const char *foreign = foreign_option(&ar, cmd);
+    if (foreign) {
+        return bad("%s does not take %s (see 'knowable help %s')", cmd, foreign, cmd);
     }
     if (strcmp(cmd, "check") == 0) {
         if (!ar.n_positional) {

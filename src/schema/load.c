@@ -330,6 +330,13 @@ static bool check_value(ld *l, const owner *o, const kn_key_spec *k, kn_node *v)
     }
     case KN_V_VERSION: {
         long long x;
+        if (v->kind == KN_NODE_SCALAR && !v->plain) {
+            /* knowable: "1" is a string that only looks like the version. */
+            err(l, KN_R_SCHEMA_SHAPE, v,
+                "the format version must be the number 1, not the quoted string \"%s\": write knowable: 1",
+                node_esc(l, v));
+            return false;
+        }
         if (!kn_node_int(v, &x) || x != 1) {
             err(l, KN_R_SCHEMA_SHAPE, v, "format version '%s' is not supported; this knowable reads version 1",
                 v->kind == KN_NODE_SCALAR ? node_esc(l, v) : kn_node_kind_name(v));
@@ -907,8 +914,11 @@ static void load_split(ld *l, const kn_key_spec *spec, kn_node *v)
         sp->has_gap = true;
         sp->gap_node = vals[X_GAP];
     }
-    if (vals[X_FOLDS]) {
-        kn_node_int(vals[X_FOLDS], &sp->folds);
+    if (vals[X_FOLDS] && kn_node_int(vals[X_FOLDS], &sp->folds) && sp->folds < 2) {
+        /* A split into fewer than two folds keeps no rows apart. */
+        err(l, KN_R_SCHEMA_SHAPE, vals[X_FOLDS], "'folds' of the split must be at least 2; found %lld",
+            (long long)sp->folds);
+        sp->folds = 0;
     }
 }
 

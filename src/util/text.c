@@ -273,6 +273,25 @@ char *kn_escape_term(kn_arena *a, const char *s, size_t len)
     return b.data;
 }
 
+/* The code point of the valid UTF-8 sequence p (n bytes) when it is a C1
+ * control (U+0080..U+009F), a bidirectional control (U+061C, U+200E,
+ * U+200F, U+202A..U+202E, U+2066..U+2069) or a line or paragraph separator
+ * (U+2028, U+2029); else 0. */
+static uint32_t hidden_code_point(const unsigned char *p, size_t n)
+{
+    uint32_t cp;
+    if (n == 2) {
+        cp = ((uint32_t)(p[0] & 0x1f) << 6) | (p[1] & 0x3f);
+    } else if (n == 3) {
+        cp = ((uint32_t)(p[0] & 0x0f) << 12) | ((uint32_t)(p[1] & 0x3f) << 6) | (p[2] & 0x3f);
+    } else {
+        return 0;
+    }
+    bool hidden = (cp >= 0x80 && cp <= 0x9f) || cp == 0x61c || cp == 0x200e || cp == 0x200f ||
+                  (cp >= 0x2028 && cp <= 0x202e) || (cp >= 0x2066 && cp <= 0x2069);
+    return hidden ? cp : 0;
+}
+
 void kn_fput_json(FILE *f, const char *s, size_t len)
 {
     const unsigned char *p = (const unsigned char *)s;
@@ -303,7 +322,14 @@ void kn_fput_json(FILE *f, const char *s, size_t len)
             i++;
         } else {
             size_t n = kn_utf8_valid_seq(p + i, len - i);
-            if (n) {
+            uint32_t cp = n ? hidden_code_point(p + i, n) : 0;
+            if (cp) {
+                /* Valid JSON either way; escaped, a reader of the raw file
+                 * (or a viewer that shows it) sees the control instead of
+                 * being moved by it. */
+                fprintf(f, "\\u%04x", (unsigned)cp);
+                i += n;
+            } else if (n) {
                 fwrite(p + i, 1, n, f);
                 i += n;
             } else {

@@ -42,8 +42,9 @@ void kn_fput_term(FILE *f, const char *s, size_t len);
 /* The same into arena memory. */
 char *kn_escape_term(kn_arena *a, const char *s, size_t len);
 
-/* Writes s as the inside of a JSON string: quotes, backslashes and control
- * characters escaped; invalid UTF-8 replaced by U+FFFD. */
+/* Writes s as the inside of a JSON string: quotes, backslashes, control
+ * characters, C1 controls, bidirectional controls and the line and
+ * paragraph separators escaped (\u202e); invalid UTF-8 replaced by U+FFFD. */
 void kn_fput_json(FILE *f, const char *s, size_t len);
 /* Writes "s" (with the quotes). */
 void kn_fput_json_str(FILE *f, const char *s);

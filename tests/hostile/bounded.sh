@@ -421,6 +421,43 @@ case_include_cache() {
     [ "$n" = 100 ] || fail "many: $n after-moment findings, expected one per schema"
 }
 
+case_minor_inputs() {
+    base() {
+        printf '%s\n' "knowable: $1" 'dataset: d' 'prediction: {moment: x, target: t, label_known: y}' \
+            'events: {x: {}, y: {after: x}}' 'sources: {s: {kind: internal}}' 'columns:' '  t: {role: target, known: y}'
+    }
+    # split.folds of -1 and 0 were accepted.
+    for f in -1 0; do
+        { base 1; echo "  w: {known: x, source: s}"; echo "split: {method: random, folds: $f}"; } >folds$f.knowable.yaml
+        run folds$f check folds$f.knowable.yaml
+        expect_rc 1
+        expect_grep "^folds$f.knowable.yaml:9:32: error: 'folds' of the split must be at least 2; found $f \[schema-shape\]\$" \
+            folds$f.out "folds $f: not refused at the value"
+    done
+    # knowable: "1" said that version 1 is not supported when 1 is.
+    base '"1"' >quoted.knowable.yaml
+    run quoted check quoted.knowable.yaml
+    expect_rc 1
+    expect_grep '^quoted.knowable.yaml:1:11: error: the format version must be the number 1, not the quoted string "1"' \
+        quoted.out "quoted: the message does not say the version is quoted"
+    # JSON and SARIF carried U+202E and C1 controls raw.
+    { base 1; printf '  %s: {known: y, source: s}\n' '"total\u202ecost\u0085"'; } >bidi.knowable.yaml
+    for fmt in json sarif; do
+        run $fmt check --format $fmt bidi.knowable.yaml
+        expect_rc 0
+        if LC_ALL=C grep -q -e "$(printf '\342\200\256')" -e "$(printf '\302\205')" $fmt.out; then
+            fail "$fmt: a raw bidirectional or C1 control"
+        fi
+        expect_grep 'total\\u202ecost\\u0085' $fmt.out "$fmt: the controls are not escaped as \\u202e and \\u0085"
+    done
+    # check took other commands' options silently.
+    base 1 >plain.knowable.yaml
+    run svg check --svg picture.svg plain.knowable.yaml
+    expect_rc 2
+    expect_grep 'check does not take --svg' svg.err "svg: no usage error"
+    [ -e picture.svg ] && fail "svg: check wrote a picture"
+}
+
 fn=case_$(echo "$case" | tr - _)
 command -v "$fn" >/dev/null 2>&1 || { echo "no case '$case'"; exit 1; }
 "$fn"
