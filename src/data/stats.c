@@ -3,6 +3,7 @@
  * ids, quantile bins, open-addressing hash tables for k-anonymity groups
  * and split overlap, and the seeded
  * generator behind reservoir sampling.  Hands on numbers only. */
+#define _DEFAULT_SOURCE /* madvise's MADV_HUGEPAGE */
 #include "stats.h"
 
 #include "hash.h"
@@ -10,6 +11,7 @@
 #include <math.h>
 #include <stdlib.h>
 #include <string.h>
+#include <sys/mman.h>
 
 /* ---- hashing ------------------------------------------------------------- */
 
@@ -55,14 +57,35 @@ static bool slot_used(const slot *s)
     return (s->a | s->b) != 0;
 }
 
+/* A zeroed slot array.  From 2 MiB on it is 2 MiB-aligned and marked for
+ * transparent huge pages: a table of a large file is probed at random,
+ * and with 4 KiB pages nearly every probe would also miss the TLB. */
+static slot *slots_alloc(kn_arena *a, size_t bytes)
+{
+    const size_t huge = (size_t)2 << 20;
+    slot *p;
+    if (bytes < huge) {
+        p = kn_xrealloc(a, NULL, bytes);
+    } else {
+        p = aligned_alloc(huge, bytes); /* bytes is a power of two >= huge */
+        if (!p) {
+            kn_arena_oom(a);
+        }
+#ifdef MADV_HUGEPAGE
+        (void)madvise(p, bytes, MADV_HUGEPAGE);
+#endif
+    }
+    memset(p, 0, bytes);
+    return p;
+}
+
 static void u64map_grow(u64map *m)
 {
     size_t cap = m->cap ? m->cap * 2 : 64;
     if (cap > SIZE_MAX / sizeof(slot)) {
         kn_arena_oom(m->arena);
     }
-    slot *fresh = kn_xrealloc(m->arena, NULL, cap * sizeof(slot));
-    memset(fresh, 0, cap * sizeof(slot));
+    slot *fresh = slots_alloc(m->arena, cap * sizeof(slot));
     for (size_t i = 0; i < m->cap; i++) {
         const slot *s = &m->slots[i];
         if (!slot_used(s)) {

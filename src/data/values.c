@@ -73,13 +73,8 @@ void kn_missing_init(kn_missing *m, const char *const *words, size_t n)
     }
 }
 
-bool kn_missing_test(const kn_missing *m, const char *s, size_t len)
+bool kn_missing_compare(const kn_missing *m, const char *s, size_t len)
 {
-    /* Most cells are ruled out by their length alone. */
-    if (len < 64 && !(m->lengths >> len & 1) && len && s[0] != ' ' && s[0] != '\t' && s[len - 1] != ' ' &&
-        s[len - 1] != '\t') {
-        return false;
-    }
     trim(&s, &len);
     if (len < 64 ? !(m->lengths >> len & 1) : !m->long_words) {
         return false;

@@ -40,7 +40,18 @@ typedef struct kn_missing {
 
 /* words must outlive m. */
 void kn_missing_init(kn_missing *m, const char *const *words, size_t n);
-bool kn_missing_test(const kn_missing *m, const char *s, size_t len);
+bool kn_missing_compare(const kn_missing *m, const char *s, size_t len);
+
+/* Inline because it runs once per cell: most cells are ruled out by their
+ * length alone (no word that long, no space to trim at either end). */
+static inline bool kn_missing_test(const kn_missing *m, const char *s, size_t len)
+{
+    if (len && len < 64 && !(m->lengths >> len & 1) && s[0] != ' ' && s[0] != '\t' && s[len - 1] != ' ' &&
+        s[len - 1] != '\t') {
+        return false;
+    }
+    return kn_missing_compare(m, s, len);
+}
 
 /* A decimal number: optional sign, digits with an optional '.' and
  * fraction (or '.' and a fraction alone), optional exponent e|E, sign,
