@@ -112,6 +112,13 @@ kn_status kn_init(const kn_options *o, const char *csv, FILE *out, FILE *err);
  * (to o->output when set). */
 kn_status kn_json_schema(const kn_options *o, FILE *out, FILE *err);
 
+/* `knowable lsp`: a Language Server (LSP 3.17, JSON-RPC) reading requests
+ * from in and answering on out until `exit` or the end of in; o gives
+ * --rulebook and --root as `check` takes them.  Returns 0 after shutdown
+ * and exit, 1 when the stream ended or exit came without shutdown, 2 when
+ * knowable was built without the language server. */
+kn_status kn_lsp(const kn_options *o, FILE *in, FILE *out, FILE *err);
+
 /* Output files are written to a temporary file in the same folder and
  * renamed into place; a path naming one of the inputs is refused, when the
  * file is opened and again when it is closed (kn_output_refuse adds the

@@ -153,6 +153,8 @@ kn_unit *kn_run_load(kn_run *r, const char *path)
         r->files = kn_file_cache_new(r->arena);
     }
     lo.cache = r->files;
+    lo.overlay = r->overlay;
+    lo.overlay_ctx = r->overlay_ctx;
     u->schema = kn_schema_load(r->arena, r->sink, path, &lo);
     return u;
 }

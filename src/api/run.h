@@ -40,6 +40,10 @@ typedef struct kn_run {
     kn_vec *outputs;          /* kn_defer * of each kn_output opened */
     struct kn_file_cache *files; /* included files parsed once per run (yaml/cache.h) */
     bool failed;              /* the run cannot be done: exit 2 */
+    /* Unsaved editor buffers standing for files (kn_load_options.overlay);
+     * NULL: files are read from disk. */
+    const char *(*overlay)(void *ctx, const char *real, size_t *len);
+    void *overlay_ctx;
 } kn_run;
 
 /* Sets a run up in arena a (which the caller's entry point owns).  command

@@ -26,6 +26,7 @@ static const char usage_text[] =
     "  timeline SCHEMA [--svg FILE]   each event and column placed relative to the moment\n"
     "  init DATA.csv [-o FILE]        draft a schema from a data sample\n"
     "  json-schema                    a JSON Schema of the schema format, for editors\n"
+    "  lsp [--rulebook F] [--root D]  a language server for editors (LSP over stdin/stdout)\n"
     "  help COMMAND                   help on one command (`knowable help help`)\n"
     "\n"
     "  --help, --version\n"
@@ -74,7 +75,7 @@ static const char rules_help[] =
 static const char help_help[] =
     "usage: knowable help [COMMAND]\n\n"
     "Without COMMAND, the list of commands; with one, its options.  The commands are\n"
-    "check, explain, rules, sources, timeline, init, json-schema and help.\n";
+    "check, explain, rules, sources, timeline, init, json-schema, lsp and help.\n";
 static const char sources_help[] =
     "usage: knowable sources [--format markdown|json] [-o FILE] [--root DIR] [--] SCHEMA...\n\n"
     "The register of feature sources: external sources first, with their provenance,\n"
@@ -87,6 +88,14 @@ static const char init_help[] =
     "usage: knowable init [-o FILE [--force]] [--max-rows N] [--] DATA.csv\n\n"
     "A draft schema from a CSV sample's header and values (the first N rows, default\n"
     "10,000), with placeholders to fill in.\n";
+static const char lsp_help[] =
+    "usage: knowable lsp [--rulebook FILE]... [--root DIR]\n\n"
+    "A Language Server (LSP 3.17, JSON-RPC over standard input and output) for editors:\n"
+    "the findings of `check` on open, change and save (unsaved buffers of the schema and\n"
+    "of its open registers are used), hover, go to definition, completion and code\n"
+    "actions.  Without --rulebook each schema uses the rulebook `check` would find.\n\n"
+    "exit status: 0 after shutdown and exit, 1 when the input ends or exit comes\n"
+    "without shutdown, 2 when knowable was built without the language server\n";
 static const char json_schema_help[] = "usage: knowable json-schema [-o FILE]\n\nA JSON Schema (draft-07) of the schema file format.\n";
 
 typedef struct args {
@@ -502,7 +511,8 @@ static kn_status run_json_schema(args *ar, FILE *out)
  * three letters), for "did you mean". */
 static const char *near_command(const char *word)
 {
-    static const char *const cmds[] = {"check", "explain", "rules", "sources", "timeline", "init", "json-schema", "help"};
+    static const char *const cmds[] = {"check",       "explain", "rules", "sources", "timeline", "init",
+                                       "json-schema", "lsp",     "help"};
     for (size_t i = 0; i < sizeof cmds / sizeof *cmds; i++) {
         const char *c = cmds[i];
         size_t lw = strlen(word), lc = strlen(c);
@@ -539,7 +549,7 @@ static const char *help_for(const char *cmd)
         const char *name, *text;
     } t[] = {{"check", check_help},       {"explain", explain_help},   {"rules", rules_help},
              {"sources", sources_help},   {"timeline", timeline_help}, {"init", init_help},
-             {"json-schema", json_schema_help}, {"help", help_help}};
+             {"json-schema", json_schema_help}, {"lsp", lsp_help}, {"help", help_help}};
     for (size_t i = 0; i < sizeof t / sizeof *t; i++) {
         if (strcmp(t[i].name, cmd) == 0) {
             return t[i].text;
@@ -630,6 +640,12 @@ static int dispatch(int argc, char **argv)
             return bad("%s takes one CSV file", "init");
         }
         return with_output(&ar, run_init);
+    }
+    if (strcmp(cmd, "lsp") == 0) {
+        if (ar.n_positional) {
+            return bad("%s takes no files (the editor sends them)", "lsp");
+        }
+        return kn_lsp(&ar.opt, stdin, stdout, stderr);
     }
     if (ar.n_positional) {
         return bad("%s takes no files", "json-schema");

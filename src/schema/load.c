@@ -1068,9 +1068,13 @@ static void load_file(ld *l, const char *real, const char *display, bool main_fi
 {
     kn_yaml_reporter rep = kn_sink_yaml_reporter(l->sink);
     const char *from = main_file && l->stdin_real ? "/dev/stdin" : real;
-    /* An included file comes from the run's cache when there is one: a
+    /* An editor's unsaved buffer stands for its file (knowable lsp); else
+     * an included file comes from the run's cache when there is one: a
      * register shared by many schemas is parsed once per run. */
-    kn_node *root = !main_file && l->opt->cache
+    size_t olen = 0;
+    const char *text = l->opt->overlay ? l->opt->overlay(l->opt->overlay_ctx, real, &olen) : NULL;
+    kn_node *root = text ? kn_yaml_parse(l->a, &rep, display, text, olen, &l->opt->limits)
+                    : !main_file && l->opt->cache
                         ? kn_file_cache_load(l->opt->cache, &rep, real, display, &l->opt->limits)
                         : kn_yaml_load_file(l->a, &rep, from, display, &l->opt->limits);
     if (!root) {

@@ -325,6 +325,11 @@ typedef struct kn_load_options {
     const struct kn_rulebook *rulebook; /* for compiling patterns, may be NULL */
     const char *stdin_name; /* the path a schema read from "-" stands for, or NULL */
     struct kn_file_cache *cache; /* included files parsed once per run (yaml/cache.h); NULL: none */
+    /* Text that stands for a file (an editor's unsaved buffer): given the
+     * file's real path, its text and length, or NULL to read the file.
+     * May be NULL.  The text must outlive the model. */
+    const char *(*overlay)(void *ctx, const char *real, size_t *len);
+    void *overlay_ctx;
 } kn_load_options;
 
 /* Loads a schema file and its includes; path "-" reads standard input

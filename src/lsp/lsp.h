@@ -1,0 +1,94 @@
+/* lsp.h - the inside of the language server (knowable lsp, SPEC §5.2):
+ * the documents the editor has open, the last analysis of each schema
+ * among them, and the requests answered from it.  server.c speaks the
+ * protocol; doc.c keeps the documents and converts positions; features.c
+ * answers hover, definition, completion and code actions. */
+#ifndef KN_LSP_LSP_H
+#define KN_LSP_LSP_H
+
+#include <knowable/knowable.h>
+
+#include <jansson.h>
+#include <stdbool.h>
+#include <stddef.h>
+
+#include "../api/run.h"
+#include "../report/view.h"
+
+/* One document the editor has open. */
+typedef struct kn_doc {
+    char *uri;
+    char *path;  /* the file the URI names (NULL: not a file: URI) */
+    char *real;  /* its real path (the loader's key for the overlay) */
+    char *text;  /* its current text (the editor's buffer) */
+    size_t len;
+    size_t *lines; /* byte offset of each line start */
+    size_t n_lines;
+    /* The last analysis of this document as a schema (NULL: none, or it is
+     * a register): the run's arena holds the model and the findings. */
+    kn_arena *arena;
+    kn_run *run;
+    kn_unit *unit;
+    kn_options opt;
+    const kn_view *view;
+    size_t n_view;
+    struct kn_doc *next;
+} kn_doc;
+
+typedef struct kn_server {
+    const kn_options *opt;
+    FILE *out, *err;
+    kn_doc *docs;
+    bool initialized, shut_down;
+    char **published; /* URIs given diagnostics last time (malloc) */
+    size_t n_published;
+} kn_server;
+
+/* --- doc.c --------------------------------------------------------------- */
+
+/* The path of a file: URI (percent-decoded), or NULL. */
+char *kn_uri_to_path(const char *uri);
+/* A file: URI for path (malloc). */
+char *kn_path_to_uri(const char *path);
+
+kn_doc *kn_doc_find(kn_server *s, const char *uri);
+/* Opens (or replaces) a document with text. */
+kn_doc *kn_doc_open(kn_server *s, const char *uri, const char *text, size_t len);
+void kn_doc_set_text(kn_doc *d, const char *text, size_t len);
+void kn_doc_close(kn_server *s, kn_doc *d);
+/* Frees the last analysis of d. */
+void kn_lsp_drop_analysis(kn_doc *d);
+/* The document whose real path is real, or NULL. */
+kn_doc *kn_doc_by_real(kn_server *s, const char *real);
+/* The document a display path of the model names (the schema's own path
+ * or an include), or NULL. */
+kn_doc *kn_doc_by_file(kn_server *s, const char *file);
+
+/* Byte offset of an LSP position (UTF-16 units) in d's text, clamped. */
+size_t kn_doc_offset(const kn_doc *d, long line, long character);
+/* The LSP position of a byte offset: line and UTF-16 character. */
+void kn_doc_position(const kn_doc *d, size_t offset, long *line, long *character);
+/* An LSP range for a model position: its token (a plain or quoted scalar,
+ * or one character) when the text is at hand, else an empty range. */
+json_t *kn_range_at(kn_server *s, const kn_pos *p);
+/* The byte length of the YAML token at offset in text. */
+size_t kn_token_len(const char *text, size_t len, size_t offset);
+/* {"uri", "range"} for a model position. */
+json_t *kn_location_at(kn_server *s, const kn_pos *p);
+/* The URI of a display path of the model (malloc). */
+char *kn_file_uri(kn_server *s, const char *file);
+
+/* --- server.c ------------------------------------------------------------ */
+
+/* The analysis (document and unit) that covers doc: its own when it is a
+ * schema, else that of an open schema including it.  NULL when none. */
+kn_doc *kn_model_for(kn_server *s, kn_doc *doc);
+
+/* --- features.c ---------------------------------------------------------- */
+
+json_t *kn_lsp_hover(kn_server *s, kn_doc *d, long line, long character);
+json_t *kn_lsp_definition(kn_server *s, kn_doc *d, long line, long character);
+json_t *kn_lsp_completion(kn_server *s, kn_doc *d, long line, long character);
+json_t *kn_lsp_code_actions(kn_server *s, kn_doc *d, long l0, long c0, long l1, long c1);
+
+#endif

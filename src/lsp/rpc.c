@@ -1,0 +1,149 @@
+/* rpc.c - the framing of LSP messages (rpc.h). */
+#include "rpc.h"
+
+#include <stdbool.h>
+#include <stdint.h>
+#include <stdlib.h>
+#include <string.h>
+#include <strings.h>
+
+#define MAX_LINE 1024
+#define MAX_LINES 32
+
+/* One header line without its line end; -1 at the end of the stream, -2
+ * when it is longer than MAX_LINE (the rest of it is read and dropped). */
+static int read_line(FILE *in, char *buf, size_t *n)
+{
+    size_t k = 0;
+    bool too_long = false;
+    int c;
+    while ((c = getc(in)) != EOF && c != '\n') {
+        if (k < MAX_LINE) {
+            buf[k++] = (char)c;
+        } else {
+            too_long = true;
+        }
+    }
+    if (c == EOF && k == 0 && !too_long) {
+        return -1;
+    }
+    if (k && buf[k - 1] == '\r') {
+        k--;
+    }
+    buf[k] = '\0';
+    *n = k;
+    return too_long ? -2 : (c == EOF ? -1 : 0);
+}
+
+/* The value of a Content-Length line: digits with optional blanks around;
+ * false when it is not a number or overflows. */
+static bool parse_length(const char *v, size_t *out)
+{
+    while (*v == ' ' || *v == '\t') {
+        v++;
+    }
+    if (*v < '0' || *v > '9') {
+        return false;
+    }
+    size_t n = 0;
+    for (; *v >= '0' && *v <= '9'; v++) {
+        size_t d = (size_t)(*v - '0');
+        if (n > (SIZE_MAX - d) / 10) {
+            return false;
+        }
+        n = n * 10 + d;
+    }
+    while (*v == ' ' || *v == '\t') {
+        v++;
+    }
+    *out = n;
+    return *v == '\0';
+}
+
+kn_rpc_result kn_rpc_read(FILE *in, size_t max, char **body, size_t *len)
+{
+    char line[MAX_LINE + 1];
+    bool have = false, bad = false, length_ok = false;
+    size_t length = 0, lines = 0, n;
+    for (;;) {
+        int r = read_line(in, line, &n);
+        if (r == -1) {
+            return KN_RPC_EOF;
+        }
+        if (r == -2 || ++lines > MAX_LINES) {
+            bad = true;
+            if (lines > MAX_LINES) {
+                /* A stream of lines without an empty one: give up on this
+                 * block so the caller answers, and start afresh. */
+                return KN_RPC_BAD_HEADER;
+            }
+            continue;
+        }
+        if (n == 0) {
+            if (lines == 1) {
+                lines = 0; /* stray empty lines between messages */
+                continue;
+            }
+            break;
+        }
+        const char *colon = memchr(line, ':', n);
+        if (!colon) {
+            bad = true;
+            continue;
+        }
+        if ((size_t)(colon - line) == 14 && strncasecmp(line, "Content-Length", 14) == 0) {
+            if (have || !parse_length(colon + 1, &length)) {
+                bad = true;
+                length_ok = false;
+            } else {
+                length_ok = true;
+            }
+            have = true;
+        }
+    }
+    if (bad || !have) {
+        /* A usable length among bad headers: its body goes too, so the
+         * next message starts where the sender meant it to. */
+        bool len_ok = have && length_ok;
+        if (len_ok && !kn_rpc_skip(in, length)) {
+            return KN_RPC_EOF;
+        }
+        return KN_RPC_BAD_HEADER;
+    }
+    *len = length;
+    if (length > max) {
+        return KN_RPC_TOO_LARGE;
+    }
+    char *b = malloc(length + 1);
+    if (!b) {
+        return kn_rpc_skip(in, length) ? KN_RPC_TOO_LARGE : KN_RPC_EOF;
+    }
+    if (fread(b, 1, length, in) != length) {
+        free(b);
+        return KN_RPC_EOF;
+    }
+    b[length] = '\0';
+    *body = b;
+    return KN_RPC_MESSAGE;
+}
+
+int kn_rpc_skip(FILE *in, size_t n)
+{
+    char buf[4096];
+    while (n) {
+        size_t want = n < sizeof buf ? n : sizeof buf;
+        size_t got = fread(buf, 1, want, in);
+        if (got == 0) {
+            return 0;
+        }
+        n -= got;
+    }
+    return 1;
+}
+
+void kn_rpc_write(FILE *out, const char *body, size_t len)
+{
+    fprintf(out, "Content-Length: %zu\r\n\r\n", len);
+    fwrite(body, 1, len, out);
+    fflush(out);
+}

@@ -1,0 +1,472 @@
+/* server.c - `knowable lsp` (SPEC §5.2): the protocol loop, the documents'
+ * life cycle and the diagnostics.  Every change re-runs the pipeline of
+ * `check` (kn_run_load, kn_run_analyse, kn_run_finish) on each open schema,
+ * with the editor's buffers standing for the files they show, and publishes
+ * the findings per file: a finding in an included register goes to that
+ * register's URI, notes become relatedInformation. */
+#include "lsp.h"
+
+#include <setjmp.h>
+#include <stdlib.h>
+#include <string.h>
+
+#include "../util/arena.h"
+#include "rpc.h"
+#include "xalloc.h"
+
+/* JSON-RPC and LSP error codes. */
+enum {
+    PARSE_ERROR = -32700,
+    INVALID_REQUEST = -32600,
+    METHOD_NOT_FOUND = -32601,
+    INVALID_PARAMS = -32602,
+    SERVER_NOT_INITIALIZED = -32002,
+};
+
+static void send(kn_server *s, json_t *msg)
+{
+    if (!msg) {
+        return;
+    }
+    json_object_set_new(msg, "jsonrpc", json_string("2.0"));
+    char *body = json_dumps(msg, JSON_COMPACT);
+    if (body) {
+        kn_rpc_write(s->out, body, strlen(body));
+        free(body);
+    }
+    json_decref(msg);
+}
+
+static void reply(kn_server *s, json_t *id, json_t *result)
+{
+    send(s, json_pack("{s:O,s:o}", "id", id ? id : json_null(), "result", result ? result : json_null()));
+}
+
+static void reply_error(kn_server *s, json_t *id, int code, const char *message)
+{
+    send(s, json_pack("{s:O,s:{s:i,s:s}}", "id", id ? id : json_null(), "error", "code", code, "message",
+                      message));
+}
+
+/* --- Analysis ------------------------------------------------------------ */
+
+/* The loader's overlay: an open document's buffer stands for its file. */
+static const char *overlay(void *ctx, const char *real, size_t *len)
+{
+    kn_doc *d = kn_doc_by_real(ctx, real);
+    if (!d) {
+        return NULL;
+    }
+    *len = d->len;
+    return d->text;
+}
+
+/* A schema, as opposed to a register (SPEC §3.1): it has a top-level key
+ * that only a schema may have. */
+static bool is_schema(const kn_doc *d)
+{
+    static const char *const keys[] = {"dataset:", "prediction:", "columns:", "pipeline:", "split:"};
+    for (size_t i = 0; i < d->n_lines; i++) {
+        const char *line = d->text + d->lines[i];
+        size_t left = d->len - d->lines[i];
+        for (size_t k = 0; k < sizeof keys / sizeof *keys; k++) {
+            size_t n = strlen(keys[k]);
+            if (left >= n && memcmp(line, keys[k], n) == 0) {
+                return true;
+            }
+        }
+    }
+    return false;
+}
+
+/* Runs the pipeline of `check` on d with the buffers of every open
+ * document; keeps the run (model, timeline, findings) until the next one. */
+static void analyse(kn_server *s, kn_doc *d)
+{
+    kn_lsp_drop_analysis(d);
+    if (!d->path || !is_schema(d)) {
+        return;
+    }
+    kn_arena *a = kn_arena_new();
+    if (!a) {
+        return;
+    }
+    jmp_buf oom;
+    if (setjmp(oom)) {
+        kn_arena_free(a);
+        d->arena = NULL;
+        d->run = NULL;
+        d->unit = NULL;
+        d->view = NULL;
+        d->n_view = 0;
+        fputs("knowable lsp: out of memory while checking a schema\n", s->err);
+        return;
+    }
+    kn_arena_set_oom(a, &oom);
+    d->arena = a;
+    d->opt = *s->opt;
+    d->opt.stdin_name = d->path; /* the buffer stands for the file */
+    kn_run *r = kn_alloc(a, sizeof *r);
+    kn_run_init(r, a, "lsp", &d->opt, NULL, s->err);
+    r->overlay = overlay;
+    r->overlay_ctx = s;
+    d->unit = kn_run_load(r, "-");
+    kn_run_analyse(r, d->unit);
+    kn_run_finish(r);
+    d->view = kn_sink_view(r->sink, a, &d->n_view);
+    d->run = r;
+    kn_arena_set_oom(a, NULL);
+}
+
+kn_doc *kn_model_for(kn_server *s, kn_doc *doc)
+{
+    if (doc->unit && doc->unit->schema) {
+        return doc;
+    }
+    for (kn_doc *d = s->docs; d; d = d->next) {
+        const kn_schema *sc = d->unit ? d->unit->schema : NULL;
+        for (size_t i = 0; sc && doc->real && i < sc->n_files; i++) {
+            if (strcmp(sc->files[i].path, doc->real) == 0) {
+                return d;
+            }
+        }
+    }
+    return NULL;
+}
+
+static const int lsp_severity[] = {4, 3, 2, 1}; /* off, note, warning, error */
+
+static json_t *lsp_diagnostic(kn_server *s, const kn_view *v)
+{
+    const kn_rule_info *info = kn_rule_get(v->rule);
+    json_t *d = json_pack("{s:o,s:i,s:s,s:s,s:s}", "range", kn_range_at(s, &v->pos), "severity",
+                          lsp_severity[v->severity], "code", info->id, "source", "knowable", "message", v->message);
+    if (v->n_notes) {
+        json_t *rel = json_array();
+        for (size_t i = 0; i < v->n_notes; i++) {
+            const kn_view_note *n = &v->notes[i];
+            kn_pos p = n->pos;
+            if (!p.file) {
+                p = v->pos;
+                p.line = 0;
+            }
+            json_array_append_new(rel, json_pack("{s:o,s:s}", "location", kn_location_at(s, &p), "message",
+                                                 n->message));
+        }
+        json_object_set_new(d, "relatedInformation", rel);
+    }
+    return d;
+}
+
+static bool same_view(const kn_view *a, const kn_view *b)
+{
+    return a->rule == b->rule && a->pos.line == b->pos.line && a->pos.col == b->pos.col &&
+           strcmp(a->message, b->message) == 0 && strcmp(a->pos.file, b->pos.file) == 0;
+}
+
+/* Publishes the findings of every open schema, grouped by the file they
+ * point into; a URI that had findings and has none now gets an empty list. */
+static void publish(kn_server *s)
+{
+    json_t *by_uri = json_object();
+    for (kn_doc *d = s->docs; d; d = d->next) {
+        if (d->path && !d->unit) {
+            json_object_set_new(by_uri, d->uri, json_array()); /* a register: cleared unless a schema speaks */
+        }
+    }
+    for (kn_doc *d = s->docs; d; d = d->next) {
+        if (d->unit) {
+            json_object_set_new(by_uri, d->uri, json_array());
+        }
+    }
+    for (kn_doc *d = s->docs; d; d = d->next) {
+        for (size_t i = 0; i < d->n_view; i++) {
+            const kn_view *v = &d->view[i];
+            /* Two open schemas including one register say the same thing once. */
+            bool dup = false;
+            for (kn_doc *e = s->docs; e != d && !dup; e = e->next) {
+                for (size_t j = 0; j < e->n_view && !dup; j++) {
+                    dup = same_view(v, &e->view[j]);
+                }
+            }
+            if (dup || !v->pos.file) {
+                continue;
+            }
+            char *uri = kn_file_uri(s, v->pos.file);
+            json_t *list = json_object_get(by_uri, uri);
+            if (!list) {
+                list = json_array();
+                json_object_set_new(by_uri, uri, list);
+            }
+            json_array_append_new(list, lsp_diagnostic(s, v));
+            free(uri);
+        }
+    }
+    /* Clear what was published before and is not covered now. */
+    for (size_t i = 0; i < s->n_published; i++) {
+        if (!json_object_get(by_uri, s->published[i])) {
+            json_object_set_new(by_uri, s->published[i], json_array());
+        }
+        free(s->published[i]);
+    }
+    free(s->published);
+    s->published = kn_lsp_xmalloc((json_object_size(by_uri) + 1) * sizeof *s->published);
+    s->n_published = 0;
+    const char *uri;
+    json_t *list;
+    json_object_foreach(by_uri, uri, list)
+    {
+        if (json_array_size(list)) {
+            s->published[s->n_published++] = kn_lsp_xstrndup(uri, strlen(uri));
+        }
+        send(s, json_pack("{s:s,s:{s:s,s:O}}", "method", "textDocument/publishDiagnostics", "params", "uri", uri,
+                          "diagnostics", list));
+    }
+    json_decref(by_uri);
+}
+
+static void analyse_all(kn_server *s)
+{
+    for (kn_doc *d = s->docs; d; d = d->next) {
+        analyse(s, d);
+    }
+    publish(s);
+}
+
+/* --- Requests and notifications ------------------------------------------ */
+
+static json_t *capabilities(void)
+{
+    json_t *caps = json_pack("{s:s,s:{s:b,s:i,s:{s:b}},s:b,s:b,s:{s:[s,s,s,s,s],s:b},s:{s:[s]}}",
+                             "positionEncoding", "utf-16", "textDocumentSync", "openClose", 1, "change", 1, "save",
+                             "includeText", 0, "hoverProvider", 1, "definitionProvider", 1, "completionProvider",
+                             "triggerCharacters", " ", ":", "[", ",", "{", "resolveProvider", 0,
+                             "codeActionProvider", "codeActionKinds", "quickfix");
+    return json_pack("{s:o,s:{s:s,s:s}}", "capabilities", caps, "serverInfo", "name", "knowable", "version",
+                     KN_VERSION_STRING);
+}
+
+/* The text document's URI of params, and its open document. */
+static kn_doc *doc_of(kn_server *s, json_t *params)
+{
+    const char *uri = json_string_value(json_object_get(json_object_get(params, "textDocument"), "uri"));
+    return uri ? kn_doc_find(s, uri) : NULL;
+}
+
+static bool position_of(json_t *pos, long *line, long *character)
+{
+    json_t *l = json_object_get(pos, "line"), *c = json_object_get(pos, "character");
+    if (!json_is_integer(l) || !json_is_integer(c) || json_integer_value(l) < 0 || json_integer_value(c) < 0 ||
+        json_integer_value(l) > 100000000 || json_integer_value(c) > 100000000) {
+        return false;
+    }
+    *line = (long)json_integer_value(l);
+    *character = (long)json_integer_value(c);
+    return true;
+}
+
+/* didChange: full text (the sync we ask for), or ranges applied in order. */
+static bool apply_changes(kn_doc *d, json_t *changes)
+{
+    if (!json_is_array(changes)) {
+        return false;
+    }
+    size_t i;
+    json_t *ch;
+    json_array_foreach(changes, i, ch)
+    {
+        json_t *text = json_object_get(ch, "text");
+        if (!json_is_string(text)) {
+            return false;
+        }
+        json_t *range = json_object_get(ch, "range");
+        if (!range) {
+            kn_doc_set_text(d, json_string_value(text), json_string_length(text));
+            continue;
+        }
+        long l0, c0, l1, c1;
+        if (!position_of(json_object_get(range, "start"), &l0, &c0) ||
+            !position_of(json_object_get(range, "end"), &l1, &c1)) {
+            return false;
+        }
+        size_t a = kn_doc_offset(d, l0, c0), b = kn_doc_offset(d, l1, c1);
+        if (b < a) {
+            size_t t = a;
+            a = b;
+            b = t;
+        }
+        size_t tl = json_string_length(text), n = d->len - (b - a) + tl;
+        if (n > KN_RPC_MAX_BODY) {
+            return false;
+        }
+        char *buf = kn_lsp_xmalloc(n + 1);
+        memcpy(buf, d->text, a);
+        memcpy(buf + a, json_string_value(text), tl);
+        memcpy(buf + a + tl, d->text + b, d->len - b);
+        kn_doc_set_text(d, buf, n);
+        free(buf);
+    }
+    return true;
+}
+
+/* A request about a position in an open document. */
+typedef json_t *(*at_fn)(kn_server *, kn_doc *, long, long);
+
+static void at_position(kn_server *s, json_t *id, json_t *params, at_fn fn)
+{
+    kn_doc *d = doc_of(s, params);
+    long line, character;
+    if (!position_of(json_object_get(params, "position"), &line, &character)) {
+        reply_error(s, id, INVALID_PARAMS, "a position {line, character} is needed");
+        return;
+    }
+    reply(s, id, d ? fn(s, d, line, character) : NULL);
+}
+
+/* One message.  Returns -1 to go on, else the exit status. */
+static int handle(kn_server *s, json_t *msg)
+{
+    if (!json_is_object(msg)) {
+        reply_error(s, NULL, INVALID_REQUEST, "a message must be a JSON object");
+        return -1;
+    }
+    json_t *id = json_object_get(msg, "id");
+    json_t *m = json_object_get(msg, "method");
+    json_t *params = json_object_get(msg, "params");
+    if (id && !json_is_integer(id) && !json_is_string(id)) {
+        reply_error(s, NULL, INVALID_REQUEST, "an id must be a number or a string");
+        return -1;
+    }
+    if (!json_is_string(m)) {
+        if (!id || !(json_object_get(msg, "result") || json_object_get(msg, "error"))) {
+            reply_error(s, id, INVALID_REQUEST, "a request needs a method");
+        }
+        return -1; /* a response to a request of ours: none is sent */
+    }
+    const char *method = json_string_value(m);
+    if (strcmp(method, "exit") == 0) {
+        return s->shut_down ? 0 : 1;
+    }
+    if (!s->initialized) {
+        if (strcmp(method, "initialize") == 0 && id) {
+            s->initialized = true;
+            reply(s, id, capabilities());
+        } else if (id) {
+            reply_error(s, id, SERVER_NOT_INITIALIZED, "the server is not initialized: send initialize first");
+        }
+        return -1;
+    }
+    if (s->shut_down) {
+        if (id) {
+            reply_error(s, id, INVALID_REQUEST, "the server is shut down: only exit is accepted");
+        }
+        return -1;
+    }
+    if (id) {
+        if (strcmp(method, "initialize") == 0) {
+            reply_error(s, id, INVALID_REQUEST, "the server is already initialized");
+        } else if (strcmp(method, "shutdown") == 0) {
+            s->shut_down = true;
+            reply(s, id, NULL);
+        } else if (strcmp(method, "textDocument/hover") == 0) {
+            at_position(s, id, params, kn_lsp_hover);
+        } else if (strcmp(method, "textDocument/definition") == 0) {
+            at_position(s, id, params, kn_lsp_definition);
+        } else if (strcmp(method, "textDocument/completion") == 0) {
+            at_position(s, id, params, kn_lsp_completion);
+        } else if (strcmp(method, "textDocument/codeAction") == 0) {
+            kn_doc *d = doc_of(s, params);
+            json_t *range = json_object_get(params, "range");
+            long l0, c0, l1, c1;
+            if (!position_of(json_object_get(range, "start"), &l0, &c0) ||
+                !position_of(json_object_get(range, "end"), &l1, &c1)) {
+                reply_error(s, id, INVALID_PARAMS, "a range {start, end} is needed");
+            } else {
+                reply(s, id, d ? kn_lsp_code_actions(s, d, l0, c0, l1, c1) : json_array());
+            }
+        } else {
+            reply_error(s, id, METHOD_NOT_FOUND, "method not found");
+        }
+        return -1;
+    }
+    /* Notifications: unknown ones (and "$/" ones) are ignored, as LSP asks. */
+    if (strcmp(method, "textDocument/didOpen") == 0) {
+        json_t *td = json_object_get(params, "textDocument");
+        const char *uri = json_string_value(json_object_get(td, "uri"));
+        json_t *text = json_object_get(td, "text");
+        if (uri && json_is_string(text)) {
+            kn_doc_open(s, uri, json_string_value(text), json_string_length(text));
+            analyse_all(s);
+        }
+    } else if (strcmp(method, "textDocument/didChange") == 0) {
+        kn_doc *d = doc_of(s, params);
+        if (d && apply_changes(d, json_object_get(params, "contentChanges"))) {
+            analyse_all(s);
+        }
+    } else if (strcmp(method, "textDocument/didSave") == 0) {
+        kn_doc *d = doc_of(s, params);
+        json_t *text = json_object_get(params, "text");
+        if (d && json_is_string(text)) {
+            kn_doc_set_text(d, json_string_value(text), json_string_length(text));
+        }
+        analyse_all(s);
+    } else if (strcmp(method, "textDocument/didClose") == 0) {
+        kn_doc *d = doc_of(s, params);
+        if (d) {
+            kn_doc_close(s, d);
+            analyse_all(s);
+        }
+    }
+    return -1;
+}
+
+kn_status kn_lsp(const kn_options *o, FILE *in, FILE *out, FILE *err)
+{
+    kn_server s = {0};
+    s.opt = o;
+    s.out = out;
+    s.err = err;
+    int status = 1; /* the stream ended without exit */
+    for (;;) {
+        char *body = NULL;
+        size_t len = 0;
+        kn_rpc_result r = kn_rpc_read(in, KN_RPC_MAX_BODY, &body, &len);
+        if (r == KN_RPC_EOF) {
+            status = s.shut_down ? 0 : 1;
+            break;
+        }
+        if (r == KN_RPC_BAD_HEADER) {
+            reply_error(&s, NULL, PARSE_ERROR, "a message needs one header 'Content-Length: N' and an empty line");
+            continue;
+        }
+        if (r == KN_RPC_TOO_LARGE) {
+            reply_error(&s, NULL, INVALID_REQUEST, "the message is larger than 32 MiB, the most the server reads");
+            if (!kn_rpc_skip(in, len)) {
+                status = s.shut_down ? 0 : 1;
+                break;
+            }
+            continue;
+        }
+        json_error_t jerr;
+        json_t *msg = json_loadb(body, len, 0, &jerr);
+        free(body);
+        if (!msg) {
+            reply_error(&s, NULL, PARSE_ERROR, "the message is not valid JSON");
+            continue;
+        }
+        int rc = handle(&s, msg);
+        json_decref(msg);
+        if (rc >= 0) {
+            status = rc;
+            break;
+        }
+    }
+    while (s.docs) {
+        kn_doc_close(&s, s.docs);
+    }
+    for (size_t i = 0; i < s.n_published; i++) {
+        free(s.published[i]);
+    }
+    free(s.published);
+    return (kn_status)status;
+}
