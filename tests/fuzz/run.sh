@@ -14,7 +14,7 @@ build=${1:?usage: tests/fuzz/run.sh BUILD [SECONDS] [HARNESS...]}
 secs=${2:-600}
 shift; [ $# -gt 0 ] && shift
 src=$(cd "$(dirname "$0")/../.." && pwd)
-harnesses=${*:-check rulebook csv duration escape}
+harnesses=${*:-check rulebook csv duration escape lsp}
 status=0
 for h in $harnesses; do
     exe=$build/tests/fuzz/fuzz_$h

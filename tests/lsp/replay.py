@@ -123,7 +123,7 @@ def match(want, got, path="$"):
 
 
 def main():
-    knowable, seq = sys.argv[1], sys.argv[2]
+    knowable, seq = os.path.abspath(sys.argv[1]), sys.argv[2]
     srv = Server(knowable)
     n = 0
     try:
