@@ -40,6 +40,7 @@ typedef struct kn_server {
     FILE *out, *err;
     kn_doc *docs;
     bool initialized, shut_down;
+    kn_doc *loading; /* the schema whose main file the loader reads next */
     char **published; /* URIs given diagnostics last time (malloc) */
     size_t n_published;
 } kn_server;

@@ -50,10 +50,22 @@ static void reply_error(kn_server *s, json_t *id, int code, const char *message)
 
 /* --- Analysis ------------------------------------------------------------ */
 
-/* The loader's overlay: an open document's buffer stands for its file. */
+/* The loader's overlay: an open document's buffer stands for its file.
+ * The schema being loaded is asked for first, under the path the loader
+ * derives from its name (which need not be the file's real path when the
+ * file is a symbolic link or does not exist yet): that first call is
+ * always answered with its buffer, so the loader never falls back to
+ * reading standard input, which carries the protocol. */
 static const char *overlay(void *ctx, const char *real, size_t *len)
 {
-    kn_doc *d = kn_doc_by_real(ctx, real);
+    kn_server *s = ctx;
+    if (s->loading) {
+        kn_doc *main = s->loading;
+        s->loading = NULL;
+        *len = main->len;
+        return main->text;
+    }
+    kn_doc *d = kn_doc_by_real(s, real);
     if (!d) {
         return NULL;
     }
@@ -93,6 +105,7 @@ static void analyse(kn_server *s, kn_doc *d)
     }
     jmp_buf oom;
     if (setjmp(oom)) {
+        s->loading = NULL;
         kn_arena_free(a);
         d->arena = NULL;
         d->run = NULL;
@@ -110,7 +123,9 @@ static void analyse(kn_server *s, kn_doc *d)
     kn_run_init(r, a, "lsp", &d->opt, NULL, s->err);
     r->overlay = overlay;
     r->overlay_ctx = s;
+    s->loading = d;
     d->unit = kn_run_load(r, "-");
+    s->loading = NULL;
     kn_run_analyse(r, d->unit);
     kn_run_finish(r);
     d->view = kn_sink_view(r->sink, a, &d->n_view);
