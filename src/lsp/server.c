@@ -197,9 +197,12 @@ static void publish(kn_server *s)
     for (kn_doc *d = s->docs; d; d = d->next) {
         for (size_t i = 0; i < d->n_view; i++) {
             const kn_view *v = &d->view[i];
-            /* Two open schemas including one register say the same thing once. */
+            /* Two open schemas including one register say the same thing
+             * once (a schema's findings in its own file cannot repeat
+             * another's, so only those elsewhere are compared). */
             bool dup = false;
-            for (kn_doc *e = s->docs; e != d && !dup; e = e->next) {
+            bool elsewhere = v->pos.file && strcmp(v->pos.file, d->path) != 0;
+            for (kn_doc *e = s->docs; elsewhere && e != d && !dup; e = e->next) {
                 for (size_t j = 0; j < e->n_view && !dup; j++) {
                     dup = same_view(v, &e->view[j]);
                 }
