@@ -11,6 +11,7 @@
 #include <knowable/knowable.h>
 
 #include <errno.h>
+#include <limits.h>
 #include <stdlib.h>
 #include <string.h>
 #include <sys/stat.h>
@@ -42,6 +43,55 @@ static void say(FILE *err, const char *path, const char *why)
     fprintf(err, "': %s\n", why);
 }
 
+/* Whether following path's symbolic links passes through a folder under
+ * /proc (as /dev/stdout -> /proc/self/fd/1 and /dev/fd/1 do): the path
+ * then names an open descriptor, not a file to replace. */
+static bool names_descriptor(const char *path)
+{
+    char cur[PATH_MAX], dir[PATH_MAX], link[PATH_MAX];
+    if (strlen(path) >= sizeof cur) {
+        return false;
+    }
+    strcpy(cur, path);
+    for (int hop = 0; hop < 40; hop++) {
+        /* The folder part, resolved. */
+        const char *slash = strrchr(cur, '/');
+        char part[PATH_MAX];
+        if (!slash) {
+            strcpy(part, ".");
+        } else if (slash == cur) {
+            strcpy(part, "/");
+        } else {
+            memcpy(part, cur, (size_t)(slash - cur));
+            part[slash - cur] = '\0';
+        }
+        if (realpath(part, dir) && strncmp(dir, "/proc/", 6) == 0) {
+            return true;
+        }
+        struct stat st;
+        if (lstat(cur, &st) != 0 || !S_ISLNK(st.st_mode)) {
+            return false;
+        }
+        ssize_t n = readlink(cur, link, sizeof link - 1);
+        if (n <= 0) {
+            return false;
+        }
+        link[n] = '\0';
+        if (link[0] == '/') {
+            strcpy(cur, link);
+        } else {
+            size_t dl = strlen(dir);
+            if (dl + 1 + (size_t)n >= sizeof cur) {
+                return false;
+            }
+            memcpy(cur, dir, dl);
+            cur[dl] = '/';
+            memcpy(cur + dl + 1, link, (size_t)n + 1);
+        }
+    }
+    return false;
+}
+
 static void free_output(kn_output *o)
 {
     if (o) {
@@ -66,15 +116,26 @@ kn_output *kn_output_open(const char *path, const char *const *inputs, size_t n_
     }
     struct stat lst, st;
     bool exists = lstat(path, &lst) == 0;
+    bool through = false; /* write into what is there, never rename */
     if (exists && S_ISLNK(lst.st_mode)) {
-        /* Follow the link: the file it names is replaced, the link stays. */
-        o->path = realpath(path, NULL);
-        if (!o->path) {
-            say(err, path, errno == ENOENT ? "it is a symbolic link to a file that does not exist" : strerror(errno));
-            free_output(o);
-            return NULL;
+        if (names_descriptor(path)) {
+            /* /dev/stdout, /dev/fd/3, /proc/self/fd/1: the stream the
+             * caller opened (a pipe, a terminal, or a file opened with > or
+             * >>), written through and appended to, never replaced. */
+            through = true;
+            o->path = strdup(path);
+            exists = stat(path, &st) == 0;
+        } else {
+            /* Follow the link: the file it names is replaced, the link stays. */
+            o->path = realpath(path, NULL);
+            if (!o->path) {
+                say(err, path,
+                    errno == ENOENT ? "it is a symbolic link to a file that does not exist" : strerror(errno));
+                free_output(o);
+                return NULL;
+            }
+            exists = stat(o->path, &st) == 0;
         }
-        exists = stat(o->path, &st) == 0;
     } else {
         o->path = strdup(path);
         st = lst;
@@ -89,9 +150,11 @@ kn_output *kn_output_open(const char *path, const char *const *inputs, size_t n_
         free_output(o);
         return NULL;
     }
-    if (exists && !S_ISREG(st.st_mode)) {
-        /* A device or a FIFO: write through, never rename over it. */
-        o->f = fopen(o->path, "w");
+    if (through || (exists && !S_ISREG(st.st_mode))) {
+        /* A device, a FIFO or a descriptor: write through, never rename
+         * over it ("a": a file behind a descriptor keeps what the caller's
+         * redirection left in it). */
+        o->f = fopen(o->path, "a");
         if (!o->f) {
             say(err, path, strerror(errno));
             free_output(o);

@@ -10,7 +10,7 @@ its `git config --global` touches nothing outside):
 - a clean repository with one late column: status=1, a SARIF file written;
 - the same after a pull request adds an empty file named
   `--rulebook=off.knowable.yaml` and a rulebook `off.knowable.yaml` that
-  turns after-moment off: the status must not be 0 (issue 13, item 10).
+  turns after-moment and schema-shape off: the status must not be 0 (issue 13, item 10).
 
 Exits 77 (skipped) when PyYAML, bash or git is missing.
 """
@@ -96,7 +96,7 @@ with tempfile.TemporaryDirectory() as tmp:
         failures.append("clean: no SARIF written")
 
     with open(os.path.join(repo, "off.knowable.yaml"), "w", encoding="utf-8") as f:
-        f.write("knowable_rulebook: 1\nseverity: {after-moment: off}\n")
+        f.write("knowable_rulebook: 1\nseverity: {after-moment: off, schema-shape: off}\n")
     open(os.path.join(repo, "--rulebook=off.knowable.yaml"), "w").close()
     git(repo, "add", "-A")
     rc, outputs = run_step(repo, home)
