@@ -98,11 +98,8 @@ kn_diag *kn_diag_push(kn_sink *s, kn_rule r, const kn_pos *pos, const char *subj
     return d;
 }
 
-void kn_diag_note(kn_sink *s, kn_diag *d, const kn_pos *pos, const char *fmt, ...)
+static kn_note *new_note(kn_sink *s, kn_diag *d, const kn_pos *pos)
 {
-    if (!d || s->finished) {
-        return;
-    }
     if (d->n_notes == d->cap_notes) {
         size_t cap = d->cap_notes ? d->cap_notes * 2 : 4;
         kn_note *n = kn_alloc_array(s->arena, cap, sizeof *n);
@@ -114,6 +111,23 @@ void kn_diag_note(kn_sink *s, kn_diag *d, const kn_pos *pos, const char *fmt, ..
     }
     kn_note *note = &d->notes[d->n_notes++];
     note->pos = pos_or_file(pos, d->pos.file);
+    return note;
+}
+
+void kn_diag_note_text(kn_sink *s, kn_diag *d, const kn_pos *pos, const char *text)
+{
+    if (!d || s->finished) {
+        return;
+    }
+    new_note(s, d, pos)->message = text;
+}
+
+void kn_diag_note(kn_sink *s, kn_diag *d, const kn_pos *pos, const char *fmt, ...)
+{
+    if (!d || s->finished) {
+        return;
+    }
+    kn_note *note = new_note(s, d, pos);
     va_list ap;
     va_start(ap, fmt);
     note->message = kn_vprintf(s->arena, fmt, ap);

@@ -80,6 +80,11 @@ kn_diag *kn_diag_push(kn_sink *s, kn_rule r, const kn_pos *pos,
 void kn_diag_note(kn_sink *s, kn_diag *d, const kn_pos *pos, const char *fmt, ...)
     __attribute__((format(printf, 4, 5)));
 
+/* kn_diag_note for a text that is already made and lives as long as the
+ * sink (arena memory): it is kept, not copied (a note shared by many
+ * findings, such as one step of a chain of constraints, is made once). */
+void kn_diag_note_text(kn_sink *s, kn_diag *d, const kn_pos *pos, const char *text);
+
 /* Caps the severity this finding may take, whatever the rulebook says (a
  * "maybe" finding of an error rule is at most a warning). */
 void kn_diag_cap(kn_diag *d, kn_severity most);

@@ -7,7 +7,7 @@
 
 typedef struct kn_note {
     kn_pos pos;
-    char *message;
+    const char *message;
 } kn_note;
 
 struct kn_diag {

@@ -75,6 +75,8 @@ struct kn_timeline {
                         isolated, or the search for them was cut */
     bool *aside;     /* per event: broken, on a contradiction, or tied to the
                         moment only through such an event (no range) */
+    const char **step_text; /* per edge: the words of its step, made once
+                               (many findings share the steps of a chain) */
 
     kn_column_timing *col;
     size_t n_col;
@@ -1106,6 +1108,7 @@ kn_timeline *kn_timeline_solve(kn_arena *a, kn_sink *sink, const kn_schema *s,
     t->pred_down = kn_alloc_array(a, t->n_ev, sizeof *t->pred_down);
 
     build_network(t);
+    t->step_text = kn_alloc_array(a, t->n_edges + 1, sizeof *t->step_text);
     build_order(t);
     scratch *sc = scratch_new(t);
     find_contradictions(t, sc);
@@ -1243,18 +1246,21 @@ void kn_timeline_note_chain(const kn_timeline *t, kn_sink *sink, kn_diag *d,
     }
     enum { HALF = KN_CHAIN_SHOWN / 2 };
     kn_chain_step shown[KN_CHAIN_SHOWN];
+    size_t shown_edge[KN_CHAIN_SHOWN];
     size_t x = i;
     for (size_t k = 0; k < n; k++) {
         const edge *ed = &t->edges[pred[x]];
         /* The upper chain is found walking back from e; it is shown from
          * the moment outwards. */
-        size_t at = upper ? n - 1 - k : k;
-        if (n <= KN_CHAIN_SHOWN) {
-            shown[at] = ed->step;
-        } else if (at < HALF) {
-            shown[at] = ed->step;
+        size_t at = upper ? n - 1 - k : k, slot = SIZE_MAX;
+        if (n <= KN_CHAIN_SHOWN || at < HALF) {
+            slot = at;
         } else if (at >= n - HALF) {
-            shown[HALF + at - (n - HALF)] = ed->step;
+            slot = HALF + at - (n - HALF);
+        }
+        if (slot != SIZE_MAX) {
+            shown[slot] = ed->step;
+            shown_edge[slot] = pred[x];
         }
         x = upper ? ed->from : ed->to;
     }
@@ -1264,6 +1270,10 @@ void kn_timeline_note_chain(const kn_timeline *t, kn_sink *sink, kn_diag *d,
             kn_diag_note(sink, d, NULL, "... and %zu more constraints of this chain, not shown",
                          n - KN_CHAIN_SHOWN);
         }
-        kn_timeline_note_step(sink, d, &shown[k]);
+        size_t ei = shown_edge[k];
+        if (!t->step_text[ei]) {
+            t->step_text[ei] = kn_timeline_step_words(t->arena, &shown[k]);
+        }
+        kn_diag_note_text(sink, d, constraint_pos(shown[k].con), t->step_text[ei]);
     }
 }

@@ -227,15 +227,22 @@ char *kn_strdup(kn_arena *a, const char *s)
 
 char *kn_vprintf(kn_arena *a, const char *fmt, va_list ap)
 {
+    /* One formatting pass for the usual short text; a second only when it
+     * does not fit the stack buffer. */
+    char small[512];
     va_list copy;
     va_copy(copy, ap);
-    int n = vsnprintf(NULL, 0, fmt, copy);
+    int n = vsnprintf(small, sizeof small, fmt, copy);
     va_end(copy);
     if (n < 0) {
         return kn_strdup(a, "");
     }
     char *p = kn_alloc(a, (size_t)n + 1);
-    vsnprintf(p, (size_t)n + 1, fmt, ap);
+    if ((size_t)n < sizeof small) {
+        memcpy(p, small, (size_t)n + 1);
+    } else {
+        vsnprintf(p, (size_t)n + 1, fmt, ap);
+    }
     return p;
 }
 
