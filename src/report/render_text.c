@@ -22,21 +22,52 @@ static const char *sev_color(kn_severity s)
     return "\033[1;34m";
 }
 
-static void put_pos(FILE *out, const kn_pos *p, bool color)
+/* What the renderer keeps between lines: the last file name, escaped once
+ * (a report names a handful of files thousands of times). */
+typedef struct tx {
+    FILE *out;
+    kn_arena *arena;
+    bool color;
+    const char *file;     /* the last file name seen (by pointer) */
+    const char *file_esc; /* ... escaped for the terminal */
+    size_t file_len;
+} tx;
+
+static void put_uint(FILE *out, unsigned long v)
 {
-    if (color) {
+    char b[24];
+    size_t i = sizeof b;
+    do {
+        b[--i] = (char)('0' + v % 10);
+        v /= 10;
+    } while (v);
+    fwrite(b + i, 1, sizeof b - i, out);
+}
+
+static void put_pos(tx *x, const kn_pos *p)
+{
+    FILE *out = x->out;
+    if (x->color) {
         fputs(BOLD, out);
     }
-    kn_fput_term(out, p->file, strlen(p->file));
-    if (p->line && p->col) {
-        fprintf(out, ":%u:%u:", p->line, p->col);
-    } else if (p->line) {
-        /* A whole line (a CSV row): FILE:LINE: as in the GNU format. */
-        fprintf(out, ":%u:", p->line);
-    } else {
-        fputc(':', out);
+    if (p->file != x->file) {
+        x->file = p->file;
+        x->file_esc = kn_escape_term(x->arena, p->file, strlen(p->file));
+        x->file_len = strlen(x->file_esc);
     }
-    if (color) {
+    fwrite(x->file_esc, 1, x->file_len, out);
+    fputc(':', out);
+    if (p->line) {
+        /* A whole line (a CSV row) without a column: FILE:LINE: as in the
+         * GNU format. */
+        put_uint(out, p->line);
+        fputc(':', out);
+        if (p->col) {
+            put_uint(out, p->col);
+            fputc(':', out);
+        }
+    }
+    if (x->color) {
         fputs(RESET, out);
     }
     fputc(' ', out);
@@ -55,9 +86,10 @@ static void put_sev(FILE *out, const char *word, kn_severity s, bool color)
     fputc(' ', out);
 }
 
-static void put_diag(FILE *out, const kn_diag *d, const kn_render_opts *o)
+static void put_diag(tx *x, const kn_diag *d, const kn_render_opts *o)
 {
-    put_pos(out, &d->pos, o->color);
+    FILE *out = x->out;
+    put_pos(x, &d->pos);
     if (d->waived) {
         put_sev(out, "note", KN_SEV_NOTE, o->color);
         fputs("(waived) ", out);
@@ -65,12 +97,14 @@ static void put_diag(FILE *out, const kn_diag *d, const kn_render_opts *o)
         put_sev(out, kn_severity_name(d->severity), d->severity, o->color);
     }
     kn_fput_term(out, d->message, strlen(d->message));
-    fprintf(out, " [%s]\n", kn_rule_get(d->rule)->id);
+    fputs(" [", out);
+    fputs(kn_rule_get(d->rule)->id, out);
+    fputs("]\n", out);
     if (o->quiet) {
         return;
     }
     for (size_t i = 0; i < d->n_notes; i++) {
-        put_pos(out, &d->notes[i].pos, o->color);
+        put_pos(x, &d->notes[i].pos);
         put_sev(out, "note", KN_SEV_NOTE, o->color);
         kn_fput_term(out, d->notes[i].message, strlen(d->notes[i].message));
         fputc('\n', out);
@@ -113,12 +147,13 @@ void kn_render_text(FILE *out, const kn_sink *s, const kn_render_opts *o)
 {
     size_t n;
     kn_diag **all = kn_sink_diags(s, &n);
+    tx x = {out, kn_sink_arena(s), o->color, NULL, NULL, 0};
     for (size_t i = 0; i < n; i++) {
         const kn_diag *d = all[i];
         if (d->baselined || (d->waived && !o->show_waived)) {
             continue;
         }
-        put_diag(out, d, o);
+        put_diag(&x, d, o);
     }
     if (!o->quiet) {
         kn_render_summary(out, s, o);

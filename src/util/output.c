@@ -189,6 +189,8 @@ kn_output *kn_output_open(const char *path, const char *const *inputs, size_t n_
         free_output(o);
         return NULL;
     }
+    /* A report of thousands of lines goes out in large blocks. */
+    setvbuf(o->f, NULL, _IOFBF, 1 << 16);
     return o;
 }
 
