@@ -178,6 +178,24 @@ static void term_escape(const char *s, size_t len, emit_fn emit, void *ctx)
         unsigned char c = p[i];
         if (c >= 0x20 && c < 0x7f) {
             size_t j = i;
+            /* Eight bytes at a time while all are printable ASCII
+             * (0x20 <= b < 0x7f): the usual "has a byte below n" word test
+             * (Anderson, Bit Twiddling Hacks) for < 0x20 and for == 0x7f,
+             * plus the high bits; a borrow can only flag bytes above a
+             * byte that really is flagged, and the byte loop below sorts
+             * that out. */
+            while (len - j >= 8) {
+                uint64_t w;
+                memcpy(&w, p + j, 8);
+                const uint64_t ones = 0x0101010101010101ull, highs = 0x8080808080808080ull;
+                /* high bit set, or below 0x20, or equal to 0x7f */
+                uint64_t bad = (w & highs) | ((w - 0x20 * ones) & ~w & highs) |
+                               ((((w ^ (0x7f * ones)) - ones) & ~(w ^ (0x7f * ones))) & highs);
+                if (bad) {
+                    break;
+                }
+                j += 8;
+            }
             while (j < len && p[j] >= 0x20 && p[j] < 0x7f) {
                 j++;
             }
