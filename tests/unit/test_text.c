@@ -54,6 +54,34 @@ static void terminal_escapes_controls(void **state)
     assert_string_equal(capture(kn_fput_term, "\xc2\x9b", 2), "\\xc2\\x9b");
 }
 
+/* The escaper passes printable ASCII eight bytes at a time: every byte
+ * that is not printable ASCII must still be caught wherever it sits in the
+ * word, and printable text must come out unchanged. */
+static void terminal_escape_word_at_a_time(void **state)
+{
+    (void)state;
+    kn_arena *a = kn_arena_new();
+    static const unsigned char odd[] = {0x00, 0x01, 0x1b, 0x1f, 0x7f, 0x80, 0x9b, 0xff};
+    char in[40], plain[40];
+    for (size_t len = 1; len < sizeof in; len++) {
+        for (size_t i = 0; i < len; i++) {
+            plain[i] = (char)(0x20 + (i * 7) % 0x5f); /* printable, includes ' ' and '~' */
+        }
+        assert_string_equal(kn_escape_term(a, plain, len), kn_strndup(a, plain, len));
+        for (size_t at = 0; at < len; at++) {
+            for (size_t k = 0; k < sizeof odd; k++) {
+                memcpy(in, plain, len);
+                in[at] = (char)odd[k];
+                char *out = kn_escape_term(a, in, len);
+                /* the odd byte is replaced by an escape, never copied raw */
+                assert_null(memchr(out, odd[k], strlen(out)));
+                assert_true(strlen(out) > len);
+            }
+        }
+    }
+    kn_arena_free(a);
+}
+
 static void json_escapes_and_replaces(void **state)
 {
     (void)state;
@@ -77,6 +105,7 @@ int main(void)
         cmocka_unit_test(edit_distance_counts_edits),
         cmocka_unit_test(suggest_picks_the_closest),
         cmocka_unit_test(terminal_escapes_controls),
+        cmocka_unit_test(terminal_escape_word_at_a_time),
         cmocka_unit_test(json_escapes_and_replaces),
         cmocka_unit_test(xml_escapes_markup),
     };
