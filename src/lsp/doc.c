@@ -339,19 +339,25 @@ static json_t *position(long line, long character)
     return json_pack("{s:i,s:i}", "line", (json_int_t)line, "character", (json_int_t)character);
 }
 
-json_t *kn_range_at(kn_server *s, const kn_pos *p)
+void kn_range_of(kn_server *s, const kn_pos *p, long r[4])
 {
-    long l0 = 0, c0 = 0, l1 = 0, c1 = 0;
+    r[0] = r[1] = r[2] = r[3] = 0;
     kn_doc *d = p->line ? kn_doc_by_file(s, p->file) : NULL;
     if (d && p->offset <= d->len) {
         size_t n = kn_token_len(d->text, d->len, p->offset);
-        kn_doc_position(d, p->offset, &l0, &c0);
-        kn_doc_position(d, p->offset + n, &l1, &c1);
+        kn_doc_position(d, p->offset, &r[0], &r[1]);
+        kn_doc_position(d, p->offset + n, &r[2], &r[3]);
     } else if (p->line) {
-        l0 = l1 = (long)p->line - 1;
-        c0 = c1 = (long)p->col - 1;
+        r[0] = r[2] = (long)p->line - 1;
+        r[1] = r[3] = (long)p->col - 1;
     }
-    return json_pack("{s:o,s:o}", "start", position(l0, c0), "end", position(l1, c1));
+}
+
+json_t *kn_range_at(kn_server *s, const kn_pos *p)
+{
+    long r[4];
+    kn_range_of(s, p, r);
+    return json_pack("{s:o,s:o}", "start", position(r[0], r[1]), "end", position(r[2], r[3]));
 }
 
 json_t *kn_location_at(kn_server *s, const kn_pos *p)

@@ -72,6 +72,8 @@ void kn_doc_position(const kn_doc *d, size_t offset, long *line, long *character
 /* An LSP range for a model position: its token (a plain or quoted scalar,
  * or one character) when the text is at hand, else an empty range. */
 json_t *kn_range_at(kn_server *s, const kn_pos *p);
+/* The same as numbers: start line, character, end line, character. */
+void kn_range_of(kn_server *s, const kn_pos *p, long r[4]);
 /* The byte length of the YAML token at offset in text. */
 size_t kn_token_len(const char *text, size_t len, size_t offset);
 /* {"uri", "range"} for a model position. */

@@ -11,6 +11,7 @@
 #include <string.h>
 
 #include "../util/arena.h"
+#include "../util/text.h"
 #include "rpc.h"
 #include "xalloc.h"
 
@@ -151,13 +152,52 @@ kn_doc *kn_model_for(kn_server *s, kn_doc *doc)
 
 static const int lsp_severity[] = {4, 3, 2, 1}; /* off, note, warning, error */
 
-static json_t *lsp_diagnostic(kn_server *s, const kn_view *v)
+/* The diagnostics are written as JSON text directly (kn_fput_json, the
+ * escaping of the JSON report): a schema with a hundred late columns has
+ * thousands of notes, and building them as jansson objects first cost more
+ * than the whole analysis. */
+/* A JSON string: runs of plain ASCII are written at once, the rest by
+ * kn_fput_json (a run of other bytes holds whole UTF-8 sequences). */
+static void put_str(FILE *f, const char *str)
 {
-    const kn_rule_info *info = kn_rule_get(v->rule);
-    json_t *d = json_pack("{s:o,s:i,s:s,s:s,s:s}", "range", kn_range_at(s, &v->pos), "severity",
-                          lsp_severity[v->severity], "code", info->id, "source", "knowable", "message", v->message);
+    const unsigned char *p = (const unsigned char *)str;
+    fputc('"', f);
+    while (*p) {
+        const unsigned char *q = p;
+        while (*q >= 0x20 && *q < 0x7f && *q != '"' && *q != '\\') {
+            q++;
+        }
+        fwrite(p, 1, (size_t)(q - p), f);
+        p = q;
+        while (*q && !(*q >= 0x20 && *q < 0x7f && *q != '"' && *q != '\\')) {
+            q++;
+        }
+        if (q > p) {
+            kn_fput_json(f, (const char *)p, (size_t)(q - p));
+        }
+        p = q;
+    }
+    fputc('"', f);
+}
+
+static void put_range(FILE *f, kn_server *s, const kn_pos *p)
+{
+    long r[4];
+    kn_range_of(s, p, r);
+    fprintf(f, "{\"start\":{\"line\":%ld,\"character\":%ld},\"end\":{\"line\":%ld,\"character\":%ld}}", r[0],
+            r[1], r[2], r[3]);
+}
+
+static void put_diagnostic(FILE *f, kn_server *s, const kn_view *v)
+{
+    fputs("{\"range\":", f);
+    put_range(f, s, &v->pos);
+    fprintf(f, ",\"severity\":%d,\"code\":", lsp_severity[v->severity]);
+    put_str(f, kn_rule_get(v->rule)->id);
+    fputs(",\"source\":\"knowable\",\"message\":", f);
+    put_str(f, v->message);
     if (v->n_notes) {
-        json_t *rel = json_array();
+        fputs(",\"relatedInformation\":[", f);
         for (size_t i = 0; i < v->n_notes; i++) {
             const kn_view_note *n = &v->notes[i];
             kn_pos p = n->pos;
@@ -165,12 +205,19 @@ static json_t *lsp_diagnostic(kn_server *s, const kn_view *v)
                 p = v->pos;
                 p.line = 0;
             }
-            json_array_append_new(rel, json_pack("{s:o,s:s}", "location", kn_location_at(s, &p), "message",
-                                                 n->message));
+            char *uri = kn_file_uri(s, p.file);
+            fputs(i ? ",{\"location\":{\"uri\":" : "{\"location\":{\"uri\":", f);
+            put_str(f, uri);
+            free(uri);
+            fputs(",\"range\":", f);
+            put_range(f, s, &p);
+            fputs("},\"message\":", f);
+            put_str(f, n->message);
+            fputc('}', f);
         }
-        json_object_set_new(d, "relatedInformation", rel);
+        fputc(']', f);
     }
-    return d;
+    fputc('}', f);
 }
 
 static bool same_view(const kn_view *a, const kn_view *b)
@@ -179,68 +226,121 @@ static bool same_view(const kn_view *a, const kn_view *b)
            strcmp(a->message, b->message) == 0 && strcmp(a->pos.file, b->pos.file) == 0;
 }
 
+/* The diagnostics of one URI being written. */
+typedef struct out_list {
+    char *uri;
+    char *buf;
+    size_t len, n;
+    FILE *f;
+} out_list;
+
+/* Each list is allocated on its own: its memory stream keeps the
+ * addresses of buf and len. */
+static out_list *list_for(out_list ***lists, size_t *n, const char *uri)
+{
+    for (size_t i = 0; i < *n; i++) {
+        if (strcmp((*lists)[i]->uri, uri) == 0) {
+            return (*lists)[i];
+        }
+    }
+    out_list **grown = realloc(*lists, (*n + 1) * sizeof **lists);
+    if (!grown) {
+        fputs("knowable lsp: out of memory\n", stderr);
+        exit(KN_EXIT_FAILED);
+    }
+    *lists = grown;
+    out_list *l = kn_lsp_xmalloc(sizeof *l);
+    memset(l, 0, sizeof *l);
+    grown[(*n)++] = l;
+    l->uri = kn_lsp_xstrndup(uri, strlen(uri));
+    l->f = open_memstream(&l->buf, &l->len);
+    if (!l->f) {
+        fputs("knowable lsp: out of memory\n", stderr);
+        exit(KN_EXIT_FAILED);
+    }
+    return l;
+}
+
 /* Publishes the findings of every open schema, grouped by the file they
  * point into; a URI that had findings and has none now gets an empty list. */
 static void publish(kn_server *s)
 {
-    json_t *by_uri = json_object();
+    out_list **lists = NULL;
+    size_t n_lists = 0;
     for (kn_doc *d = s->docs; d; d = d->next) {
         if (d->path && !d->unit) {
-            json_object_set_new(by_uri, d->uri, json_array()); /* a register: cleared unless a schema speaks */
+            list_for(&lists, &n_lists, d->uri); /* a register: cleared unless a schema speaks */
         }
     }
     for (kn_doc *d = s->docs; d; d = d->next) {
         if (d->unit) {
-            json_object_set_new(by_uri, d->uri, json_array());
+            list_for(&lists, &n_lists, d->uri);
         }
     }
     for (kn_doc *d = s->docs; d; d = d->next) {
         for (size_t i = 0; i < d->n_view; i++) {
             const kn_view *v = &d->view[i];
+            if (!v->pos.file) {
+                continue;
+            }
             /* Two open schemas including one register say the same thing
              * once (a schema's findings in its own file cannot repeat
              * another's, so only those elsewhere are compared). */
             bool dup = false;
-            bool elsewhere = v->pos.file && strcmp(v->pos.file, d->path) != 0;
+            bool elsewhere = strcmp(v->pos.file, d->path) != 0;
             for (kn_doc *e = s->docs; elsewhere && e != d && !dup; e = e->next) {
                 for (size_t j = 0; j < e->n_view && !dup; j++) {
                     dup = same_view(v, &e->view[j]);
                 }
             }
-            if (dup || !v->pos.file) {
+            if (dup) {
                 continue;
             }
             char *uri = kn_file_uri(s, v->pos.file);
-            json_t *list = json_object_get(by_uri, uri);
-            if (!list) {
-                list = json_array();
-                json_object_set_new(by_uri, uri, list);
-            }
-            json_array_append_new(list, lsp_diagnostic(s, v));
+            out_list *l = list_for(&lists, &n_lists, uri);
             free(uri);
+            if (l->n++) {
+                fputc(',', l->f);
+            }
+            put_diagnostic(l->f, s, v);
         }
     }
     /* Clear what was published before and is not covered now. */
     for (size_t i = 0; i < s->n_published; i++) {
-        if (!json_object_get(by_uri, s->published[i])) {
-            json_object_set_new(by_uri, s->published[i], json_array());
-        }
+        list_for(&lists, &n_lists, s->published[i]);
         free(s->published[i]);
     }
     free(s->published);
-    s->published = kn_lsp_xmalloc((json_object_size(by_uri) + 1) * sizeof *s->published);
+    s->published = kn_lsp_xmalloc((n_lists + 1) * sizeof *s->published);
     s->n_published = 0;
-    const char *uri;
-    json_t *list;
-    json_object_foreach(by_uri, uri, list)
-    {
-        if (json_array_size(list)) {
-            s->published[s->n_published++] = kn_lsp_xstrndup(uri, strlen(uri));
+    for (size_t i = 0; i < n_lists; i++) {
+        out_list *l = lists[i];
+        char *msg = NULL;
+        size_t len = 0;
+        FILE *m = open_memstream(&msg, &len);
+        bool ok = fclose(l->f) == 0 && l->buf && m;
+        if (ok) {
+            fputs("{\"jsonrpc\":\"2.0\",\"method\":\"textDocument/publishDiagnostics\",\"params\":{\"uri\":", m);
+            put_str(m, l->uri);
+            fputs(",\"diagnostics\":[", m);
+            fwrite(l->buf, 1, l->len, m);
+            fputs("]}}", m);
         }
-        send(s, json_pack("{s:s,s:{s:s,s:O}}", "method", "textDocument/publishDiagnostics", "params", "uri", uri,
-                          "diagnostics", list));
+        if (m && fclose(m) == 0 && ok && msg) {
+            kn_rpc_write(s->out, msg, len);
+        } else {
+            fputs("knowable lsp: out of memory while writing diagnostics\n", s->err);
+        }
+        if (l->n) {
+            s->published[s->n_published++] = l->uri;
+        } else {
+            free(l->uri);
+        }
+        free(msg);
+        free(l->buf);
+        free(l);
     }
-    json_decref(by_uri);
+    free(lists);
 }
 
 static void analyse_all(kn_server *s)
