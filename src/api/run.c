@@ -171,6 +171,7 @@ void kn_run_analyse(kn_run *r, kn_unit *u)
      * families after it. */
     u->timeline = kn_timeline_solve(r->arena, r->sink, s, u->rulebook->strict_moment);
     kn_check_availability(&ctx, s, u->timeline);
+    kn_check_maturity(&ctx, s, u->timeline);
     kn_check_provenance(&ctx, s);
     kn_check_identity(&ctx, s, u->timeline);
     kn_check_preparation(&ctx, s, u->timeline);

@@ -88,6 +88,42 @@ static const kn_node *ref_node_to(const kn_column *c, const kn_column *input)
     return c->derived_node;
 }
 
+/* Where the column's known is written: the event name, or the one_of list. */
+static const kn_node *known_node(const kn_column *c)
+{
+    return c->known.node ? c->known.node : c->one_of_node;
+}
+
+/* The known event(s) in words: "'claim_closed'", or for one_of
+ * "one of 'a', 'b'" (names as given: renderers escape). */
+static const char *known_words(const cx *x, const kn_column *c)
+{
+    if (!c->n_one_of) {
+        const kn_event *e = KN_REF_EVENT(c->known);
+        return kn_printf(x->ctx->arena, "'%s'", e ? e->name : "");
+    }
+    const char *s = "one of ";
+    for (size_t i = 0; i < c->n_one_of; i++) {
+        s = kn_printf(x->ctx->arena, "%s%s'%s'", s, i ? ", " : "", c->one_of[i].name);
+    }
+    return s;
+}
+
+/* The as_of of a join in words: "'loss_reported'", or with an offset
+ * "1d before 'loss_reported'". */
+static const char *as_of_words(const cx *x, const kn_column *c)
+{
+    const kn_event *e = KN_REF_EVENT(c->join.as_of);
+    const char *name = e ? e->name : "";
+    if (!c->join.has_offset || (c->join.offset.lo == 0 && c->join.offset.hi == 0)) {
+        return kn_printf(x->ctx->arena, "'%s'", name);
+    }
+    char b[48];
+    int64_t v = c->join.offset.lo < 0 ? c->join.offset.lo : c->join.offset.hi;
+    return kn_printf(x->ctx->arena, "%s %s '%s'", dur(v < 0 ? kn_time_neg(v) : v, b), v < 0 ? "before" : "after",
+                     name);
+}
+
 /* --- notes that explain a column's own range ----------------------------- */
 
 static void note_delay(const cx *x, kn_diag *d, const kn_column *c)
@@ -129,7 +165,14 @@ static void explain_event_part(const cx *x, kn_diag *d, const kn_column *c, kn_t
     kn_sink *sink = x->ctx->sink;
     char b[48];
     const kn_event *e = NULL;
-    if (p == KN_PART_KNOWN) {
+    if (p == KN_PART_KNOWN && c->n_one_of) {
+        e = upper ? T->known_hi_by : T->known_lo_by;
+        kn_diag_note(sink, d, at(c, c->one_of_node),
+                     "'%s' is known at %s, varying per row, which together come %s; the %s end is that of "
+                     "'%s' (columns.%s.known.one_of)",
+                     c->name, known_words(x, c), words(x, T->event[p]), upper ? "latest" : "earliest",
+                     e ? e->name : "", c->name);
+    } else if (p == KN_PART_KNOWN) {
         e = KN_REF_EVENT(c->known);
         kn_diag_note(sink, d, at(c, c->known.node), "'%s' is known at '%s', which comes %s (columns.%s.known)",
                      c->name, e->name, words(x, T->event[p]), c->name);
@@ -143,6 +186,11 @@ static void explain_event_part(const cx *x, kn_diag *d, const kn_column *c, kn_t
         kn_diag_note(sink, d, at(c, c->join.as_of.node),
                      "'%s' is joined as of '%s', which comes %s (columns.%s.join.as_of)", c->name,
                      e->name, words(x, T->event[p]), c->name);
+        if (c->join.has_offset) {
+            kn_diag_note(sink, d, at(c, c->join.offset_node),
+                         "the join takes the value as it stood %s, which is %s (columns.%s.join.as_of.offset)",
+                         as_of_words(x, c), words(x, T->part[p]), c->name);
+        }
     }
     kn_timeline_note_chain(x->t, sink, d, e, upper);
     if (p == KN_PART_KNOWN) {
@@ -221,33 +269,37 @@ static void explain_column(const cx *x, kn_diag *d, const kn_column *c, bool upp
 static void check_known(const cx *x, const kn_column *c, const kn_column_timing *T)
 {
     kn_verdict v = T->part_verdict[KN_PART_KNOWN];
-    const kn_event *e = KN_REF_EVENT(c->known);
+    const kn_event *e = T->known_hi_by;
+    const char *kw = known_words(x, c);
     kn_sink *sink = x->ctx->sink;
     kn_diag *d;
+    if (!e) {
+        return;
+    }
     if (v == KN_VERDICT_LATE) {
         /* Under strict_moment a range starting exactly at the moment is late. */
         bool at_moment = T->part[KN_PART_KNOWN].lo == 0;
-        d = kn_diag_push(sink, KN_R_AFTER_MOMENT, at(c, c->known.node), c->name,
-                         "column '%s' (known at '%s') is available only %s: %s", c->name, e->name,
+        d = kn_diag_push(sink, KN_R_AFTER_MOMENT, at(c, known_node(c)), c->name,
+                         "column '%s' (known at %s) is available only %s: %s", c->name, kw,
                          at_moment ? "at or after the moment, which strict_moment counts as late"
                                    : "after the moment",
                          words(x, T->part[KN_PART_KNOWN]));
         kn_diag_range(d, T->part[KN_PART_KNOWN].lo, T->part[KN_PART_KNOWN].hi);
         explain_event_part(x, d, c, KN_PART_KNOWN, false);
     } else if (v == KN_VERDICT_MAYBE_LATE) {
-        d = kn_diag_push(sink, KN_R_MAYBE_AFTER_MOMENT, at(c, c->known.node), c->name,
-                         "column '%s' (known at '%s') may be available after the moment: %s",
-                         c->name, e->name, words(x, T->part[KN_PART_KNOWN]));
+        d = kn_diag_push(sink, KN_R_MAYBE_AFTER_MOMENT, at(c, known_node(c)), c->name,
+                         "column '%s' (known at %s) may be available after the moment: %s",
+                         c->name, kw, words(x, T->part[KN_PART_KNOWN]));
         kn_diag_range(d, T->part[KN_PART_KNOWN].lo, T->part[KN_PART_KNOWN].hi);
         explain_event_part(x, d, c, KN_PART_KNOWN, true);
     } else if (v == KN_VERDICT_UNORDERED) {
         if (T->event[KN_PART_KNOWN].lo <= -KN_TIME_INF) {
-            d = kn_diag_push(sink, KN_R_UNORDERED_EVENT, at(c, c->known.node), c->name,
+            d = kn_diag_push(sink, KN_R_UNORDERED_EVENT, at(c, known_node(c)), c->name,
                              "column '%s' is known at '%s', which no chain of constraints ties to "
                              "the moment '%s', so its availability cannot be proven",
                              c->name, e->name, x->moment);
         } else {
-            d = kn_diag_push(sink, KN_R_UNORDERED_EVENT, at(c, c->known.node), c->name,
+            d = kn_diag_push(sink, KN_R_UNORDERED_EVENT, at(c, known_node(c)), c->name,
                              "column '%s' is known at '%s', which no chain of constraints bounds "
                              "from above relative to the moment '%s' (it comes %s), so its "
                              "availability cannot be proven",
@@ -335,15 +387,20 @@ static void check_as_of(const cx *x, const kn_column *c, const kn_column_timing 
     if (!late_or_maybe(v)) {
         return;
     }
-    d = kn_diag_push(sink, KN_R_AS_OF_AFTER_MOMENT, at(c, c->join.as_of.node), c->name,
-                     "column '%s' is joined as of '%s', which %s after the moment: %s", c->name,
-                     e->name, v == KN_VERDICT_LATE ? "comes" : "may come",
+    d = kn_diag_push(sink, KN_R_AS_OF_AFTER_MOMENT, at(c, c->join.offset_node ? c->join.offset_node : c->join.as_of.node),
+                     c->name, "column '%s' is joined as of %s, which %s after the moment: %s", c->name,
+                     as_of_words(x, c), v == KN_VERDICT_LATE ? "comes" : "may come",
                      words(x, T->part[KN_PART_AS_OF]));
     kn_diag_range(d, T->part[KN_PART_AS_OF].lo, T->part[KN_PART_AS_OF].hi);
     if (v == KN_VERDICT_MAYBE_LATE) {
         at_most_warning(d);
     }
     kn_timeline_note_chain(x->t, sink, d, e, v == KN_VERDICT_MAYBE_LATE);
+    if (c->join.has_offset) {
+        kn_diag_note(sink, d, at(c, c->join.offset_node),
+                     "the offset moves the join to %s (columns.%s.join.as_of.offset)",
+                     words(x, T->part[KN_PART_AS_OF]), c->name);
+    }
 }
 
 /* The number of derivations from column c down to the target it is built
@@ -548,12 +605,11 @@ static void check_known_before_inputs(const cx *x, const kn_column *c, const kn_
     if (k.lo <= -KN_TIME_INF || in.lo <= -KN_TIME_INF || k.lo >= in.lo) {
         return;
     }
-    const kn_event *e = KN_REF_EVENT(c->known);
     kn_diag *d = kn_diag_push(
-        x->ctx->sink, KN_R_KNOWN_BEFORE_INPUTS, at(c, c->known.node), c->name,
-        "column '%s' is declared known at '%s', as early as %s, but its inputs are available no "
+        x->ctx->sink, KN_R_KNOWN_BEFORE_INPUTS, at(c, known_node(c)), c->name,
+        "column '%s' is declared known at %s, as early as %s, but its inputs are available no "
         "earlier than %s (input '%s')",
-        c->name, e->name, offset_words(x, k.lo), offset_words(x, in.lo), T->latest_lo->name);
+        c->name, known_words(x, c), offset_words(x, k.lo), offset_words(x, in.lo), T->latest_lo->name);
     explain_event_part(x, d, c, KN_PART_KNOWN, false);
     explain_column(x, d, c, false, true);
 }

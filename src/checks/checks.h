@@ -22,6 +22,9 @@ typedef struct kn_ctx {
  * inherits-late-input, built-from-target. */
 void kn_check_availability(kn_ctx *c, const kn_schema *s, const kn_timeline *t);
 
+/* maturity.c: reads-unsettled-values. */
+void kn_check_maturity(kn_ctx *c, const kn_schema *s, const kn_timeline *t);
+
 /* provenance.c: external-without-provenance, join-latest-value,
  * no-point-in-time-history, missing-source, missing-known, unused-source. */
 void kn_check_provenance(kn_ctx *c, const kn_schema *s);

@@ -204,6 +204,19 @@ static bool label_horizon(const cx *x, kn_interval *out, const kn_event **event,
         return kn_timeline_event_range(x->t, *event, out);
     }
     const kn_column *target = KN_REF_COLUMN(p->target);
+    if (target && !target->broken && target->n_one_of) {
+        /* known: {one_of: [...]}: the latest of its members decides */
+        const kn_column_timing *T = kn_timeline_column_timing(x->t, target);
+        if (!T || !T->computed || !T->has[KN_PART_KNOWN] || !T->known_hi_by) {
+            return false;
+        }
+        *event = T->known_hi_by;
+        *node = target->one_of_node;
+        *words = kn_printf(x->ctx->arena, "labels are settled at one of the events of columns.%s.known.one_of, at "
+                                          "the latest at '%s'", target->name, (*event)->name);
+        *out = T->event[KN_PART_KNOWN];
+        return true;
+    }
     if (!target || target->broken || !KN_REF_EVENT(target->known)) {
         return false;
     }
@@ -229,7 +242,9 @@ static void check_gap(const cx *x)
         return;
     }
     kn_interval gap = sp->has_gap ? sp->gap : kn_interval_point(0);
-    if (gap.lo >= h.hi) {
+    if (gap.lo >= h.hi || sp->purge) {
+        /* purge: true drops the training rows whose labels settle inside
+         * the test period, which is what the gap stands in for. */
         return;
     }
     kn_arena *a = x->ctx->arena;
@@ -260,6 +275,15 @@ static void check_gap(const cx *x)
                          dur(kn_time_add(h.hi, kn_time_neg(gap.lo)), b3));
     }
     kn_diag_key(sink, d, "gap %s", gap_words);
+    if (sp->purge_node) {
+        kn_diag_note(sink, d, &sp->purge_node->pos,
+                     "purge is false: the training rows whose labels overlap the test period are kept");
+    }
+    if (sp->has_embargo) {
+        kn_diag_note(sink, d, &sp->embargo_node->pos,
+                     "the embargo keeps rows just after each test period out of training; it does not remove "
+                     "the training rows before it whose labels settle inside the test period");
+    }
     kn_diag_note(sink, d, node ? &node->pos : split_pos(sp), "%s, which comes %s", words,
                  kn_timeline_range_words(a, h, x->s->prediction.moment.name ? x->s->prediction.moment.name : ""));
     if (event) {
@@ -267,13 +291,14 @@ static void check_gap(const cx *x)
     }
     if (h.hi < KN_TIME_INF) {
         kn_diag_note(sink, d, pos,
-                     "set gap to at least %s, or drop (purge) the training rows whose labels settle after the test "
-                     "period starts (purging and embargo, López de Prado, 2018)",
+                     "set gap to at least %s, or drop the training rows whose labels settle after the test "
+                     "period starts and declare purge: true (purging and embargo, López de Prado, 2018)",
                      dur(h.hi, b2));
     } else {
         kn_diag_note(sink, d, pos,
                      "bound the label: give label_known a latest time relative to the moment (a follow-up "
-                     "window), then set the gap to it (purging and embargo, López de Prado, 2018)");
+                     "window), then set the gap to it, or purge the overlapping training rows and declare "
+                     "purge: true (purging and embargo, López de Prado, 2018)");
     }
 }
 

@@ -204,7 +204,7 @@ static void check_column(px *x, const kn_column *c)
     if (c->role == KN_ROLE_FEATURE) {
         /* A misspelt key (schema-shape) may be the missing `known`: its own
          * error says so, and guessing twice helps nobody. */
-        if (!c->known.name && !c->window.present && !c->n_derived && !c->stray_key) {
+        if (!c->known.name && !c->n_one_of && !c->window.present && !c->n_derived && !c->stray_key) {
             kn_diag *d = kn_diag_push(sink, KN_R_MISSING_KNOWN, col_at(c, NULL), c->name,
                                       "feature '%s' has none of known, window or derived_from: nothing says when its "
                                       "value exists, so its availability at the moment cannot be checked",

@@ -369,14 +369,15 @@ static void apply_waivers(kn_sink *s, const char *today)
     for (size_t i = 0; i < nw; i++) {
         waiver *w = &ws[i];
         const char *id = w->d.rule_id ? w->d.rule_id : "?";
-        const char *name = w->d.subject ? w->d.subject : "";
+        const char *name = w->d.block ? w->d.block
+                           : kn_printf(s->arena, "column '%s'", w->d.subject ? w->d.subject : "");
         kn_diag *d;
         switch (state_of(w, today)) {
         case W_NO_RULE:
             break;
         case W_NO_REASON:
             d = raise(s, w, KN_R_WAIVER_WITHOUT_REASON, w->d.reason_at,
-                      "the waiver of '%s' on column '%s' gives no reason, so it hides nothing: a reviewer "
+                      "the waiver of '%s' on %s gives no reason, so it hides nothing: a reviewer "
                       "needs to read why the finding does not apply",
                       id, name);
             d->key = kn_printf(s->arena, "no reason %s", id);
@@ -384,7 +385,7 @@ static void apply_waivers(kn_sink *s, const char *today)
             break;
         case W_EXPIRED:
             d = raise(s, w, KN_R_WAIVER_EXPIRED, w->d.expires_at,
-                      "the waiver of '%s' on column '%s' expired on %s (today is %s); %s",
+                      "the waiver of '%s' on %s expired on %s (today is %s); %s",
                       id, name, w->d.expires, today,
                       w->would == 0 ? "it covers no current finding: remove it, or renew it with a reason"
                                     : kn_printf(s->arena, "the %zu finding%s it covered %s reported again",
@@ -396,7 +397,7 @@ static void apply_waivers(kn_sink *s, const char *today)
         case W_ACTIVE:
             if (w->matched == 0) {
                 d = raise(s, w, KN_R_WAIVER_UNUSED, w->d.rule_at,
-                          "the waiver of '%s' on column '%s' matched no finding: remove it, or it will "
+                          "the waiver of '%s' on %s matched no finding: remove it, or it will "
                           "silently hide the next such finding, which nobody has reviewed",
                           id, name);
                 d->key = kn_printf(s->arena, "unused %s", id);

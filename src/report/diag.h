@@ -107,7 +107,10 @@ void kn_diag_key(kn_sink *s, kn_diag *d, const char *fmt, ...)
 typedef struct kn_waiver_decl {
     int rule;
     const char *rule_id;       /* as written */
-    const char *subject;       /* the block's name ("column 'x'" in messages) */
+    const char *subject;       /* a column's name, matched with findings' subjects;
+                                  NULL for other blocks (matched by place only) */
+    const char *block;         /* the block in messages: "source 'x'", "the split";
+                                  NULL: "column '<subject>'" */
     const char *file;          /* display path of the block's file */
     size_t start, end;         /* the block's bytes in that file */
     const char *reason;        /* NULL or blank: no reason */

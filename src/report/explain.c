@@ -195,7 +195,9 @@ static const kn_explain_text texts[] = {
         "source's latency and up to one refresh period) lies after the "
         "prediction moment in every case the timeline allows. The range comes "
         "from the timeline solved as a Simple Temporal Network (Dechter, Meiri & "
-        "Pearl, 1991).",
+        "Pearl, 1991). Latency and refresh describe the serving path: how the "
+        "deployed model reads the source when it is asked, not how the training "
+        "table was filled.",
         "The value does not exist yet when the deployed model is asked, but it "
         "is present in the historical training table, so the model learns from "
         "it and validation looks excellent. In production the value is missing "
@@ -214,14 +216,22 @@ static const kn_explain_text texts[] = {
         "    known: first_hub_scan\n",
         "Drop the column, mark it role: excluded, or replace it by what is known "
         "at the moment (the planned depot instead of the scanned one). If the "
-        "value really exists earlier, correct the event constraints instead.",
+        "value really exists earlier, correct the event constraints instead. A "
+        "value typed on the very screen where the model is asked (the loss "
+        "description a claims handler types on the form that requests the "
+        "score) comes with the request: declare it known at the moment itself, "
+        "with no source, since the deployed model reads it from the request "
+        "and not from a stored source.",
     },
     EXPLAIN(MAYBE_AFTER_MOMENT) = {
         "A feature whose availability range straddles the prediction moment: in "
         "some cases the timeline allows it is available in time, in others only "
         "after the moment. The message gives the range, for example \"between "
         "2h before and 1d 4h after\"; the range comes from the timeline solved as "
-        "a Simple Temporal Network (Dechter, Meiri & Pearl, 1991).",
+        "a Simple Temporal Network (Dechter, Meiri & Pearl, 1991). The source's "
+        "latency and refresh describe the serving path (how the deployed model "
+        "reads it when asked), and a known: {one_of: [...]} counts the hull of "
+        "its members' ranges.",
         "Training rows contain the value whether or not it had arrived in time "
         "for that row, so the model learns from values that a share of the "
         "production requests will not have. Validation then scores better than "
@@ -245,7 +255,9 @@ static const kn_explain_text texts[] = {
         "Tighten a bound of the timeline that is looser than the process, read "
         "the value from a source with a shorter latency or refresh, or use a "
         "window or an as_of join that ends early enough. When the late share is "
-        "accepted, waive the rule with the reason.",
+        "accepted, waive the rule with the reason. A value typed on the screen "
+        "where the model is asked is known at the moment itself, with no "
+        "source: it reaches the model with the request.",
     },
     EXPLAIN(INHERITS_LATE_INPUT) = {
         "A column derived, directly or through a chain of derived_from, from an "
@@ -299,7 +311,9 @@ static const kn_explain_text texts[] = {
         "the source given its latency and refresh. It is an error when the "
         "window overruns in every case and a warning when only in some; times "
         "come from the timeline solved as a Simple Temporal Network (Dechter, "
-        "Meiri & Pearl, 1991).",
+        "Meiri & Pearl, 1991). The latency and refresh are those of the serving "
+        "path: how the deployed model reads the source when asked, which may "
+        "be slower than the batch that filled the training table.",
         "A count or a sum over a window that reaches past what is loaded at the "
         "moment includes records that did not exist yet, or had not been loaded "
         "yet, when the prediction would have been made. In production the same "
@@ -319,7 +333,9 @@ static const kn_explain_text texts[] = {
         "    source: circulation_db\n"
         "    window: {anchor: loan_requested, from: -P30D, to: PT0S}\n",
         "End the window early enough to cover the source's latency and refresh "
-        "(here to: -P1D), or anchor it on an earlier event.",
+        "(here to: -P1D), or anchor it on an earlier event. Records typed on the "
+        "screen where the model is asked reach it with the request: they belong "
+        "to a column known at the moment, not to a window over a source.",
     },
     EXPLAIN(KNOWN_BEFORE_INPUTS) = {
         "A derived column whose declared known event is earlier than its "
@@ -372,6 +388,39 @@ static const kn_explain_text texts[] = {
         "    join: {key: account_id, as_of: first_bill_issued}\n",
         "Join as of the moment itself or an earlier event (here as_of: "
         "account_opened).",
+    },
+    EXPLAIN(READS_UNSETTLED_VALUES) = {
+        "A feature read from a source whose records keep changing for a while "
+        "after their event (the source's matures), where the record read (for a "
+        "window, its newest) can be younger than matures at the moment on the "
+        "timeline solved as a Simple Temporal Network (Dechter, Meiri & Pearl, "
+        "1991). An as_of join on a source that keeps history (history: "
+        "versioned or append, with point_in_time: true) is exempt. It is an "
+        "error when every record read is unsettled at the moment, a warning "
+        "when only some can be.",
+        "The training table was filled long after the rows' moments, so it "
+        "holds the settled values: a past claim later confirmed as fraud "
+        "carries its confirmed flag. The deployed model reads the same records "
+        "before they have settled, with most recent claims not yet flagged, "
+        "so the feature means something else in production and validation "
+        "overstates it.",
+        "prediction:\n"
+        "  moment: claim_scored\n"
+        "  target: claim_fraudulent\n"
+        "events:\n"
+        "  claim_scored: {}\n"
+        "sources:\n"
+        "  claims_ledger:\n"
+        "    kind: internal\n"
+        "    matures: [P30D, P180D]\n"
+        "columns:\n"
+        "  fraud_flags_last_year:\n"
+        "    source: claims_ledger\n"
+        "    window: {anchor: claim_scored, from: -P365D, to: PT0S}\n",
+        "Join the values as of the moment from a source that keeps history "
+        "(join: {as_of: claim_scored} with history: versioned and "
+        "point_in_time: true), or end the window matures before the moment "
+        "(here to: -P180D), so that only settled records are read.",
     },
     EXPLAIN(TARGET_BEFORE_MOMENT) = {
         "A target whose label is settled at or before the prediction moment in "
@@ -670,7 +719,8 @@ static const kn_explain_text texts[] = {
     },
     EXPLAIN(SPLIT_GAP_SHORT) = {
         "A time or group_time split whose gap is shorter than the label horizon, "
-        "the upper bound of label_known minus the moment.",
+        "the upper bound of label_known minus the moment, unless the split "
+        "declares purge: true.",
         "A training row's label is settled up to one horizon after its moment, "
         "so the labels of the last training rows describe what happened during "
         "the test period, and training learns from it. Removing the training "
@@ -689,8 +739,11 @@ static const kn_explain_text texts[] = {
         "  method: time\n"
         "  time_column: requested_at\n"
         "  gap: P7D\n",
-        "Set gap to at least the label horizon (here P42D), or settle the label "
-        "sooner so that the horizon is shorter.",
+        "Set gap to at least the label horizon (here P42D), declare purge: true "
+        "when the training rows whose labels overlap the test period are "
+        "dropped, or settle the label sooner so that the horizon is shorter. "
+        "With folds, embargo: DURATION keeps the rows just after each test "
+        "period out of training.",
     },
     EXPLAIN(ENTITY_STRADDLES_SPLIT) = {
         "The schema declares prediction.entity (a customer, a bicycle, a "

@@ -162,6 +162,7 @@ static const char *kind_def(const kn_key_spec *k, char *buf, size_t n)
     case KN_V_ENUM:
     case KN_V_LIST_OF_MAP:
     case KN_V_NAMED_MAPS:
+    case KN_V_NAME_OR_MAP:
         break;
     }
     return NULL;
@@ -204,6 +205,12 @@ static void value_schema(jw *w, const kn_key_spec *k)
     case KN_V_LIST_OF_MAP:
         raw(w, "type", "\"array\"");
         ref(w, "items", def_name(k->sub, buf, sizeof buf));
+        break;
+    case KN_V_NAME_OR_MAP:
+        arr(w, "anyOf");
+        ref(w, NULL, "name");
+        ref(w, NULL, def_name(k->sub, buf, sizeof buf));
+        close_(w, ']');
         break;
     case KN_V_NAMED_MAPS:
         raw(w, "type", "\"object\"");
@@ -256,7 +263,28 @@ static void shape_members(jw *w, const kn_shape *s)
         }
         close_(w, ']');
     }
-    bool any_unless = false;
+    size_t n_excl = 0;
+    for (size_t i = 0; i < kn_n_exclusions; i++) {
+        n_excl += kn_exclusions[i].shape == s;
+    }
+    if (n_excl) {
+        obj(w, "not");
+        arr(w, "anyOf");
+        for (size_t i = 0; i < kn_n_exclusions; i++) {
+            if (kn_exclusions[i].shape != s) {
+                continue;
+            }
+            obj(w, NULL);
+            arr(w, "required");
+            str_elem(w, kn_exclusions[i].key);
+            str_elem(w, kn_exclusions[i].other);
+            close_(w, ']');
+            close_(w, '}');
+        }
+        close_(w, ']');
+        close_(w, '}');
+    }
+        bool any_unless = false;
     for (size_t i = 0; i < s->n_keys; i++) {
         any_unless |= s->keys[i].required && s->keys[i].unless;
     }

@@ -28,19 +28,22 @@
  * unit test test_schema checks them against the tables' names). */
 enum { T_KNOWABLE, T_DATASET, T_DESCRIPTION, T_INCLUDE, T_PREDICTION, T_EVENTS, T_SOURCES, T_COLUMNS, T_PIPELINE, T_SPLIT };
 enum { I_KNOWABLE, I_DESCRIPTION, I_INCLUDE, I_EVENTS, I_SOURCES };
-enum { P_MOMENT, P_TARGET, P_ENTITY, P_MOMENT_COLUMN, P_LABEL_KNOWN };
-enum { E_AFTER, E_BEFORE, E_DESCRIPTION };
+enum { P_MOMENT, P_TARGET, P_ENTITY, P_MOMENT_COLUMN, P_LABEL_KNOWN, P_WAIVE };
+enum { E_AFTER, E_BEFORE, E_DESCRIPTION, E_FIRST_OF, E_WAIVE };
 enum { C_ROLE, C_TYPE, C_KNOWN, C_DELAY, C_SOURCE, C_JOIN, C_DERIVED, C_WINDOW, C_PROXY, C_FORMAT, C_ANON, C_QI, C_DESCRIPTION, C_WAIVE };
 enum { J_KEY, J_AS_OF, J_SOURCE };
+enum { AO_EVENT, AO_OFFSET };
+enum { K_ONE_OF };
 enum { W_ANCHOR, W_FROM, W_TO };
 enum { A_METHOD, A_SALTED };
 enum { V_RULE, V_REASON, V_EXPIRES };
-enum { S_STEP, S_FIT, S_COLUMNS, S_DESCRIPTION };
-enum { X_METHOD, X_COLUMN, X_TIME_COLUMN, X_GROUP_COLUMN, X_GAP, X_FOLDS };
+enum { S_STEP, S_FIT, S_COLUMNS, S_DESCRIPTION, S_WAIVE };
+enum { X_METHOD, X_COLUMN, X_TIME_COLUMN, X_GROUP_COLUMN, X_GAP, X_FOLDS, X_PURGE, X_EMBARGO, X_WAIVE };
+#define SRC_WAIVE KN_SF_COUNT /* the source shape's waive follows its fields */
 
 const char *const kn_source_field_names[KN_SF_COUNT] = {
     "kind", "description", "owner", "contact", "latency", "refresh", "history",
-    "provider", "license", "retrieved", "version", "point_in_time", "documentation",
+    "provider", "license", "retrieved", "version", "point_in_time", "documentation", "matures",
 };
 
 /* Who owns a mapping, for messages; formatted only when a message needs it. */
@@ -139,7 +142,11 @@ static const char *kind_expect(const kn_key_spec *k)
                : k->ref == KN_REF_RULE_K ? "a rule id"
                                          : "a column name";
     case KN_V_NAMES:
-        return "a list of column names";
+        return k->ref == KN_REF_EVENT_K ? "a list of event names" : "a list of column names";
+    case KN_V_NAME_OR_MAP:
+        return k->ref == KN_REF_EVENT_K && strcmp(k->name, "known") == 0
+                   ? "an event name or a mapping {one_of: [events]}"
+                   : "an event name or a mapping {event: E, offset: DURATION}";
     case KN_V_NAME_OR_NAMES:
         return "a column name or a list of column names";
     case KN_V_DURATION:
@@ -416,6 +423,7 @@ static bool check_value(ld *l, const owner *o, const kn_key_spec *k, kn_node *v)
         }
         return true;
     case KN_V_RELATION:
+    case KN_V_NAME_OR_MAP:
         if (is_name(v) || v->kind == KN_NODE_MAP) {
             return true;
         }
@@ -536,6 +544,9 @@ static kn_ref *refs_of(ld *l, kn_node *v, size_t *n)
     return r;
 }
 
+static void load_waivers(ld *l, kn_waiver **out, size_t *n_out, const owner *o, const kn_shape *sh,
+                         kn_node *list);
+
 /* ---- events ---- */
 
 static void add_relation(ld *l, kn_event *e, const owner *o, const char *key, kn_node *v, bool before,
@@ -618,6 +629,28 @@ static void load_events(ld *l, const kn_key_spec *spec, kn_node *map)
                     add_relation(l, e, &o, "before", vals[E_BEFORE], true, cons);
                 }
                 e->description = str_of(vals[E_DESCRIPTION]);
+                if (vals[E_FIRST_OF]) {
+                    /* The earliest of several routes: bounded only by its
+                     * members, computed after the solve (SPEC §3.3). */
+                    kn_node *bad = vals[E_AFTER] ? vals[E_AFTER] : vals[E_BEFORE];
+                    if (bad) {
+                        kn_diag *d = err(l, KN_R_SCHEMA_SHAPE, bad,
+                                         "event '%s' is a first_of event and takes no '%s' of its own: its "
+                                         "range comes from its members alone",
+                                         esc(l, e->name), vals[E_AFTER] ? "after" : "before");
+                        kn_diag_note(l->sink, d, &vals[E_FIRST_OF]->pos,
+                                     "constrain the members instead, or define a separate event");
+                    }
+                    if (vals[E_FIRST_OF]->u.seq.n == 0) {
+                        err(l, KN_R_SCHEMA_SHAPE, vals[E_FIRST_OF], "'first_of' of event '%s' is empty; name at least one event",
+                            esc(l, e->name));
+                    }
+                    e->first_of_node = vals[E_FIRST_OF];
+                    e->first_of = refs_of(l, vals[E_FIRST_OF], &e->n_first_of);
+                }
+                if (vals[E_WAIVE]) {
+                    load_waivers(l, &e->waivers, &e->n_waivers, &o, sh->keys[E_WAIVE].sub, vals[E_WAIVE]);
+                }
                 e->n_cons = cons->len;
                 e->cons = kn_alloc_array(l->a, cons->len, sizeof(kn_constraint));
                 if (cons->len) {
@@ -682,6 +715,17 @@ static void load_sources(ld *l, const kn_key_spec *spec, kn_node *map)
                     }
                 }
             }
+            if (vals[KN_SF_MATURES] && !parse_lag(l, &o, "matures", vals[KN_SF_MATURES], &s->matures)) {
+                s->field[KN_SF_MATURES] = NULL;
+            } else if (vals[KN_SF_MATURES] && s->matures.lo < 0) {
+                err(l, KN_R_BAD_DURATION, vals[KN_SF_MATURES],
+                    "'matures' of %s is negative; a record's values cannot settle before its event",
+                    owner_str(l, &o));
+                s->matures.present = false;
+            }
+            if (vals[SRC_WAIVE]) {
+                load_waivers(l, &s->waivers, &s->n_waivers, &o, sh->keys[SRC_WAIVE].sub, vals[SRC_WAIVE]);
+            }
             s->history = (kn_history)(enum_of(&sh->keys[KN_SF_HISTORY], vals[KN_SF_HISTORY], -1) + 1);
             bool b;
             if (vals[KN_SF_POINT_IN_TIME] && kn_node_bool(vals[KN_SF_POINT_IN_TIME], &b)) {
@@ -729,17 +773,25 @@ static void compile_format(ld *l, kn_column *c, const owner *o)
     c->format_code = re;
 }
 
-static void load_waivers(ld *l, kn_column *c, const owner *o, const kn_shape *sh, kn_node *list)
+/* The waivers of one block (SPEC §3.8): a column, an event, a source, a
+ * pipeline step, the split or the prediction. */
+static void load_waivers(ld *l, kn_waiver **out, size_t *n_out, const owner *o, const kn_shape *sh,
+                         kn_node *list)
 {
-    c->waivers = kn_alloc_array(l->a, list->u.seq.n, sizeof(kn_waiver));
+    *out = kn_alloc_array(l->a, list->u.seq.n ? list->u.seq.n : 1, sizeof(kn_waiver));
+    *n_out = 0;
     for (size_t i = 0; i < list->u.seq.n; i++) {
         kn_node *v = list->u.seq.items[i];
-        owner wo = {kn_printf(l->a, "waiver %zu of column", i + 1), c->name, -1, v};
+        owner wo = {kn_printf(l->a, "waiver %zu of %s", i + 1, o->what), o->name, o->name ? -1 : o->index, v};
+        if (!o->name && o->index >= 0) {
+            wo.what = kn_printf(l->a, "waiver %zu of %s %ld", i + 1, o->what, o->index + 1);
+            wo.index = -1;
+        }
         kn_node *vals[MAX_KEYS];
         if (!check_shape(l, sh, &wo, v, vals)) {
             continue;
         }
-        kn_waiver *w = &c->waivers[c->n_waivers++];
+        kn_waiver *w = &(*out)[(*n_out)++];
         w->node = v;
         w->rule = -1;
         w->rule_ref = ref_of(vals[V_RULE]);
@@ -766,7 +818,21 @@ static void load_column(ld *l, const kn_shape *sh, kn_column *c)
     c->role_node = vals[C_ROLE];
     c->type = (kn_value_type)(enum_of(&sh->keys[C_TYPE], vals[C_TYPE], -1) + 1);
     c->type_node = vals[C_TYPE];
-    c->known = ref_of(vals[C_KNOWN]);
+    if (vals[C_KNOWN] && vals[C_KNOWN]->kind == KN_NODE_MAP) {
+        owner ko = {"known of column", c->name, -1, vals[C_KNOWN]};
+        kn_node *kv[MAX_KEYS];
+        if (check_shape(l, sh->keys[C_KNOWN].sub, &ko, vals[C_KNOWN], kv) && kv[K_ONE_OF]) {
+            if (kv[K_ONE_OF]->u.seq.n == 0) {
+                err(l, KN_R_SCHEMA_SHAPE, kv[K_ONE_OF], "'one_of' of the known of column '%s' is empty; name at least one event",
+                    esc(l, c->name));
+            } else {
+                c->one_of_node = kv[K_ONE_OF];
+                c->one_of = refs_of(l, kv[K_ONE_OF], &c->n_one_of);
+            }
+        }
+    } else {
+        c->known = ref_of(vals[C_KNOWN]);
+    }
     if (vals[C_DELAY]) {
         parse_lag(l, &o, "delay", vals[C_DELAY], &c->delay);
     }
@@ -779,7 +845,19 @@ static void load_column(ld *l, const kn_shape *sh, kn_column *c)
             c->join.present = true;
             c->join.node = vals[C_JOIN];
             c->join.keys = refs_of(l, jv[J_KEY], &c->join.n_keys);
-            c->join.as_of = ref_of(jv[J_AS_OF]);
+            if (jv[J_AS_OF] && jv[J_AS_OF]->kind == KN_NODE_MAP) {
+                owner ao = {"as_of of the join of column", c->name, -1, jv[J_AS_OF]};
+                kn_node *av[MAX_KEYS];
+                if (check_shape(l, js->keys[J_AS_OF].sub, &ao, jv[J_AS_OF], av)) {
+                    c->join.as_of = ref_of(av[AO_EVENT]);
+                    if (av[AO_OFFSET] && parse_duration(l, &ao, "offset", av[AO_OFFSET], &c->join.offset)) {
+                        c->join.has_offset = true;
+                        c->join.offset_node = av[AO_OFFSET];
+                    }
+                }
+            } else {
+                c->join.as_of = ref_of(jv[J_AS_OF]);
+            }
             c->join.source = ref_of(jv[J_SOURCE]);
         }
     }
@@ -840,7 +918,7 @@ static void load_column(ld *l, const kn_shape *sh, kn_column *c)
     c->description = str_of(vals[C_DESCRIPTION]);
     c->description_node = vals[C_DESCRIPTION];
     if (vals[C_WAIVE]) {
-        load_waivers(l, c, &o, sh->keys[C_WAIVE].sub, vals[C_WAIVE]);
+        load_waivers(l, &c->waivers, &c->n_waivers, &o, sh->keys[C_WAIVE].sub, vals[C_WAIVE]);
     }
 }
 
@@ -891,6 +969,9 @@ static void load_pipeline(ld *l, const kn_key_spec *spec, kn_node *list)
         st->fit_node = vals[S_FIT];
         st->columns = refs_of(l, vals[S_COLUMNS], &st->n_columns);
         st->description = str_of(vals[S_DESCRIPTION]);
+        if (vals[S_WAIVE]) {
+            load_waivers(l, &st->waivers, &st->n_waivers, &o, sh->keys[S_WAIVE].sub, vals[S_WAIVE]);
+        }
     }
 }
 
@@ -919,6 +1000,22 @@ static void load_split(ld *l, const kn_key_spec *spec, kn_node *v)
         err(l, KN_R_SCHEMA_SHAPE, vals[X_FOLDS], "'folds' of the split must be at least 2; found %lld",
             (long long)sp->folds);
         sp->folds = 0;
+    }
+    bool b;
+    if (vals[X_PURGE] && kn_node_bool(vals[X_PURGE], &b)) {
+        sp->purge = b;
+        sp->purge_node = vals[X_PURGE];
+    }
+    if (vals[X_EMBARGO] && parse_duration(l, &o, "embargo", vals[X_EMBARGO], &sp->embargo)) {
+        if (sp->embargo.lo < 0) {
+            err(l, KN_R_BAD_DURATION, vals[X_EMBARGO], "'embargo' of the split is negative; it is a time kept out of training");
+        } else {
+            sp->has_embargo = true;
+            sp->embargo_node = vals[X_EMBARGO];
+        }
+    }
+    if (vals[X_WAIVE]) {
+        load_waivers(l, &sp->waivers, &sp->n_waivers, &o, sh->keys[X_WAIVE].sub, vals[X_WAIVE]);
     }
 }
 
@@ -1171,6 +1268,11 @@ static void load_file(ld *l, const char *real, const char *display, bool main_fi
                 s->prediction.label_known = ref_of(pv[P_LABEL_KNOWN]);
             }
             s->prediction_broken = l->value_errors != errors_before;
+            if (pv[P_WAIVE]) {
+                /* After the broken mark: a malformed waiver sets nothing aside. */
+                load_waivers(l, &s->prediction.waivers, &s->prediction.n_waivers, &po,
+                             sh->keys[T_PREDICTION].sub->keys[P_WAIVE].sub, pv[P_WAIVE]);
+            }
         } else {
             s->prediction_broken = true;
         }
@@ -1271,6 +1373,52 @@ static void mark_source(kn_ref *r)
     }
 }
 
+/* The rule ids of a block's waivers; an unknown one is unknown-reference
+ * (with a suggestion) and its waiver does nothing. */
+static void resolve_waivers(ld *l, kn_waiver *ws, size_t n, const char *what, const char *name)
+{
+    for (size_t j = 0; j < n; j++) {
+        kn_waiver *w = &ws[j];
+        if (!w->rule_ref.name) {
+            continue;
+        }
+        kn_rule r;
+        if (kn_rule_find(w->rule_ref.name, strlen(w->rule_ref.name), &r)) {
+            w->rule = (int)r;
+            continue;
+        }
+        const char *ctx = name ? kn_printf(l->a, "%s '%s'", what, esc(l, name)) : what;
+        const char *ids[KN_RULE_COUNT];
+        for (size_t k = 0; k < KN_RULE_COUNT; k++) {
+            ids[k] = kn_rule_get((kn_rule)k)->id;
+        }
+        const char *near = kn_suggest(w->rule_ref.name, ids, KN_RULE_COUNT);
+        if (near) {
+            err(l, KN_R_UNKNOWN_REFERENCE, w->rule_ref.node, "%s: rule '%s' does not exist; did you mean '%s'?",
+                ctx, esc(l, w->rule_ref.name), near);
+        } else {
+            err(l, KN_R_UNKNOWN_REFERENCE, w->rule_ref.node,
+                "%s: rule '%s' does not exist (`knowable rules` lists them)", ctx, esc(l, w->rule_ref.name));
+        }
+    }
+}
+
+/* A reference to a first_of event where only an ordinary event will do
+ * (SPEC §3.3): in another event's after/before, as a member of another
+ * first_of, or as the moment.  A schema-shape error at the reference. */
+static void refuse_first_of(ld *l, const kn_ref *r, const char *where, const char *why)
+{
+    const kn_event *f = KN_REF_EVENT(*r);
+    kn_diag *d = err(l, KN_R_SCHEMA_SHAPE, r->node, "%s names '%s', a first_of event: %s", where,
+                     esc(l, f->name), why);
+    if (f->first_of_node) {
+        kn_diag_note(l->sink, d, &f->first_of_node->pos,
+                     "'%s' is the earliest of these events; its range is known only after the timeline is "
+                     "solved, so nothing can be placed relative to it",
+                     esc(l, f->name));
+    }
+}
+
 static void resolve_all(ld *l)
 {
     kn_schema *s = l->s;
@@ -1288,6 +1436,12 @@ static void resolve_all(ld *l)
             }
             if (!resolve(l, &ev, &c->ref, ctx)) {
                 e->broken = true;
+            } else if (KN_REF_EVENT(c->ref)->first_of_node) {
+                refuse_first_of(l, &c->ref, ctx,
+                                "no event may be constrained relative to the earliest of several; constrain "
+                                "it relative to the members");
+                e->broken = true;
+                c->ref.target = NULL;
             }
             kn_event *other = KN_REF_EVENT(c->ref);
             if (c->before) {
@@ -1299,8 +1453,37 @@ static void resolve_all(ld *l)
             }
         }
     }
+    for (size_t i = 0; i < s->n_events; i++) {
+        kn_event *e = s->events[i];
+        for (size_t j = 0; j < e->n_first_of; j++) {
+            kn_ref *r = &e->first_of[j];
+            const char *ctx = kn_printf(l->a, "first_of of event '%s'", esc(l, e->name));
+            if (!resolve(l, &ev, r, ctx)) {
+                e->broken = true;
+            } else if (KN_REF_EVENT(*r) == e) {
+                err(l, KN_R_SCHEMA_SHAPE, r->node, "%s names the event itself", ctx);
+                e->broken = true;
+                r->target = NULL;
+            } else if (KN_REF_EVENT(*r)->first_of_node) {
+                refuse_first_of(l, r, ctx, "list its members here instead (the earliest of the earliest is the earliest of all)");
+                e->broken = true;
+                r->target = NULL;
+            }
+        }
+        resolve_waivers(l, e->waivers, e->n_waivers, "event", e->name);
+    }
+    for (size_t i = 0; i < s->n_sources; i++) {
+        resolve_waivers(l, s->sources[i]->waivers, s->sources[i]->n_waivers, "source", s->sources[i]->name);
+    }
     kn_prediction *p = &s->prediction;
     bool ok = resolve(l, &ev, &p->moment, "prediction moment");
+    if (ok && p->moment.target && KN_REF_EVENT(p->moment)->first_of_node) {
+        refuse_first_of(l, &p->moment, "prediction moment",
+                        "the moment is the point every range is measured from; name the event at which the model is asked");
+        p->moment.target = NULL;
+        ok = false;
+    }
+    resolve_waivers(l, p->waivers, p->n_waivers, "prediction", NULL);
     ok = resolve(l, &co, &p->target, "prediction target") && ok;
     ok = resolve(l, &co, &p->entity, "prediction entity") && ok;
     ok = resolve(l, &co, &p->moment_column, "prediction moment_column") && ok;
@@ -1313,12 +1496,16 @@ static void resolve_all(ld *l)
 
     for (size_t i = 0; i < s->n_columns; i++) {
         kn_column *c = s->columns[i];
-        if (!c->known.name && !c->source.name && !c->join.present && !c->n_derived && !c->window.present &&
-            !c->proxy_of.name && !c->n_waivers) {
+        if (!c->known.name && !c->n_one_of && !c->source.name && !c->join.present && !c->n_derived &&
+            !c->window.present && !c->proxy_of.name && !c->n_waivers) {
             continue;
         }
         bool col_ok = resolve_in(l, &ev, &c->known, "column", c->name);
         mark_event(&c->known);
+        for (size_t j = 0; j < c->n_one_of; j++) {
+            col_ok = resolve_in(l, &ev, &c->one_of[j], "column", c->name) && col_ok;
+            mark_event(&c->one_of[j]);
+        }
         col_ok = resolve_in(l, &so, &c->source, "column", c->name) && col_ok;
         mark_source(&c->source);
         for (size_t j = 0; j < c->join.n_keys; j++) {
@@ -1337,37 +1524,16 @@ static void resolve_all(ld *l)
         if (!col_ok) {
             c->broken = true;
         }
-        for (size_t j = 0; j < c->n_waivers; j++) {
-            kn_waiver *w = &c->waivers[j];
-            if (!w->rule_ref.name) {
-                continue;
-            }
-            kn_rule r;
-            if (kn_rule_find(w->rule_ref.name, strlen(w->rule_ref.name), &r)) {
-                w->rule = (int)r;
-            } else {
-                const char *ctx = kn_printf(l->a, "column '%s'", esc(l, c->name));
-                const char *ids[KN_RULE_COUNT];
-                for (size_t k = 0; k < KN_RULE_COUNT; k++) {
-                    ids[k] = kn_rule_get((kn_rule)k)->id;
-                }
-                const char *near = kn_suggest(w->rule_ref.name, ids, KN_RULE_COUNT);
-                if (near) {
-                    err(l, KN_R_UNKNOWN_REFERENCE, w->rule_ref.node, "%s: rule '%s' does not exist; did you mean '%s'?",
-                        ctx, esc(l, w->rule_ref.name), near);
-                } else {
-                    err(l, KN_R_UNKNOWN_REFERENCE, w->rule_ref.node,
-                        "%s: rule '%s' does not exist (`knowable rules` lists them)", ctx, esc(l, w->rule_ref.name));
-                }
-            }
-        }
+        resolve_waivers(l, c->waivers, c->n_waivers, "column", c->name);
     }
     for (size_t i = 0; i < s->n_steps; i++) {
         const char *ctx = kn_printf(l->a, "pipeline step %zu", i + 1);
         for (size_t j = 0; j < s->steps[i].n_columns; j++) {
             resolve(l, &co, &s->steps[i].columns[j], ctx);
         }
+        resolve_waivers(l, s->steps[i].waivers, s->steps[i].n_waivers, ctx, NULL);
     }
+    resolve_waivers(l, s->split.waivers, s->split.n_waivers, "split", NULL);
     resolve(l, &co, &s->split.column, "split column");
     resolve(l, &co, &s->split.time_column, "split time_column");
     resolve(l, &co, &s->split.group_column, "split group_column");
@@ -1895,5 +2061,11 @@ bool kn_shape_selfcheck(void)
            strcmp(split->keys[X_FOLDS].name, "folds") == 0 && strcmp(split->keys[X_GAP].name, "gap") == 0 &&
            strcmp(step->keys[S_COLUMNS].name, "columns") == 0 && strcmp(ev->keys[E_BEFORE].name, "before") == 0 &&
            strcmp(join->keys[J_AS_OF].name, "as_of") == 0 && strcmp(win->keys[W_TO].name, "to") == 0 &&
-           strcmp(anon->keys[A_SALTED].name, "salted") == 0 && strcmp(waive->keys[V_EXPIRES].name, "expires") == 0;
+           strcmp(anon->keys[A_SALTED].name, "salted") == 0 && strcmp(waive->keys[V_EXPIRES].name, "expires") == 0 &&
+           strcmp(ev->keys[E_FIRST_OF].name, "first_of") == 0 && strcmp(ev->keys[E_WAIVE].name, "waive") == 0 &&
+           strcmp(pred->keys[P_WAIVE].name, "waive") == 0 && strcmp(step->keys[S_WAIVE].name, "waive") == 0 &&
+           strcmp(split->keys[X_PURGE].name, "purge") == 0 && strcmp(split->keys[X_EMBARGO].name, "embargo") == 0 &&
+           strcmp(split->keys[X_WAIVE].name, "waive") == 0 && strcmp(kn_shape_source.keys[SRC_WAIVE].name, "waive") == 0 &&
+           strcmp(join->keys[J_AS_OF].sub->keys[AO_OFFSET].name, "offset") == 0 &&
+           strcmp(col->keys[C_KNOWN].sub->keys[K_ONE_OF].name, "one_of") == 0;
 }

@@ -22,6 +22,7 @@
 typedef struct kn_event kn_event;
 typedef struct kn_source kn_source;
 typedef struct kn_column kn_column;
+struct kn_waiver;
 
 /* A reference by name.  node is the scalar that names it (NULL: absent). */
 typedef struct kn_ref {
@@ -66,6 +67,12 @@ struct kn_event {
     bool used;    /* some column or the prediction refers to it */
     bool broken;  /* a constraint of its own is malformed or names no event:
                      set aside (with its own error) from the timeline */
+    kn_ref *first_of; /* -> kn_event: the earliest of these (SPEC §3.3); such
+                         an event has no constraints of its own */
+    size_t n_first_of;
+    kn_node *first_of_node;
+    struct kn_waiver *waivers;
+    size_t n_waivers;
 };
 
 typedef enum kn_source_kind { KN_SOURCE_UNSET, KN_SOURCE_INTERNAL, KN_SOURCE_EXTERNAL } kn_source_kind;
@@ -92,6 +99,7 @@ typedef enum kn_source_field {
     KN_SF_VERSION,
     KN_SF_POINT_IN_TIME,
     KN_SF_DOCUMENTATION,
+    KN_SF_MATURES,
     KN_SF_COUNT
 } kn_source_field;
 
@@ -111,6 +119,9 @@ struct kn_source {
     int64_t refresh;        /* upper bound of the refresh period, microseconds */
     kn_history history;
     int point_in_time;      /* -1 unset, 0 false, 1 true */
+    kn_lag matures;         /* how long a record's values may still change */
+    struct kn_waiver *waivers;
+    size_t n_waivers;
     size_t index;
     bool used;
     bool broken; /* a value of its own is malformed: set aside, and the
@@ -168,6 +179,10 @@ struct kn_column {
     kn_node *type_node;
 
     kn_ref known;   /* -> kn_event */
+    kn_ref *one_of; /* known: {one_of: [...]}: -> kn_event, the row's event is
+                       one of these (known itself stays empty) */
+    size_t n_one_of;
+    kn_node *one_of_node;
     kn_lag delay;
     kn_ref source;  /* -> kn_source */
 
@@ -177,6 +192,9 @@ struct kn_column {
         kn_ref *keys; /* -> kn_column */
         size_t n_keys;
         kn_ref as_of;  /* -> kn_event */
+        bool has_offset;   /* as_of: {event, offset} */
+        kn_interval offset;
+        kn_node *offset_node;
         kn_ref source; /* -> kn_source; absent: the column's source */
     } join;
 
@@ -248,6 +266,8 @@ typedef struct kn_step {
     kn_ref *columns; /* -> kn_column; NULL/0 = all features */
     size_t n_columns;
     const char *description;
+    struct kn_waiver *waivers;
+    size_t n_waivers;
 } kn_step;
 
 typedef enum kn_split_method {
@@ -269,6 +289,13 @@ typedef struct kn_split {
     kn_interval gap;
     kn_node *gap_node;
     long long folds;
+    bool purge;
+    kn_node *purge_node;
+    bool has_embargo;
+    kn_interval embargo;
+    kn_node *embargo_node;
+    struct kn_waiver *waivers;
+    size_t n_waivers;
 } kn_split;
 
 typedef struct kn_prediction {
@@ -278,6 +305,8 @@ typedef struct kn_prediction {
     kn_ref entity;        /* -> kn_column */
     kn_ref moment_column; /* -> kn_column */
     kn_ref label_known;   /* -> kn_event */
+    struct kn_waiver *waivers;
+    size_t n_waivers;
 } kn_prediction;
 
 /* One file that took part (the schema and its includes). */

@@ -7,6 +7,9 @@
 
 #define N(a) (sizeof(a) / sizeof((a)[0]))
 
+static const kn_shape waiver_shape;
+#define WAIVE(what) {"waive", KN_V_LIST_OF_MAP, false, NULL, &waiver_shape, KN_REF_NONE, false, "accepted findings on this " what, NULL}
+
 const char *const kn_roles[] = {"feature", "target", "identifier", "timestamp", "split", "weight", "excluded", NULL};
 const char *const kn_types[] = {"number", "category", "boolean", "text", "timestamp", "date", NULL};
 const char *const kn_kinds[] = {"internal", "external", NULL};
@@ -23,6 +26,7 @@ static const kn_key_spec prediction_keys[] = {
     {"entity", KN_V_NAME, false, NULL, NULL, KN_REF_COLUMN_K, false, "the unit that may have several rows (a customer, a vehicle)", NULL},
     {"moment_column", KN_V_NAME, false, NULL, NULL, KN_REF_COLUMN_K, false, "the column holding, per row, the timestamp of the moment", NULL},
     {"label_known", KN_V_NAME, false, NULL, NULL, KN_REF_EVENT_K, false, "when the target's value is settled (default: the target's known)", NULL},
+    WAIVE("block"),
 };
 static const kn_shape prediction_shape = {"prediction", prediction_keys, N(prediction_keys)};
 
@@ -30,8 +34,18 @@ static const kn_key_spec event_keys[] = {
     {"after", KN_V_RELATION, false, NULL, NULL, KN_REF_EVENT_K, false, "t(this) - t(E) lies in LAG; a bare name means at or after E", NULL},
     {"before", KN_V_RELATION, false, NULL, NULL, KN_REF_EVENT_K, false, "t(E) - t(this) lies in LAG", NULL},
     {"description", KN_V_STRING, false, NULL, NULL, KN_REF_NONE, false, "", NULL},
+    {"first_of", KN_V_NAMES, false, NULL, NULL, KN_REF_EVENT_K, false, "the earliest of these events (alternative routes); takes no after or before", NULL},
+    WAIVE("event"),
 };
 static const kn_shape event_shape = {"event", event_keys, N(event_keys)};
+
+/* Keys that exclude each other in one mapping (the loader reports the
+ * second; the JSON Schema says "not both"). */
+const kn_exclusion kn_exclusions[] = {
+    {&event_shape, "first_of", "after"},
+    {&event_shape, "first_of", "before"},
+};
+const size_t kn_n_exclusions = N(kn_exclusions);
 
 static const kn_key_spec source_keys[] = {
     {"kind", KN_V_ENUM, true, kn_kinds, NULL, KN_REF_NONE, false, "internal, or external (bought, downloaded or otherwise third-party)", NULL},
@@ -47,12 +61,25 @@ static const kn_key_spec source_keys[] = {
     {"version", KN_V_STRING, false, NULL, NULL, KN_REF_NONE, false, "provider's release or snapshot id", NULL},
     {"point_in_time", KN_V_BOOL, false, NULL, NULL, KN_REF_NONE, false, "the provider can serve values as they stood at a past date", NULL},
     {"documentation", KN_V_STRING, false, NULL, NULL, KN_REF_NONE, false, "URL or path of the provider's documentation", NULL},
+    {"matures", KN_V_LAG, false, NULL, NULL, KN_REF_NONE, false, "how long after its event a record's values may still change", NULL},
+    WAIVE("source"),
 };
 const kn_shape kn_shape_source = {"source", source_keys, N(source_keys)};
 
+static const kn_key_spec as_of_keys[] = {
+    {"event", KN_V_NAME, true, NULL, NULL, KN_REF_EVENT_K, false, "the event as of which the joined value is taken", NULL},
+    {"offset", KN_V_DURATION, false, NULL, NULL, KN_REF_NONE, false, "added to the event: -P1D = as it stood a day before", NULL},
+};
+static const kn_shape as_of_shape = {"as_of", as_of_keys, N(as_of_keys)};
+
+static const kn_key_spec known_keys[] = {
+    {"one_of", KN_V_NAMES, true, NULL, NULL, KN_REF_EVENT_K, false, "the value exists from one of these events, varying per row", NULL},
+};
+static const kn_shape known_shape = {"known", known_keys, N(known_keys)};
+
 static const kn_key_spec join_keys[] = {
     {"key", KN_V_NAME_OR_NAMES, false, NULL, NULL, KN_REF_COLUMN_K, false, "the join key column(s)", NULL},
-    {"as_of", KN_V_NAME, false, NULL, NULL, KN_REF_EVENT_K, false, "the event as of which the joined value is taken; absent: today's value", NULL},
+    {"as_of", KN_V_NAME_OR_MAP, false, NULL, &as_of_shape, KN_REF_EVENT_K, false, "the event as of which the joined value is taken, or {event, offset}; absent: today's value", NULL},
     {"source", KN_V_NAME, false, NULL, NULL, KN_REF_SOURCE_K, false, "default: the column's source", NULL},
 };
 static const kn_shape join_shape = {"join", join_keys, N(join_keys)};
@@ -80,7 +107,7 @@ static const kn_shape waiver_shape = {"waiver", waiver_keys, N(waiver_keys)};
 static const kn_key_spec column_keys[] = {
     {"role", KN_V_ENUM, false, kn_roles, NULL, KN_REF_NONE, false, "default feature; excluded: kept in the table, never given to the model", NULL},
     {"type", KN_V_ENUM, false, kn_types, NULL, KN_REF_NONE, false, "used by data checks", NULL},
-    {"known", KN_V_NAME, false, NULL, NULL, KN_REF_EVENT_K, false, "the event from which the value exists", NULL},
+    {"known", KN_V_NAME_OR_MAP, false, NULL, &known_shape, KN_REF_EVENT_K, false, "the event from which the value exists, or {one_of: [...]}", NULL},
     {"delay", KN_V_LAG, false, NULL, NULL, KN_REF_NONE, false, "extra delay after known before the value is recorded", NULL},
     {"source", KN_V_NAME, false, NULL, NULL, KN_REF_SOURCE_K, false, "where the value comes from", NULL},
     {"join", KN_V_MAP, false, NULL, &join_shape, KN_REF_NONE, false, "how it was joined in", NULL},
@@ -100,6 +127,7 @@ static const kn_key_spec step_keys[] = {
     {"fit", KN_V_ENUM, false, kn_fits, NULL, KN_REF_NONE, false, "which rows its parameters are estimated from", NULL},
     {"columns", KN_V_NAMES, false, NULL, NULL, KN_REF_COLUMN_K, false, "default: all features", NULL},
     {"description", KN_V_STRING, false, NULL, NULL, KN_REF_NONE, false, "", NULL},
+    WAIVE("pipeline step"),
 };
 static const kn_shape step_shape = {"pipeline step", step_keys, N(step_keys)};
 
@@ -110,6 +138,9 @@ static const kn_key_spec split_keys[] = {
     {"group_column", KN_V_NAME, false, NULL, NULL, KN_REF_COLUMN_K, false, "for group and group_time; default prediction.entity", NULL},
     {"gap", KN_V_DURATION, false, NULL, NULL, KN_REF_NONE, false, "time between the end of training and the start of test", NULL},
     {"folds", KN_V_INT, false, NULL, NULL, KN_REF_NONE, false, "", NULL},
+    {"purge", KN_V_BOOL, false, NULL, NULL, KN_REF_NONE, false, "training rows whose label horizon overlaps the test period are dropped", NULL},
+    {"embargo", KN_V_DURATION, false, NULL, NULL, KN_REF_NONE, false, "rows just after each test period are kept out of training", NULL},
+    WAIVE("split"),
 };
 static const kn_shape split_shape = {"split", split_keys, N(split_keys)};
 
@@ -126,6 +157,7 @@ static const kn_key_spec top_keys[] = {
     {"split", KN_V_MAP, false, NULL, &split_shape, KN_REF_NONE, false, "how rows are assigned to training and test", NULL},
 };
 const kn_shape kn_shape_top = {"schema", top_keys, N(top_keys)};
+#undef WAIVE
 
 static const kn_key_spec included_keys[] = {
     {"knowable", KN_V_VERSION, true, NULL, NULL, KN_REF_NONE, false, "format version, 1", NULL},

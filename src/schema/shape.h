@@ -27,6 +27,7 @@ typedef enum kn_value_kind {
     KN_V_NAMED_MAPS,  /* mapping name -> mapping with keys from sub (or null when nullable) */
     KN_V_PATHS,       /* list of relative paths */
     KN_V_PATTERN,     /* a PCRE2 pattern */
+    KN_V_NAME_OR_MAP, /* a name, or a mapping with keys from sub */
 } kn_value_kind;
 
 typedef enum kn_ref_kind { KN_REF_NONE, KN_REF_EVENT_K, KN_REF_COLUMN_K, KN_REF_SOURCE_K, KN_REF_RULE_K } kn_ref_kind;
@@ -50,6 +51,13 @@ struct kn_shape {
     const kn_key_spec *keys;
     size_t n_keys;
 };
+
+typedef struct kn_exclusion {
+    const kn_shape *shape;
+    const char *key, *other; /* not both in one mapping of shape */
+} kn_exclusion;
+extern const kn_exclusion kn_exclusions[];
+extern const size_t kn_n_exclusions;
 
 extern const kn_shape kn_shape_top;
 extern const kn_shape kn_shape_included;

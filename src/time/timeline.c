@@ -77,6 +77,8 @@ struct kn_timeline {
                         moment only through such an event (no range) */
     const char **step_text; /* per edge: the words of its step, made once
                                (many findings share the steps of a chain) */
+    size_t *first_up, *first_down; /* per first_of event: the member whose
+                                      bound decided its upper / lower end */
 
     kn_column_timing *col;
     size_t n_col;
@@ -789,10 +791,36 @@ static void compute_column(kn_timeline *t, size_t ci)
     ok = lag_iv(&c->delay, &delay) && ok;
     ok = source_wait(c, &wait) && ok;
 
-    if (c->known.node || c->known.target) {
+    if (c->n_one_of) {
+        /* known: {one_of: [...]}: the row's event is one of the members,
+         * so the hull of their ranges (SPEC §3.5). */
+        T->has[KN_PART_KNOWN] = true;
+        kn_interval hull = iv(KN_TIME_INF, -KN_TIME_INF);
+        for (size_t k = 0; k < c->n_one_of && ok; k++) {
+            const kn_event *m = KN_REF_EVENT(c->one_of[k]);
+            kn_interval e;
+            if (!event_iv(t, m, &e)) {
+                ok = false;
+                break;
+            }
+            if (!T->known_lo_by || e.lo < hull.lo) {
+                hull.lo = e.lo;
+                T->known_lo_by = m;
+            }
+            if (!T->known_hi_by || e.hi > hull.hi) {
+                hull.hi = e.hi;
+                T->known_hi_by = m;
+            }
+        }
+        if (ok) {
+            T->event[KN_PART_KNOWN] = hull;
+            T->part[KN_PART_KNOWN] = kn_interval_add(kn_interval_add(hull, delay), wait);
+        }
+    } else if (c->known.node || c->known.target) {
         T->has[KN_PART_KNOWN] = true;
         kn_interval e;
         if (ok && event_iv(t, KN_REF_EVENT(c->known), &e)) {
+            T->known_lo_by = T->known_hi_by = KN_REF_EVENT(c->known);
             T->event[KN_PART_KNOWN] = e;
             T->part[KN_PART_KNOWN] = kn_interval_add(kn_interval_add(e, delay), wait);
         } else {
@@ -859,7 +887,8 @@ static void compute_column(kn_timeline *t, size_t ci)
         kn_interval e;
         if (ok && event_iv(t, KN_REF_EVENT(c->join.as_of), &e)) {
             T->event[KN_PART_AS_OF] = e;
-            T->part[KN_PART_AS_OF] = e;
+            /* as_of: {event, offset}: the value as it stood at event + offset */
+            T->part[KN_PART_AS_OF] = c->join.has_offset ? kn_interval_add(e, c->join.offset) : e;
         } else {
             ok = false;
         }
@@ -1080,6 +1109,49 @@ static void set_aside_cut_off(kn_timeline *t, const scratch *sc, const bool *rea
     }
 }
 
+/* first_of events (SPEC §3.3): no constraint names them, so the solve
+ * leaves them unbounded; each takes [min of its members' lower bounds, min
+ * of their upper bounds], which holds whichever member comes first.  A
+ * member set aside (or unresolved) sets the first_of event aside too: how
+ * early it could come is then unknown.  Members are ordinary events (the
+ * loader refuses a first_of member), so one pass suffices. */
+static void solve_first_of(kn_timeline *t)
+{
+    const kn_schema *s = t->schema;
+    t->first_up = kn_alloc_array(t->arena, t->n_ev + 1, sizeof *t->first_up);
+    t->first_down = kn_alloc_array(t->arena, t->n_ev + 1, sizeof *t->first_down);
+    for (size_t i = 0; i < t->n_ev; i++) {
+        t->first_up[i] = t->first_down[i] = NONE;
+        const kn_event *e = s->events[i];
+        if (!e->first_of_node) {
+            continue;
+        }
+        int64_t lo = KN_TIME_INF, hi = KN_TIME_INF;
+        bool ok = !e->broken && e->n_first_of > 0;
+        for (size_t k = 0; k < e->n_first_of && ok; k++) {
+            size_t m = ev_index(t, KN_REF_EVENT(e->first_of[k]));
+            if (m == NONE || t->aside[m] || s->events[m]->first_of_node) {
+                ok = false;
+                break;
+            }
+            if (t->first_down[i] == NONE || t->down[m] < lo) {
+                lo = t->down[m];
+                t->first_down[i] = m;
+            }
+            if (t->first_up[i] == NONE || t->up[m] < hi) {
+                hi = t->up[m];
+                t->first_up[i] = m;
+            }
+        }
+        if (!ok) {
+            t->aside[i] = true;
+            continue;
+        }
+        t->down[i] = lo;
+        t->up[i] = hi;
+    }
+}
+
 /* --- public ---------------------------------------------------------------- */
 
 kn_timeline *kn_timeline_solve(kn_arena *a, kn_sink *sink, const kn_schema *s,
@@ -1133,6 +1205,7 @@ kn_timeline *kn_timeline_solve(kn_arena *a, kn_sink *sink, const kn_schema *s,
         bool *reached_up = copy_seen(t, sc);
         solve_from_moment(t, sc, true, t->down, t->pred_down);
         set_aside_cut_off(t, sc, reached_up);
+        solve_first_of(t);
     }
     compute_columns(t);
     return t;
@@ -1207,6 +1280,10 @@ size_t kn_timeline_chain(const kn_timeline *t, const kn_event *e, bool upper,
     if (i == NONE || t->unsolved || t->aside[i]) {
         return 0;
     }
+    const kn_event *by = kn_timeline_first_of_member(t, e, upper);
+    if (by) {
+        i = ev_index(t, by);
+    }
     const size_t *pred = upper ? t->pred_up : t->pred_down;
     size_t n = 0;
     for (size_t x = i; pred[x] != NONE && n < t->n_ev; n++) {
@@ -1229,12 +1306,44 @@ size_t kn_timeline_chain(const kn_timeline *t, const kn_event *e, bool upper,
     return n;
 }
 
+const kn_event *kn_timeline_first_of_member(const kn_timeline *t, const kn_event *e, bool upper)
+{
+    size_t i = t ? ev_index(t, e) : NONE;
+    if (i == NONE || t->unsolved || t->aside[i] || !t->first_up) {
+        return NULL;
+    }
+    size_t m = upper ? t->first_up[i] : t->first_down[i];
+    return m == NONE ? NULL : t->schema->events[m];
+}
+
 void kn_timeline_note_chain(const kn_timeline *t, kn_sink *sink, kn_diag *d,
                             const kn_event *e, bool upper)
 {
     size_t i = t ? ev_index(t, e) : NONE;
     if (i == NONE || t->unsolved || t->aside[i]) {
         return;
+    }
+    const kn_event *by = kn_timeline_first_of_member(t, e, upper);
+    if (by) {
+        /* The end of a first_of event is the end of one member's range. */
+        char b[48];
+        int64_t v = upper ? t->up[i] : t->down[i];
+        const char *w;
+        if (v >= KN_TIME_INF || v <= -KN_TIME_INF) {
+            w = "unbounded";
+        } else if (v == 0) {
+            w = "at the moment";
+        } else {
+            w = kn_printf(t->arena, "%s %s the moment", kn_duration_format(v < 0 ? kn_time_neg(v) : v, b, sizeof b),
+                          v < 0 ? "before" : "after");
+        }
+        kn_diag_note(sink, d, e->first_of_node ? &e->first_of_node->pos : NULL,
+                     "'%s' is the first of %zu events; its %s end (%s) is that of '%s', the member with the "
+                     "earliest %s bound (events.%s.first_of)",
+                     e->name, e->n_first_of, upper ? "latest" : "earliest", w, by->name, upper ? "upper" : "lower",
+                     e->name);
+        e = by;
+        i = ev_index(t, e);
     }
     /* Walks the predecessors twice instead of copying the chain: a column
      * at the end of a long chain costs its shown notes, not the chain. */

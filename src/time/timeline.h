@@ -95,6 +95,12 @@ void kn_timeline_note_chain(const kn_timeline *t, kn_sink *sink, kn_diag *d,
                             const kn_event *e, bool upper);
 void kn_timeline_note_step(kn_sink *sink, kn_diag *d, const kn_chain_step *st);
 
+/* For a first_of event (SPEC §3.3): the member whose bound is the event's
+ * upper (or lower) end; NULL for any other event or when it has no range.
+ * kn_timeline_chain and kn_timeline_note_chain follow that member (the
+ * notes say which member decided). */
+const kn_event *kn_timeline_first_of_member(const kn_timeline *t, const kn_event *e, bool upper);
+
 /* The words of one step, as in the notes (arena memory). */
 char *kn_timeline_step_words(kn_arena *a, const kn_chain_step *st);
 
@@ -134,6 +140,9 @@ typedef struct kn_column_timing {
     bool inputs_partial;              /* some input has no timing or is set
                                          aside: the inputs part holds only
                                          when it is late (then open-ended) */
+    const kn_event *known_lo_by;      /* the known event, or the member of
+                                         known.one_of with the earliest */
+    const kn_event *known_hi_by;      /* ... and the latest bound */
     bool from_target;                 /* is the target or derives from it */
     const kn_column *target_via;      /* the input leading to the target */
 } kn_column_timing;

@@ -80,7 +80,10 @@ INCLUDED = jsonschema.Draft7Validator({**SCHEMA["definitions"]["included_file"],
 JSON_SCHEMA_BLIND = ("above its maximum", "is negative", "too large")
 # schema-shape findings that compare two values of the file (the target
 # column given a second role elsewhere), which a JSON Schema cannot express.
-SHAPE_CROSS_REFERENCE = ("(prediction.target) and cannot also have role", "names the target '")
+# A reference to a first_of event (events.X.after, a first_of member, the
+# moment) depends on what the name refers to, also beyond a JSON Schema.
+SHAPE_CROSS_REFERENCE = ("(prediction.target) and cannot also have role", "names the target '",
+                         ", a first_of event:", "names the event itself")
 
 
 def shape_problems(diags, display):
