@@ -438,10 +438,23 @@ static bool load_file(rb_ld *l, const char *path, const kn_node *from)
     if (from) {
         const char *shown = kn_escape_term(l->a, kn_node_str(from), strlen(kn_node_str(from)));
         if (!id) {
-            fail(l, KN_R_INCLUDE_REFUSED, from, "extends '%s' is refused: no such file", shown);
-            return false;
+            /* A missing file outside the root is refused as outside: the
+             * tool does not tell whether files exist beyond the root. */
+            char *p = kn_strdup(l->a, path);
+            const char *parent = NULL;
+            for (char *slash = strrchr(p, '/'); slash && !parent; slash = strrchr(p, '/')) {
+                *slash = '\0';
+                parent = real_path(l, slash == p ? "/" : p);
+            }
+            if (!parent) {
+                parent = real_path(l, ".");
+            }
+            if (!parent || inside_root(l, parent)) {
+                fail(l, KN_R_INCLUDE_REFUSED, from, "extends '%s' is refused: no such file", shown);
+                return false;
+            }
         }
-        if (!inside_root(l, id)) {
+        if (!id || !inside_root(l, id)) {
             kn_diag *d = fail(l, KN_R_INCLUDE_REFUSED, from, "extends '%s' is refused: it leaves the root folder",
                               shown);
             kn_diag_note(l->sink, d, &from->pos,

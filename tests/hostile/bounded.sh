@@ -318,6 +318,14 @@ case_rulebook_extends() {
             "escape: the FIFO is not refused"
     fi
     grep -q -e secret -e 'Name:' escape.out && fail "escape: a file outside the root was read"
+    # A missing file outside the root is refused as outside, not as missing.
+    printf '%s\n' 'knowable_rulebook: 1' 'extends: [../outside/nothere.yaml, nothere.yaml]' >root/missing.yaml
+    run missing check --rulebook root/missing.yaml root/s.knowable.yaml
+    expect_rc 2
+    expect_grep "^root/missing.yaml:2:[0-9]*: error: extends '../outside/nothere.yaml' is refused: it leaves the root" \
+        missing.out "missing: a missing file outside the root is not refused as outside"
+    expect_grep "^root/missing.yaml:2:[0-9]*: error: extends 'nothere.yaml' is refused: no such file" \
+        missing.out "missing: a missing file inside the root is not said to be missing"
 }
 
 case_names_patterns() {
