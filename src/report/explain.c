@@ -977,14 +977,14 @@ static const kn_explain_text texts[] = {
         "with that reason.",
     },
     EXPLAIN(SMALL_QUASI_IDENTIFIER_GROUPS) = {
-        "In the data sample, the combination of all columns marked "
-        "quasi_identifier: true leaves groups of rows smaller than the "
+        "In the data (every row, not a sample), the combination of all columns "
+        "marked quasi_identifier: true leaves groups of rows smaller than the "
         "rulebook's min_group_size, k.",
         "A table is k-anonymous when every combination of quasi-identifier "
         "values is shared by at least k rows (Sweeney, 2002); a smaller group "
         "can single out a person once the table is linked with other data, as a "
         "postcode, a birth year and a membership tier may identify one rider. "
-        "This screening is an aid, not a privacy review: it looks at a sample "
+        "This screening is an aid, not a privacy review: it looks at one file "
         "and defers to applicable law and to the organisation's privacy "
         "practice.",
         "columns:\n"
