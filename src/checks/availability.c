@@ -19,6 +19,8 @@ typedef struct cx {
     size_t *hops;               /* per column: derivations between it and the target */
     const kn_column **root;     /* per column: the target it derives from */
     const kn_column **stack;    /* scratch for target_hops */
+    struct words_slot *words_memo; /* ranges already put in words */
+    size_t n_words;
 } cx;
 
 static const kn_pos *at(const kn_column *c, const kn_node *n)
@@ -158,6 +160,33 @@ static void note_wait(const cx *x, kn_diag *d, const kn_column *c)
     }
 }
 
+/* A range relative to the moment in words, through a small table keyed by
+ * the range: many findings name the same few events' ranges, so each range
+ * is put in words once.  A full table just stops remembering. */
+typedef struct words_slot {
+    int64_t lo, hi;
+    const char *text;
+} words_slot;
+
+static const char *event_words(const cx *x, kn_interval r)
+{
+    size_t n = x->n_words;
+    uint64_t h = ((uint64_t)r.lo * 0x9e3779b97f4a7c15ull) ^ ((uint64_t)r.hi * 0xc2b2ae3d27d4eb4full);
+    for (size_t k = 0, i = (size_t)(h % n); k < 8; k++, i = (i + 1) % n) {
+        words_slot *w = &x->words_memo[i];
+        if (!w->text) {
+            w->lo = r.lo;
+            w->hi = r.hi;
+            w->text = words(x, r);
+            return w->text;
+        }
+        if (w->lo == r.lo && w->hi == r.hi) {
+            return w->text;
+        }
+    }
+    return words(x, r);
+}
+
 static void explain_event_part(const cx *x, kn_diag *d, const kn_column *c, kn_timing_part p,
                                bool upper)
 {
@@ -175,17 +204,17 @@ static void explain_event_part(const cx *x, kn_diag *d, const kn_column *c, kn_t
     } else if (p == KN_PART_KNOWN) {
         e = KN_REF_EVENT(c->known);
         kn_diag_note(sink, d, at(c, c->known.node), "'%s' is known at '%s', which comes %s (columns.%s.known)",
-                     c->name, e->name, words(x, T->event[p]), c->name);
+                     c->name, e->name, event_words(x, T->event[p]), c->name);
     } else if (p == KN_PART_WINDOW) {
         e = KN_REF_EVENT(c->window.anchor);
         kn_diag_note(sink, d, at(c, c->window.anchor.node),
                      "the window of '%s' is anchored at '%s', which comes %s (columns.%s.window.anchor)",
-                     c->name, e->name, words(x, T->event[p]), c->name);
+                     c->name, e->name, event_words(x, T->event[p]), c->name);
     } else {
         e = KN_REF_EVENT(c->join.as_of);
         kn_diag_note(sink, d, at(c, c->join.as_of.node),
                      "'%s' is joined as of '%s', which comes %s (columns.%s.join.as_of)", c->name,
-                     e->name, words(x, T->event[p]), c->name);
+                     e->name, event_words(x, T->event[p]), c->name);
         if (c->join.has_offset) {
             kn_diag_note(sink, d, at(c, c->join.offset_node),
                          "the join takes the value as it stood %s, which is %s (columns.%s.join.as_of.offset)",
@@ -659,7 +688,9 @@ static void check_label_settled(const cx *x)
 void kn_check_availability(kn_ctx *ctx, const kn_schema *s, const kn_timeline *t)
 {
     const kn_event *m = kn_timeline_moment(t);
-    cx x = {ctx, s, t, m ? m->name : "", NULL, NULL, NULL};
+    size_t n_words = 2 * s->n_events + 61;
+    cx x = {ctx, s, t, m ? m->name : "", NULL, NULL, NULL,
+            kn_alloc_array(ctx->arena, n_words, sizeof(words_slot)), n_words};
     x.hops = kn_alloc_array(ctx->arena, s->n_columns + 1, sizeof *x.hops);
     x.root = kn_alloc_array(ctx->arena, s->n_columns + 1, sizeof *x.root);
     memset(x.hops, 0xff, (s->n_columns + 1) * sizeof *x.hops);
