@@ -71,6 +71,10 @@ typedef struct kn_options {
                                    over a file the run read; NULL: to out */
     const char *svg;            /* timeline --svg FILE, written the same way */
     bool force;                 /* init -o may replace an existing file */
+    const char *table;          /* --table NAME: the table of a database --data,
+                                   and of `sql` (schema.table: each part quoted) */
+    const char *query;          /* --query FILE.sql: the rows are that query's */
+    const char *dialect;        /* sql --dialect postgresql|mysql|sqlite|ansi */
     bool show_waived;
     bool color;
     bool quiet; /* -q: diagnostics only, no notes and no summary line */
@@ -107,6 +111,12 @@ kn_status kn_timeline_report(const kn_options *o, const char *schema, FILE *out,
 /* `knowable init`: a draft schema from a CSV sample.  With o->output, an
  * existing file is replaced only with o->force. */
 kn_status kn_init(const kn_options *o, const char *csv, FILE *out, FILE *err);
+
+/* `knowable sql`: the data checks of schema as aggregate SQL for the
+ * table o->table (or the rows of the query in the file o->query), in the
+ * dialect o->dialect (NULL: ansi), each query commented with the rules it
+ * serves. */
+kn_status kn_sql(const kn_options *o, const char *schema, FILE *out, FILE *err);
 
 /* `knowable json-schema`: a JSON Schema (draft-07) of the schema format
  * (to o->output when set). */

@@ -8,6 +8,7 @@
 #include <string.h>
 
 #include "../checks/checks.h"
+#include "../data/sql.h"
 #include "../docs/docs.h"
 #include "../report/render.h"
 #include "../schema/shape.h"
@@ -172,6 +173,69 @@ kn_status kn_init(const kn_options *o, const char *csv, FILE *out, FILE *err)
         kn_run_close_outputs(&r, false);
         return refuse(&r, NULL);
     }
+    return end(&r, KN_EXIT_OK);
+}
+
+/* The text of --query FILE.sql (at most 1 MiB), or NULL with a message. */
+static const char *read_query(kn_run *r, const char *path)
+{
+    enum { MAX_QUERY = 1 << 20 };
+    FILE *f = fopen(path, "rb");
+    if (!f) {
+        fputs("knowable: cannot read the query file ", r->err);
+        kn_fput_term(r->err, path, strlen(path));
+        fputs("\n", r->err);
+        return NULL;
+    }
+    char *text = kn_alloc(r->arena, MAX_QUERY + 1);
+    size_t n = fread(text, 1, MAX_QUERY + 1, f);
+    bool bad = ferror(f) || n > MAX_QUERY;
+    fclose(f);
+    if (bad || n == 0 || memchr(text, '\0', n)) {
+        fputs("knowable: the query file ", r->err);
+        kn_fput_term(r->err, path, strlen(path));
+        fputs(n > MAX_QUERY ? " is larger than 1 MiB\n" : " is empty, unreadable or holds a NUL byte\n", r->err);
+        return NULL;
+    }
+    text[n] = '\0';
+    return text;
+}
+
+kn_status kn_sql(const kn_options *o, const char *schema, FILE *out, FILE *err)
+{
+    KN_ENTRY_ARENA(a, err);
+    kn_run r;
+    kn_run_init(&r, a, "sql", o, out, err);
+    kn_run_format(&r, 0, KN_FORMAT_DEFAULT);
+    if (r.failed) {
+        return end(&r, KN_EXIT_FAILED);
+    }
+    kn_sql_dialect d = KN_SQL_ANSI;
+    if (o->dialect && !kn_sql_dialect_parse(o->dialect, &d)) {
+        fputs("knowable: unknown dialect '", err);
+        kn_fput_term(err, o->dialect, strlen(o->dialect));
+        fputs("' (postgresql, mysql, sqlite or ansi)\n", err);
+        return end(&r, KN_EXIT_FAILED);
+    }
+    if (!o->table == !o->query || (o->table && !o->table[0])) {
+        fputs("knowable: sql needs --table NAME or --query FILE.sql (one of them)\n", err);
+        return end(&r, KN_EXIT_FAILED);
+    }
+    const char *query_sql = o->query ? read_query(&r, o->query) : NULL;
+    if (o->query && !query_sql) {
+        return end(&r, KN_EXIT_FAILED);
+    }
+    kn_unit *u = kn_run_load(&r, schema);
+    if (!u->schema || !u->schema->shape_ok || !u->rulebook || kn_sink_fatal(r.sink)) {
+        return refuse(&r, "the schema has errors (above); fix them before writing its queries");
+    }
+    kn_sql_plan plan;
+    kn_sql_make(a, u->schema, u->rulebook, o->table, query_sql, d, &plan);
+    FILE *doc = kn_run_open_output(&r, o->output, out, false);
+    if (!doc) {
+        return end(&r, KN_EXIT_FAILED);
+    }
+    kn_sql_write(doc, a, &plan, u->schema->path, o->table, d);
     return end(&r, KN_EXIT_OK);
 }
 

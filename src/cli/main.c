@@ -25,6 +25,7 @@ static const char usage_text[] =
     "                                 register of feature sources and their provenance\n"
     "  timeline SCHEMA [--svg FILE]   each event and column placed relative to the moment\n"
     "  init DATA.csv [-o FILE]        draft a schema from a data sample\n"
+    "  sql SCHEMA --table NAME [--dialect D]   the data checks as aggregate SQL, for review\n"
     "  json-schema                    a JSON Schema of the schema format, for editors\n"
     "  lsp [--rulebook F] [--root D]  a language server for editors (LSP over stdin/stdout)\n"
     "  help COMMAND                   help on one command (`knowable help help`)\n"
@@ -75,7 +76,7 @@ static const char rules_help[] =
 static const char help_help[] =
     "usage: knowable help [COMMAND]\n\n"
     "Without COMMAND, the list of commands; with one, its options.  The commands are\n"
-    "check, explain, rules, sources, timeline, init, json-schema, lsp and help.\n";
+    "check, explain, rules, sources, timeline, init, sql, json-schema, lsp and help.\n";
 static const char sources_help[] =
     "usage: knowable sources [--format markdown|json] [-o FILE] [--root DIR] [--] SCHEMA...\n\n"
     "The register of feature sources: external sources first, with their provenance,\n"
@@ -96,6 +97,13 @@ static const char lsp_help[] =
     "actions.  Without --rulebook each schema uses the rulebook `check` would find.\n\n"
     "exit status: 0 after shutdown and exit, 1 when the input ends or exit comes\n"
     "without shutdown, 2 when knowable was built without the language server\n";
+static const char sql_help[] =
+    "usage: knowable sql [--dialect postgresql|mysql|sqlite|ansi] [-o FILE] (--table NAME | --query FILE.sql) [--] SCHEMA\n\n"
+    "The queries `check --data odbc:...` runs for the data checks of SCHEMA, each commented\n"
+    "with the rules it serves: counts, GROUP BY tables of a column and the target, split\n"
+    "overlaps and quasi-identifier group sizes, so that only aggregated rows leave the\n"
+    "engine.  Names are quoted identifiers of the dialect (default ansi); --table\n"
+    "schema.table quotes each part; --query uses the rows of the query in FILE.sql.\n";
 static const char json_schema_help[] = "usage: knowable json-schema [-o FILE]\n\nA JSON Schema (draft-07) of the schema file format.\n";
 
 typedef struct args {
@@ -119,6 +127,7 @@ static const struct {
 } own_options[] = {
     {"--data", "check"},          {"--baseline", "check"},   {"--write-baseline", "check"},
     {"--fail-on", "check"},       {"--show-waived", "check"}, {"--max-rows", "check init"},
+    {"--table", "check sql"},     {"--query", "check sql"},  {"--dialect", "sql"},
     {"--svg", "timeline"},        {"--force", "init"},       {"--stdin-name", "check sources timeline rules"},
 };
 
@@ -282,6 +291,7 @@ static const char *near_option(const char *word)
         "--help",     "--quiet",          "--show-waived", "--data",    "--rulebook",   "--format",
         "--output",   "--fail-on",        "--baseline",    "--write-baseline", "--color", "--root",
         "--max-rows", "--svg",            "--today",       "--stdin-name",     "--version", "--force",
+        "--table",    "--query",          "--dialect",
     };
     size_t n = strcspn(word, "=");
     if (n < 3 || word[0] != '-') {
@@ -356,6 +366,21 @@ static int parse(int argc, char **argv, int first, args *ar)
                 return bad("%s needs a file", "--data");
             }
             ar->opt.data = v;
+        } else if (is_opt(a, "--table")) {
+            if (!(v = value_of(argc, argv, &i, "--table"))) {
+                return bad("%s needs a table name", "--table");
+            }
+            ar->opt.table = v;
+        } else if (is_opt(a, "--query")) {
+            if (!(v = value_of(argc, argv, &i, "--query"))) {
+                return bad("%s needs a file", "--query");
+            }
+            ar->opt.query = v;
+        } else if (is_opt(a, "--dialect")) {
+            if (!(v = value_of(argc, argv, &i, "--dialect"))) {
+                return bad("%s needs postgresql, mysql, sqlite or ansi", "--dialect");
+            }
+            ar->opt.dialect = v;
         } else if (is_opt(a, "--rulebook")) {
             if (!(v = value_of(argc, argv, &i, "--rulebook"))) {
                 return bad("%s needs a file", "--rulebook");
@@ -502,6 +527,11 @@ static kn_status run_timeline(args *ar, FILE *out)
     return kn_timeline_report(&ar->opt, ar->positional[0], out, stderr);
 }
 
+static kn_status run_sql(args *ar, FILE *out)
+{
+    return kn_sql(&ar->opt, ar->positional[0], out, stderr);
+}
+
 static kn_status run_json_schema(args *ar, FILE *out)
 {
     return kn_json_schema(&ar->opt, out, stderr);
@@ -512,7 +542,7 @@ static kn_status run_json_schema(args *ar, FILE *out)
 static const char *near_command(const char *word)
 {
     static const char *const cmds[] = {"check",       "explain", "rules", "sources", "timeline", "init",
-                                       "json-schema", "lsp",     "help"};
+                                       "json-schema", "lsp",     "help",  "sql"};
     for (size_t i = 0; i < sizeof cmds / sizeof *cmds; i++) {
         const char *c = cmds[i];
         size_t lw = strlen(word), lc = strlen(c);
@@ -549,7 +579,7 @@ static const char *help_for(const char *cmd)
         const char *name, *text;
     } t[] = {{"check", check_help},       {"explain", explain_help},   {"rules", rules_help},
              {"sources", sources_help},   {"timeline", timeline_help}, {"init", init_help},
-             {"json-schema", json_schema_help}, {"lsp", lsp_help}, {"help", help_help}};
+             {"json-schema", json_schema_help}, {"sql", sql_help}, {"lsp", lsp_help}, {"help", help_help}};
     for (size_t i = 0; i < sizeof t / sizeof *t; i++) {
         if (strcmp(t[i].name, cmd) == 0) {
             return t[i].text;
@@ -640,6 +670,12 @@ static int dispatch(int argc, char **argv)
             return bad("%s takes one CSV file", "init");
         }
         return with_output(&ar, run_init);
+    }
+    if (strcmp(cmd, "sql") == 0) {
+        if (ar.n_positional != 1) {
+            return bad("%s takes one schema file", "sql");
+        }
+        return with_output(&ar, run_sql);
     }
     if (strcmp(cmd, "lsp") == 0) {
         if (ar.n_positional) {

@@ -1,0 +1,521 @@
+/* sql.c - the data checks as aggregate SQL (sql.h). */
+#include "sql.h"
+
+#include <string.h>
+
+#include "../util/text.h"
+
+bool kn_sql_dialect_parse(const char *name, kn_sql_dialect *out)
+{
+    static const struct {
+        const char *name;
+        kn_sql_dialect d;
+    } t[] = {{"ansi", KN_SQL_ANSI}, {"postgresql", KN_SQL_POSTGRESQL}, {"mysql", KN_SQL_MYSQL}, {"sqlite", KN_SQL_SQLITE}};
+    for (size_t i = 0; i < sizeof t / sizeof *t; i++) {
+        if (strcmp(name, t[i].name) == 0) {
+            *out = t[i].d;
+            return true;
+        }
+    }
+    return false;
+}
+
+const char *kn_sql_dialect_name(kn_sql_dialect d)
+{
+    switch (d) {
+    case KN_SQL_POSTGRESQL:
+        return "postgresql";
+    case KN_SQL_MYSQL:
+        return "mysql";
+    case KN_SQL_SQLITE:
+        return "sqlite";
+    case KN_SQL_ANSI:
+        break;
+    }
+    return "ansi";
+}
+
+/* ---- text built in the arena ---------------------------------------------- */
+
+typedef struct sbuf {
+    kn_arena *a;
+    char *p;
+    size_t len, cap;
+} sbuf;
+
+static void put(sbuf *b, const char *s, size_t n)
+{
+    if (b->len + n + 1 > b->cap) {
+        size_t cap = b->cap ? b->cap : 128;
+        while (b->len + n + 1 > cap) {
+            cap *= 2;
+        }
+        char *p = kn_alloc(b->a, cap);
+        if (b->len) {
+            memcpy(p, b->p, b->len);
+        }
+        b->p = p;
+        b->cap = cap;
+    }
+    memcpy(b->p + b->len, s, n);
+    b->len += n;
+    b->p[b->len] = '\0';
+}
+
+static void puts_(sbuf *b, const char *s)
+{
+    put(b, s, strlen(s));
+}
+
+/* s between q characters, each q inside doubled (and, with bs, each
+ * backslash doubled). */
+static void quoted(sbuf *b, const char *s, char q, bool bs)
+{
+    put(b, &q, 1);
+    for (const char *p = s; *p; p++) {
+        if (*p == q || (bs && *p == '\\')) {
+            put(b, p, 1);
+        }
+        put(b, p, 1);
+    }
+    put(b, &q, 1);
+}
+
+static void ident(sbuf *b, kn_sql_dialect d, const char *name)
+{
+    quoted(b, name, d == KN_SQL_MYSQL ? '`' : '"', false);
+}
+
+static void literal(sbuf *b, kn_sql_dialect d, const char *s)
+{
+    quoted(b, s, '\'', d == KN_SQL_MYSQL);
+}
+
+char *kn_sql_ident(kn_arena *a, kn_sql_dialect d, const char *name)
+{
+    sbuf b = {a, NULL, 0, 0};
+    ident(&b, d, name);
+    return b.p;
+}
+
+char *kn_sql_literal(kn_arena *a, kn_sql_dialect d, const char *s)
+{
+    sbuf b = {a, NULL, 0, 0};
+    literal(&b, d, s);
+    return b.p;
+}
+
+/* The table, each dot-separated part quoted; or (--query) the query as a
+ * derived table. */
+static void from(sbuf *b, kn_sql_dialect d, const char *table, const char *query_sql)
+{
+    puts_(b, " FROM ");
+    if (query_sql) {
+        puts_(b, "(");
+        size_t n = strlen(query_sql);
+        while (n && (query_sql[n - 1] == ';' || query_sql[n - 1] == ' ' || query_sql[n - 1] == '\n' ||
+                     query_sql[n - 1] == '\r' || query_sql[n - 1] == '\t')) {
+            n--;
+        }
+        put(b, query_sql, n);
+        puts_(b, "\n) AS ");
+        ident(b, d, "knowable_rows");
+        return;
+    }
+    const char *p = table;
+    for (;;) {
+        const char *dot = strchr(p, '.');
+        size_t n = dot ? (size_t)(dot - p) : strlen(p);
+        sbuf part = {b->a, NULL, 0, 0};
+        put(&part, p, n);
+        ident(b, d, part.p ? part.p : "");
+        if (!dot) {
+            break;
+        }
+        puts_(b, ".");
+        p = dot + 1;
+    }
+}
+
+/* CAST(col AS <text type>): values compared as text with the CSV path's
+ * missing markers and split words. */
+static void as_text(sbuf *b, kn_sql_dialect d, const char *col)
+{
+    puts_(b, "CAST(");
+    ident(b, d, col);
+    switch (d) {
+    case KN_SQL_POSTGRESQL:
+    case KN_SQL_SQLITE:
+        puts_(b, " AS TEXT)");
+        break;
+    case KN_SQL_MYSQL:
+        puts_(b, " AS CHAR)");
+        break;
+    case KN_SQL_ANSI:
+        puts_(b, " AS VARCHAR(4000))");
+        break;
+    }
+}
+
+/* 1 when the split column says side (the words of kn_split_side, any case,
+ * spaces around ignored), else 0. */
+static void side_sum(sbuf *b, kn_sql_dialect d, const char *split, bool test)
+{
+    static const char *const train[] = {"train", "training"};
+    static const char *const tests[] = {"test", "testing", "holdout", "validation", "valid", "val", "eval"};
+    const char *const *w = test ? tests : train;
+    size_t n = test ? sizeof tests / sizeof *tests : sizeof train / sizeof *train;
+    puts_(b, "SUM(CASE WHEN LOWER(TRIM(");
+    as_text(b, d, split);
+    puts_(b, ")) IN (");
+    for (size_t i = 0; i < n; i++) {
+        if (i) {
+            puts_(b, ", ");
+        }
+        literal(b, d, w[i]);
+    }
+    puts_(b, ") THEN 1 ELSE 0 END)");
+}
+
+/* The CSV path's "missing": NULL, or one of the rulebook's markers. */
+static void missing_test(sbuf *b, kn_sql_dialect d, const kn_rulebook *rb, const char *col)
+{
+    ident(b, d, col);
+    puts_(b, " IS NULL");
+    if (rb->n_missing_values) {
+        puts_(b, " OR ");
+        as_text(b, d, col);
+        puts_(b, " IN (");
+        for (size_t i = 0; i < rb->n_missing_values; i++) {
+            if (i) {
+                puts_(b, ", ");
+            }
+            literal(b, d, rb->missing_values[i]);
+        }
+        puts_(b, ")");
+    }
+}
+
+static bool has_control(const char *s)
+{
+    for (const unsigned char *p = (const unsigned char *)s; *p; p++) {
+        if (*p < 0x20 || *p == 0x7f) {
+            return true;
+        }
+    }
+    return false;
+}
+
+/* ---- the plan --------------------------------------------------------------- */
+
+typedef struct plan_ctx {
+    kn_arena *a;
+    kn_sql_dialect d;
+    const char *table, *query_sql;
+    kn_vec *q;
+} plan_ctx;
+
+static void add(plan_ctx *c, kn_sql_kind kind, const char *rules, const kn_column *col, const char *comment,
+                const char *text)
+{
+    kn_sql_query q = {kind, rules, comment, text, col};
+    kn_vec_push(c->q, &q);
+}
+
+/* A usable column: declared without its own error, with a name SQL can
+ * carry in a comment. */
+static const kn_column *usable(const kn_column *k)
+{
+    return k && !k->broken && !has_control(k->name) ? k : NULL;
+}
+
+static const char *type_name(kn_value_type t)
+{
+    switch (t) {
+    case KN_TYPE_NUMBER:
+        return "number";
+    case KN_TYPE_CATEGORY:
+        return "category";
+    case KN_TYPE_BOOLEAN:
+        return "boolean";
+    case KN_TYPE_TEXT:
+        return "text";
+    case KN_TYPE_TIMESTAMP:
+        return "timestamp";
+    case KN_TYPE_DATE:
+        return "date";
+    case KN_TYPE_UNSET:
+        break;
+    }
+    return "untyped";
+}
+
+static char *esc(kn_arena *a, const char *s)
+{
+    return kn_escape_term(a, s, strlen(s));
+}
+
+/* Rows of two split sides grouped by the columns cols[0..n): one row with
+ * train rows, test rows, keys on both sides, training and test rows whose
+ * key is on both sides.  skip_missing leaves out rows whose (single) key
+ * is missing. */
+static char *overlap_sql(plan_ctx *c, const kn_rulebook *rb, const char *split, const char *const *cols, size_t n,
+                         bool skip_missing)
+{
+    sbuf b = {c->a, NULL, 0, 0};
+    puts_(&b, "SELECT SUM(n_train) AS train_rows, SUM(n_test) AS test_rows,\n"
+              "       SUM(CASE WHEN n_train > 0 AND n_test > 0 THEN 1 ELSE 0 END) AS shared_keys,\n"
+              "       SUM(CASE WHEN n_train > 0 AND n_test > 0 THEN n_train ELSE 0 END) AS train_rows_shared,\n"
+              "       SUM(CASE WHEN n_train > 0 AND n_test > 0 THEN n_test ELSE 0 END) AS test_rows_shared\n"
+              "FROM (SELECT ");
+    side_sum(&b, c->d, split, false);
+    puts_(&b, " AS n_train,\n             ");
+    side_sum(&b, c->d, split, true);
+    puts_(&b, " AS n_test\n     ");
+    from(&b, c->d, c->table, c->query_sql);
+    if (skip_missing) {
+        puts_(&b, "\n      WHERE NOT (");
+        missing_test(&b, c->d, rb, cols[0]);
+        puts_(&b, ")");
+    }
+    puts_(&b, "\n      GROUP BY ");
+    for (size_t i = 0; i < n; i++) {
+        if (i) {
+            puts_(&b, ", ");
+        }
+        ident(&b, c->d, cols[i]);
+    }
+    puts_(&b, ") AS ");
+    ident(&b, c->d, "sides");
+    return b.p;
+}
+
+void kn_sql_make(kn_arena *a, const kn_schema *s, const kn_rulebook *rb, const char *table, const char *query_sql,
+                 kn_sql_dialect d, kn_sql_plan *out)
+{
+    plan_ctx c = {a, d, table, query_sql, kn_vec_new(a, sizeof(kn_sql_query))};
+    kn_vec *skipped = kn_vec_new(a, sizeof(const char *));
+    sbuf b;
+
+    /* The session: read-only, with a statement timeout. */
+    switch (d) {
+    case KN_SQL_POSTGRESQL:
+        add(&c, KN_SQLQ_SESSION, "", NULL, "the session reads only",
+            "SET SESSION CHARACTERISTICS AS TRANSACTION READ ONLY");
+        add(&c, KN_SQLQ_SESSION, "", NULL, kn_printf(a, "a statement is cancelled after %d s", KN_SQL_TIMEOUT_SECONDS),
+            kn_printf(a, "SET statement_timeout = %d", KN_SQL_TIMEOUT_SECONDS * 1000));
+        break;
+    case KN_SQL_MYSQL:
+        add(&c, KN_SQLQ_SESSION, "", NULL, "the session reads only", "SET SESSION TRANSACTION READ ONLY");
+        add(&c, KN_SQLQ_SESSION, "", NULL,
+            kn_printf(a, "a statement is cancelled after %d s (MariaDB's variable; MySQL's is max_execution_time, in ms)",
+                      KN_SQL_TIMEOUT_SECONDS),
+            kn_printf(a, "SET SESSION max_statement_time = %d", KN_SQL_TIMEOUT_SECONDS));
+        break;
+    case KN_SQL_SQLITE:
+        add(&c, KN_SQLQ_SESSION, "", NULL,
+            "the connection reads only (the timeout is the ODBC statement attribute; SQLite has no SQL for it)",
+            "PRAGMA query_only = ON");
+        break;
+    case KN_SQL_ANSI:
+        add(&c, KN_SQLQ_SESSION, "", NULL,
+            "the transaction reads only (set the engine's own statement timeout as well)", "SET TRANSACTION READ ONLY");
+        break;
+    }
+
+    b = (sbuf){a, NULL, 0, 0};
+    puts_(&b, "SELECT *");
+    from(&b, d, table, query_sql);
+    puts_(&b, " WHERE 1 = 0");
+    add(&c, KN_SQLQ_COLUMNS, "column-not-in-schema, column-not-in-data", NULL,
+        "the table's column names, no rows: compared with the schema's columns", b.p);
+
+    b = (sbuf){a, NULL, 0, 0};
+    puts_(&b, "SELECT COUNT(*) AS n_rows");
+    from(&b, d, table, query_sql);
+    add(&c, KN_SQLQ_ROWS, "", NULL, "rows in the table (every rule)", b.p);
+
+    const kn_column *target = usable(KN_REF_COLUMN(s->prediction.target));
+    const kn_column *entity = usable(KN_REF_COLUMN(s->prediction.entity));
+    const kn_column *moment = usable(KN_REF_COLUMN(s->prediction.moment_column));
+    const kn_column *split = s->split.present ? usable(KN_REF_COLUMN(s->split.column)) : NULL;
+
+    for (size_t i = 0; i < s->n_columns; i++) {
+        const kn_column *k = s->columns[i];
+        if (k->broken) {
+            continue;
+        }
+        if (has_control(k->name)) {
+            const char *line = kn_printf(a, "column '%s' is left out: its name holds a control character", esc(a, k->name));
+            kn_vec_push(skipped, &line);
+        }
+    }
+
+    if (target) {
+        b = (sbuf){a, NULL, 0, 0};
+        puts_(&b, "SELECT ");
+        ident(&b, d, target->name);
+        puts_(&b, " AS v, COUNT(*) AS n");
+        from(&b, d, table, query_sql);
+        puts_(&b, " GROUP BY ");
+        ident(&b, d, target->name);
+        add(&c, KN_SQLQ_VALUES, "lone-feature-separates, missingness-predicts, identifier-segment-predicts", target,
+            kn_printf(a, "the target '%s': rows per class (a binary target gives the positive and negative class)",
+                      esc(a, target->name)),
+            b.p);
+    }
+
+    /* One GROUP BY per column: its distinct values (value-mismatch and the
+     * missing count are decided from them in C, with the CSV path's
+     * parsers) and, for a feature, the rows of each target class per value:
+     * the contingency table behind U, and the positive and negative counts
+     * per distinct value behind the exact AUC, missing values included
+     * (missingness-predicts). */
+    for (size_t i = 0; i < s->n_columns; i++) {
+        const kn_column *k = usable(s->columns[i]);
+        if (!k || k == target) {
+            continue;
+        }
+        bool feature = k->role == KN_ROLE_FEATURE;
+        bool ident_col = k->role == KN_ROLE_IDENTIFIER;
+        bool typed = k->type != KN_TYPE_UNSET || k->format;
+        bool with_target = (feature || ident_col) && target;
+        if (!typed && !with_target) {
+            continue;
+        }
+        b = (sbuf){a, NULL, 0, 0};
+        puts_(&b, "SELECT ");
+        ident(&b, d, k->name);
+        puts_(&b, " AS v");
+        if (with_target) {
+            puts_(&b, ", ");
+            ident(&b, d, target->name);
+            puts_(&b, " AS t");
+        }
+        puts_(&b, ", COUNT(*) AS n");
+        from(&b, d, table, query_sql);
+        puts_(&b, " GROUP BY ");
+        ident(&b, d, k->name);
+        if (with_target) {
+            puts_(&b, ", ");
+            ident(&b, d, target->name);
+        }
+        const char *rules;
+        const char *what;
+        if (feature && target) {
+            rules = typed ? "value-mismatch, lone-feature-separates, missingness-predicts"
+                          : "lone-feature-separates, missingness-predicts";
+            what = kn_printf(a, "'%s' (%s) by target class: per distinct value, positive and negative rows", esc(a, k->name),
+                             type_name(k->type));
+        } else if (ident_col && target) {
+            rules = typed ? "value-mismatch, identifier-segment-predicts" : "identifier-segment-predicts";
+            what = kn_printf(a,
+                             "identifier '%s' by target class: segments are cut in C; one row per distinct "
+                             "identifier, the client stops after --max-rows of them",
+                             esc(a, k->name));
+        } else {
+            rules = "value-mismatch";
+            what = kn_printf(a, "'%s' (%s): distinct values and their rows, parsed in C", esc(a, k->name),
+                             type_name(k->type));
+        }
+        add(&c, with_target ? KN_SQLQ_CONTINGENCY : KN_SQLQ_VALUES, rules, k, what, b.p);
+    }
+
+    /* timestamp-after-moment: every timed feature against the moment. */
+    for (size_t i = 0; moment && i < s->n_columns; i++) {
+        const kn_column *k = usable(s->columns[i]);
+        if (!k || k == moment || k->role != KN_ROLE_FEATURE ||
+            (k->type != KN_TYPE_TIMESTAMP && k->type != KN_TYPE_DATE)) {
+            continue;
+        }
+        b = (sbuf){a, NULL, 0, 0};
+        puts_(&b, "SELECT COUNT(*) AS n");
+        from(&b, d, table, query_sql);
+        puts_(&b, " WHERE ");
+        ident(&b, d, k->name);
+        puts_(&b, rb->strict_moment ? " >= " : " > ");
+        ident(&b, d, moment->name);
+        add(&c, KN_SQLQ_LATE, "timestamp-after-moment", k,
+            kn_printf(a, "rows where '%s' is %s the moment column '%s' (compared by the engine: typed columns, or ISO 8601 "
+                         "text in one zone)",
+                      esc(a, k->name), rb->strict_moment ? "at or after" : "after", esc(a, moment->name)),
+            b.p);
+    }
+
+    /* rows-shared-across-split and entity-in-both-splits. */
+    if (split) {
+        const char **feats = kn_alloc_array(a, s->n_columns + 1, sizeof *feats);
+        size_t nf = 0;
+        for (size_t i = 0; i < s->n_columns; i++) {
+            const kn_column *k = usable(s->columns[i]);
+            if (k && k->role == KN_ROLE_FEATURE) {
+                feats[nf++] = k->name;
+            }
+        }
+        if (nf) {
+            add(&c, KN_SQLQ_OVERLAP, "rows-shared-across-split", split,
+                kn_printf(a, "identical feature rows (%zu feature%s) on both sides of the split '%s'", nf,
+                          nf == 1 ? "" : "s", esc(a, split->name)),
+                overlap_sql(&c, rb, split->name, feats, nf, false));
+        }
+        if (entity) {
+            add(&c, KN_SQLQ_OVERLAP, "entity-in-both-splits", entity,
+                kn_printf(a, "entities '%s' with rows on both sides of the split '%s'", esc(a, entity->name),
+                          esc(a, split->name)),
+                overlap_sql(&c, rb, split->name, &entity->name, 1, true));
+        }
+    }
+
+    /* small-quasi-identifier-groups: the sizes of the groups. */
+    b = (sbuf){a, NULL, 0, 0};
+    size_t nq = 0;
+    sbuf names = {a, NULL, 0, 0};
+    for (size_t i = 0; i < s->n_columns; i++) {
+        const kn_column *k = usable(s->columns[i]);
+        if (k && k->quasi_identifier == 1) {
+            if (nq++) {
+                puts_(&b, ", ");
+                puts_(&names, ", ");
+            }
+            ident(&b, d, k->name);
+            puts_(&names, esc(a, k->name));
+        }
+    }
+    if (nq) {
+        sbuf q = {a, NULL, 0, 0};
+        puts_(&q, "SELECT group_size, COUNT(*) AS n_groups\nFROM (SELECT COUNT(*) AS group_size\n     ");
+        from(&q, d, table, query_sql);
+        puts_(&q, "\n      GROUP BY ");
+        puts_(&q, b.p);
+        puts_(&q, ") AS ");
+        ident(&q, d, "qi_groups");
+        puts_(&q, "\nGROUP BY group_size ORDER BY group_size");
+        add(&c, KN_SQLQ_GROUPS, "small-quasi-identifier-groups", NULL,
+            kn_printf(a, "how many groups of each size the quasi-identifiers (%s) form", names.p), q.p);
+    }
+
+    out->n = c.q->len;
+    out->q = c.q->data;
+    out->n_skipped = skipped->len;
+    out->skipped = skipped->data;
+}
+
+void kn_sql_write(FILE *out, kn_arena *a, const kn_sql_plan *p, const char *schema_path, const char *table,
+                  kn_sql_dialect d)
+{
+    fprintf(out, "-- knowable sql: the data checks of %s as aggregate queries\n", esc(a, schema_path));
+    fprintf(out, "-- table %s, dialect %s; only aggregated rows come back, knowable finishes the\n",
+            table ? esc(a, table) : "(the rows of --query)", kn_sql_dialect_name(d));
+    fputs("-- statistics in C.  Every name is a quoted identifier, every value a string literal.\n", out);
+    for (size_t i = 0; i < p->n_skipped; i++) {
+        fprintf(out, "-- %s\n", p->skipped[i]);
+    }
+    for (size_t i = 0; i < p->n; i++) {
+        const kn_sql_query *q = &p->q[i];
+        fputc('\n', out);
+        if (q->rules[0]) {
+            fprintf(out, "-- [%s]\n", q->rules);
+        }
+        fprintf(out, "-- %s\n%s;\n", q->comment, q->text);
+    }
+}

@@ -1,0 +1,1 @@
+SELECT weight_kg, arrived_late FROM parcels WHERE depot = 'BRS';
