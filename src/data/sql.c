@@ -290,15 +290,11 @@ static char *overlap_sql(plan_ctx *c, const kn_rulebook *rb, const char *split, 
     return b.p;
 }
 
-void kn_sql_make(kn_arena *a, const kn_schema *s, const kn_rulebook *rb, const char *table, const char *query_sql,
-                 kn_sql_dialect d, kn_sql_plan *out)
+static void session(plan_ctx *cp)
 {
-    plan_ctx c = {a, d, table, query_sql, kn_vec_new(a, sizeof(kn_sql_query))};
-    kn_vec *skipped = kn_vec_new(a, sizeof(const char *));
-    sbuf b;
-
-    /* The session: read-only, with a statement timeout. */
-    switch (d) {
+    plan_ctx c = *cp;
+    kn_arena *a = c.a;
+    switch (c.d) {
     case KN_SQL_POSTGRESQL:
         add(&c, KN_SQLQ_SESSION, "", NULL, "the session reads only",
             "SET SESSION CHARACTERISTICS AS TRANSACTION READ ONLY");
@@ -322,6 +318,27 @@ void kn_sql_make(kn_arena *a, const kn_schema *s, const kn_rulebook *rb, const c
             "the transaction reads only (set the engine's own statement timeout as well)", "SET TRANSACTION READ ONLY");
         break;
     }
+}
+
+void kn_sql_session(kn_arena *a, kn_sql_dialect d, kn_sql_plan *out)
+{
+    plan_ctx c = {a, d, NULL, NULL, kn_vec_new(a, sizeof(kn_sql_query))};
+    session(&c);
+    out->n = c.q->len;
+    out->q = c.q->data;
+    out->n_skipped = 0;
+    out->skipped = NULL;
+}
+
+void kn_sql_make(kn_arena *a, const kn_schema *s, const kn_rulebook *rb, const char *table, const char *query_sql,
+                 kn_sql_dialect d, kn_sql_plan *out)
+{
+    plan_ctx c = {a, d, table, query_sql, kn_vec_new(a, sizeof(kn_sql_query))};
+    kn_vec *skipped = kn_vec_new(a, sizeof(const char *));
+    sbuf b;
+
+    /* The session: read-only, with a statement timeout. */
+    session(&c);
 
     b = (sbuf){a, NULL, 0, 0};
     puts_(&b, "SELECT *");
