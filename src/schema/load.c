@@ -1338,7 +1338,7 @@ static bool resolve(ld *l, namespace_ *ns, kn_ref *r, const char *context)
         l->suggest_spent = true;
         kn_diag_note(l->sink, d, NULL,
                      "'did you mean' suggestions stop here: comparing unknown names with the %zu defined "
-                     "ones reached this run's limit, so this and later references get none",
+                     "ones reached this schema's limit, so this and later references get none",
                      ns->n);
     }
     return false;
