@@ -324,7 +324,8 @@ size_t kn_token_len(const char *text, size_t len, size_t offset)
     }
     size_t i = offset;
     while (i < len && text[i] != '\n' && text[i] != ',' && text[i] != ']' && text[i] != '}' &&
-           !(text[i] == ':' && (i + 1 == len || text[i + 1] == ' ' || text[i + 1] == '\n' || text[i + 1] == '\r')) &&
+           !(text[i] == ':' &&
+             (i + 1 == len || text[i + 1] == ' ' || text[i + 1] == '\n' || text[i + 1] == '\r')) &&
            !(text[i] == '#' && i > offset && text[i - 1] == ' ')) {
         i++;
     }

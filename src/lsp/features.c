@@ -17,8 +17,8 @@
 
 static bool name_byte(unsigned char c)
 {
-    return (c >= 'a' && c <= 'z') || (c >= 'A' && c <= 'Z') || (c >= '0' && c <= '9') || c == '_' || c == '-' ||
-           c == '.' || c >= 0x80;
+    return (c >= 'a' && c <= 'z') || (c >= 'A' && c <= 'Z') || (c >= '0' && c <= '9') || c == '_' ||
+           c == '-' || c == '.' || c >= 0x80;
 }
 
 /* The name around offset (malloc), or NULL. */
@@ -78,7 +78,8 @@ static void hover_column(FILE *f, kn_arena *a, const kn_timeline *t, const kn_co
     if (T && T->computed) {
         fprintf(f, "- available %s\n", kn_timeline_range_words(a, T->range, moment_name(t)));
     }
-    fprintf(f, "- verdict: %s\n", T && T->ordered ? verdict_name(T->verdict) : "not placed: on or behind a derivation cycle");
+    fprintf(f, "- verdict: %s\n",
+            T && T->ordered ? verdict_name(T->verdict) : "not placed: on or behind a derivation cycle");
     if (T && T->from_target) {
         fprintf(f, "- built from the target%s%s\n", T->target_via ? " via " : "",
                 T->target_via ? T->target_via->name : "");
@@ -115,7 +116,8 @@ static void hover_column(FILE *f, kn_arena *a, const kn_timeline *t, const kn_co
 
 static void hover_event(FILE *f, kn_arena *a, const kn_timeline *t, const kn_event *e)
 {
-    fprintf(f, "**event `%s`**%s\n\n", e->name, t && kn_timeline_moment(t) == e ? " (the prediction moment)" : "");
+    fprintf(f, "**event `%s`**%s\n\n", e->name,
+            t && kn_timeline_moment(t) == e ? " (the prediction moment)" : "");
     kn_interval r;
     if (t && kn_timeline_event_range(t, e, &r) && kn_timeline_moment(t)) {
         fprintf(f, "- %s\n- verdict: %s\n", kn_timeline_range_words(a, r, moment_name(t)),
@@ -132,7 +134,9 @@ static void hover_source(FILE *f, const kn_schema *sc, const kn_source *src)
 {
     char lo[48], hi[48];
     fprintf(f, "**source `%s`** (%s)\n\n", src->name,
-            src->kind == KN_SOURCE_EXTERNAL ? "external" : src->kind == KN_SOURCE_INTERNAL ? "internal" : "kind unset");
+            src->kind == KN_SOURCE_EXTERNAL   ? "external"
+            : src->kind == KN_SOURCE_INTERNAL ? "internal"
+                                              : "kind unset");
     kn_duration_format(src->latency.lo, lo, sizeof lo);
     kn_duration_format(src->latency.hi, hi, sizeof hi);
     fprintf(f, "- queryable between %s and %s after its event", lo, hi);
@@ -429,19 +433,21 @@ static char *suggestion(const char *text)
     return q && q > p ? kn_lsp_xstrndup(p, (size_t)(q - p)) : NULL;
 }
 
-static json_t *edit_action(const char *title, const char *uri, json_t *range, const char *text, bool preferred)
+static json_t *edit_action(const char *title, const char *uri, json_t *range, const char *text,
+                           bool preferred)
 {
     json_t *edits = json_pack("[{s:o,s:s}]", "range", range, "newText", text);
     json_t *changes = json_object();
     json_object_set_new(changes, uri, edits);
-    return json_pack("{s:s,s:s,s:b,s:{s:o}}", "title", title, "kind", "quickfix", "isPreferred", preferred, "edit",
-                     "changes", changes);
+    return json_pack("{s:s,s:s,s:b,s:{s:o}}", "title", title, "kind", "quickfix", "isPreferred", preferred,
+                     "edit", "changes", changes);
 }
 
 static json_t *point_range(long line, long character)
 {
     return json_pack("{s:{s:i,s:i},s:{s:i,s:i}}", "start", "line", (json_int_t)line, "character",
-                     (json_int_t)character, "end", "line", (json_int_t)line, "character", (json_int_t)character);
+                     (json_int_t)character, "end", "line", (json_int_t)line, "character",
+                     (json_int_t)character);
 }
 
 /* The LSP position of a model position (its file's open buffer, if any). */
@@ -485,7 +491,8 @@ static json_t *waiver_action(kn_server *s, const kn_view *v, kn_node *key, kn_no
         text = kn_lsp_xmalloc(n);
         memset(text, ' ', ind);
         snprintf(text + ind, n - ind, "%s\n", waiver);
-    } else if (!value || (value->kind == KN_NODE_SCALAR && kn_node_is_null(value) && value->u.scalar.len == 0)) {
+    } else if (!value ||
+               (value->kind == KN_NODE_SCALAR && kn_node_is_null(value) && value->u.scalar.len == 0)) {
         /* "name:" with nothing after it: the mapping starts on the next line. */
         kn_doc *d = kn_doc_by_file(s, key->pos.file);
         if (!d) {

@@ -18,9 +18,9 @@
 /* One document the editor has open. */
 typedef struct kn_doc {
     char *uri;
-    char *path;  /* the file the URI names (NULL: not a file: URI) */
-    char *real;  /* its real path (the loader's key for the overlay) */
-    char *text;  /* its current text (the editor's buffer) */
+    char *path; /* the file the URI names (NULL: not a file: URI) */
+    char *real; /* its real path (the loader's key for the overlay) */
+    char *text; /* its current text (the editor's buffer) */
     size_t len;
     size_t *lines; /* byte offset of each line start */
     size_t n_lines;
@@ -40,7 +40,7 @@ typedef struct kn_server {
     FILE *out, *err;
     kn_doc *docs;
     bool initialized, shut_down;
-    kn_doc *loading; /* the schema whose main file the loader reads next */
+    kn_doc *loading;  /* the schema whose main file the loader reads next */
     char **published; /* URIs given diagnostics last time (malloc) */
     size_t n_published;
 } kn_server;

@@ -320,7 +320,8 @@ static void publish(kn_server *s)
         FILE *m = open_memstream(&msg, &len);
         bool ok = fclose(l->f) == 0 && l->buf && m;
         if (ok) {
-            fputs("{\"jsonrpc\":\"2.0\",\"method\":\"textDocument/publishDiagnostics\",\"params\":{\"uri\":", m);
+            fputs("{\"jsonrpc\":\"2.0\",\"method\":\"textDocument/publishDiagnostics\",\"params\":{\"uri\":",
+                  m);
             put_str(m, l->uri);
             fputs(",\"diagnostics\":[", m);
             fwrite(l->buf, 1, l->len, m);
@@ -356,10 +357,10 @@ static void analyse_all(kn_server *s)
 static json_t *capabilities(void)
 {
     json_t *caps = json_pack("{s:s,s:{s:b,s:i,s:{s:b}},s:b,s:b,s:{s:[s,s,s,s,s],s:b},s:{s:[s]}}",
-                             "positionEncoding", "utf-16", "textDocumentSync", "openClose", 1, "change", 1, "save",
-                             "includeText", 0, "hoverProvider", 1, "definitionProvider", 1, "completionProvider",
-                             "triggerCharacters", " ", ":", "[", ",", "{", "resolveProvider", 0,
-                             "codeActionProvider", "codeActionKinds", "quickfix");
+                             "positionEncoding", "utf-16", "textDocumentSync", "openClose", 1, "change", 1,
+                             "save", "includeText", 0, "hoverProvider", 1, "definitionProvider", 1,
+                             "completionProvider", "triggerCharacters", " ", ":", "[", ",", "{",
+                             "resolveProvider", 0, "codeActionProvider", "codeActionKinds", "quickfix");
     return json_pack("{s:o,s:{s:s,s:s}}", "capabilities", caps, "serverInfo", "name", "knowable", "version",
                      KN_VERSION_STRING);
 }
@@ -374,8 +375,8 @@ static kn_doc *doc_of(kn_server *s, json_t *params)
 static bool position_of(json_t *pos, long *line, long *character)
 {
     json_t *l = json_object_get(pos, "line"), *c = json_object_get(pos, "character");
-    if (!json_is_integer(l) || !json_is_integer(c) || json_integer_value(l) < 0 || json_integer_value(c) < 0 ||
-        json_integer_value(l) > 100000000 || json_integer_value(c) > 100000000) {
+    if (!json_is_integer(l) || !json_is_integer(c) || json_integer_value(l) < 0 ||
+        json_integer_value(c) < 0 || json_integer_value(l) > 100000000 || json_integer_value(c) > 100000000) {
         return false;
     }
     *line = (long)json_integer_value(l);
@@ -470,7 +471,8 @@ static int handle(kn_server *s, json_t *msg)
             s->initialized = true;
             reply(s, id, capabilities());
         } else if (id) {
-            reply_error(s, id, SERVER_NOT_INITIALIZED, "the server is not initialized: send initialize first");
+            reply_error(s, id, SERVER_NOT_INITIALIZED,
+                        "the server is not initialized: send initialize first");
         }
         return -1;
     }
@@ -554,11 +556,13 @@ kn_status kn_lsp(const kn_options *o, FILE *in, FILE *out, FILE *err)
             break;
         }
         if (r == KN_RPC_BAD_HEADER) {
-            reply_error(&s, NULL, PARSE_ERROR, "a message needs one header 'Content-Length: N' and an empty line");
+            reply_error(&s, NULL, PARSE_ERROR,
+                        "a message needs one header 'Content-Length: N' and an empty line");
             continue;
         }
         if (r == KN_RPC_TOO_LARGE) {
-            reply_error(&s, NULL, INVALID_REQUEST, "the message is larger than 32 MiB, the most the server reads");
+            reply_error(&s, NULL, INVALID_REQUEST,
+                        "the message is larger than 32 MiB, the most the server reads");
             if (!kn_rpc_skip(in, len)) {
                 status = s.shut_down ? 0 : 1;
                 break;

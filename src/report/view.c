@@ -17,8 +17,8 @@ const kn_view *kn_sink_view(const kn_sink *s, kn_arena *a, size_t *n)
         for (size_t j = 0; j < d[i]->n_notes; j++) {
             notes[j] = (kn_view_note){d[i]->notes[j].pos, d[i]->notes[j].message};
         }
-        v[k++] = (kn_view){d[i]->rule, d[i]->severity, d[i]->pos, d[i]->subject ? d[i]->subject : "",
-                           d[i]->message, notes, d[i]->n_notes};
+        v[k++] = (kn_view){d[i]->rule,    d[i]->severity, d[i]->pos,    d[i]->subject ? d[i]->subject : "",
+                           d[i]->message, notes,          d[i]->n_notes};
     }
     *n = k;
     return v;
