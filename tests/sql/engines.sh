@@ -82,6 +82,9 @@ esac
 cd "$here" || exit 1
 "$knowable" sql --table bakery_days --dialect $dialect -- hostile-names.knowable.yaml >"$tmp/checks.sql" ||
     fail "knowable sql failed"
+# The same with missing markers that hold quotes and backslashes.
+"$knowable" sql --table bakery_days --dialect $dialect --rulebook odd-missing.rules.yaml -- hostile-literals.knowable.yaml \
+    >>"$tmp/checks.sql" || fail "knowable sql --rulebook odd-missing.rules.yaml failed"
 n=$(grep -c ';$' "$tmp/checks.sql")
 if [ "$engine" = postgresql ]; then
     reader -f "$tmp/checks.sql" >"$tmp/out" 2>"$tmp/err" || { fail "the script stopped"; cat "$tmp/err"; }
