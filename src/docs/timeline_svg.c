@@ -427,6 +427,14 @@ static void event_row(svg *g, const kn_event *e, const kn_event *m, kn_interval 
     double cy = g->y + EVENT_ROW / 2;
     bool none = r.lo <= -KN_TIME_INF && r.hi >= KN_TIME_INF;
     const char *words = e == m ? "the moment" : none ? "not ordered" : range_words(g->a, r);
+    if (e->first_of_node) {
+        /* the earliest of several routes: its members in the tooltip */
+        const char *names = "";
+        for (size_t k = 0; k < e->n_first_of; k++) {
+            names = kn_printf(g->a, "%s%s%s", names, k ? " | " : "", e->first_of[k].name);
+        }
+        words = kn_printf(g->a, "%s; first of %s", words, names);
+    }
     fputs("<g class=\"event\"><title>", f);
     put_str(f, kn_printf(g->a, "event %s: %s", e->name, words));
     fputs("</title>\n", f);
@@ -471,7 +479,12 @@ static const char *basis(kn_arena *a, const kn_column *c, const kn_column_timing
     if (!T) {
         return s;
     }
-    if (T->has[KN_PART_KNOWN]) {
+    if (T->has[KN_PART_KNOWN] && c->n_one_of) {
+        s = kn_printf(a, "%s, known at one of", s);
+        for (size_t i = 0; i < c->n_one_of; i++) {
+            s = kn_printf(a, "%s%s%s", s, i ? " | " : " ", c->one_of[i].name);
+        }
+    } else if (T->has[KN_PART_KNOWN]) {
         s = kn_printf(a, "%s, known at %s", s, c->known.name);
     }
     if (T->has[KN_PART_WINDOW]) {
@@ -482,6 +495,17 @@ static const char *basis(kn_arena *a, const kn_column *c, const kn_column_timing
     }
     if (T->has[KN_PART_AS_OF]) {
         s = kn_printf(a, "%s, as of %s", s, c->join.as_of.name);
+        if (c->join.has_offset) {
+            char b[48];
+            int64_t v = c->join.offset.lo < 0 ? c->join.offset.lo : c->join.offset.hi;
+            s = kn_printf(a, "%s %s%s", s, v > 0 ? "+" : "", kn_duration_format(v, b, sizeof b));
+        }
+    }
+    const kn_source *src = c->join.present && KN_REF_SOURCE(c->join.source) ? KN_REF_SOURCE(c->join.source)
+                                                                           : KN_REF_SOURCE(c->source);
+    if (src && src->matures.present && src->matures.hi > 0) {
+        char b[48];
+        s = kn_printf(a, "%s, settles up to %s later", s, kn_duration_format(src->matures.hi, b, sizeof b));
     }
     return s;
 }

@@ -128,7 +128,14 @@ static const char *basis(kn_arena *a, const kn_column *c, const kn_column_timing
     if (!T) {
         return s;
     }
-    if (T->has[KN_PART_KNOWN]) {
+    if (T->has[KN_PART_KNOWN] && c->n_one_of) {
+        const char *names = "";
+        for (size_t i = 0; i < c->n_one_of; i++) {
+            names = kn_printf(a, "%s%s%s", names, i ? " | " : "", esc(a, c->one_of[i].name));
+        }
+        s = kn_printf(a, "%s%sknown at one of %s", s, sep, names);
+        sep = ", ";
+    } else if (T->has[KN_PART_KNOWN]) {
         s = kn_printf(a, "%s%sknown at %s", s, sep, esc(a, c->known.name));
         sep = ", ";
     }
@@ -143,6 +150,16 @@ static const char *basis(kn_arena *a, const kn_column *c, const kn_column_timing
     }
     if (T->has[KN_PART_AS_OF]) {
         s = kn_printf(a, "%s%sas of %s", s, sep, esc(a, c->join.as_of.name));
+        if (c->join.has_offset) {
+            s = kn_printf(a, "%s %s", s, offset(a, c->join.offset.lo < 0 ? c->join.offset.lo : c->join.offset.hi));
+        }
+        sep = ", ";
+    }
+    const kn_source *src = c->join.present && KN_REF_SOURCE(c->join.source) ? KN_REF_SOURCE(c->join.source)
+                                                                           : KN_REF_SOURCE(c->source);
+    if (src && src->matures.present && src->matures.hi > 0) {
+        char b[48];
+        s = kn_printf(a, "%s%ssource settles up to %s later", s, sep, kn_duration_format(src->matures.hi, b, sizeof b));
     }
     return s;
 }
@@ -204,6 +221,17 @@ void kn_timeline_write_text(FILE *out, const kn_schema *s, const kn_timeline *t)
         const char *remark = "";
         if (e == m) {
             remark = "the moment";
+        } else if (e->first_of_node) {
+            /* the earliest of its members: say which members and which
+             * one decides each end */
+            const kn_event *lo_by = kn_timeline_first_of_member(t, e, false);
+            const kn_event *hi_by = kn_timeline_first_of_member(t, e, true);
+            const char *names = "";
+            for (size_t k = 0; k < e->n_first_of; k++) {
+                names = kn_printf(a, "%s%s%s", names, k ? " | " : "", esc(a, e->first_of[k].name));
+            }
+            remark = kn_printf(a, "first of %s (earliest from %s, latest from %s)", names,
+                               lo_by ? esc(a, lo_by->name) : "-", hi_by ? esc(a, hi_by->name) : "-");
         } else if (r.lo <= -KN_TIME_INF && r.hi >= KN_TIME_INF) {
             remark = "no chain of constraints to the moment";
         } else if (r.hi >= KN_TIME_INF) {
