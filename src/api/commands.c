@@ -75,6 +75,8 @@ static bool write_baseline(kn_run *r)
  * (a connection or SQL error is exit 2 with the driver's message, the
  * password masked).  The data rules over the aggregated rows are not
  * finished yet: the check then stops with exit 2 and says so. */
+static const char *read_query(kn_run *r, const char *path);
+
 static kn_status check_database(kn_run *r)
 {
     const kn_options *o = r->opt;
@@ -88,12 +90,19 @@ static kn_status check_database(kn_run *r)
         fputs("knowable: --data odbc:... needs --table NAME or --query FILE.sql (one of them)\n", r->err);
         return end(r, KN_EXIT_FAILED);
     }
-    if (!kn_odbc_probe(r->arena, o->data, r->err)) {
+    const char *query_sql = o->query ? read_query(r, o->query) : NULL;
+    if (o->query && !query_sql) {
+        return end(r, KN_EXIT_FAILED);
+    }
+    long n_cols = kn_odbc_probe(r->arena, o->data, o->table, query_sql, r->err);
+    if (n_cols < 0) {
         return end(r, KN_EXIT_FAILED);
     }
     const char *shown = kn_odbc_display(r->arena, o->data);
     fputs("knowable: connected read-only to ", r->err);
     kn_fput_term(r->err, shown, strlen(shown));
+    fprintf(r->err, " (%s: %ld column%s)", o->table ? kn_escape_term(r->arena, o->table, strlen(o->table)) : "--query",
+            n_cols, n_cols == 1 ? "" : "s");
     fputs(", but the data rules over a database are not finished in this version; `knowable sql` prints the "
           "queries they run\n",
           r->err);

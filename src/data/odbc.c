@@ -74,7 +74,25 @@ static void release(void *p)
     }
 }
 
-bool kn_odbc_probe(kn_arena *a, const char *data, FILE *err)
+/* Runs text on dbc with the statement timeout; the statement handle, or
+ * NULL after writing why (what says which statement). */
+static SQLHSTMT run(kn_arena *a, SQLHDBC dbc, const char *text, const char *what, FILE *err)
+{
+    SQLHSTMT st;
+    if (!SQL_SUCCEEDED(SQLAllocHandle(SQL_HANDLE_STMT, dbc, &st))) {
+        driver_error(a, err, "cannot make a statement", SQL_HANDLE_DBC, dbc);
+        return NULL;
+    }
+    SQLSetStmtAttr(st, SQL_ATTR_QUERY_TIMEOUT, (SQLPOINTER)(SQLULEN)KN_SQL_TIMEOUT_SECONDS, 0);
+    if (!SQL_SUCCEEDED(SQLExecDirect(st, (SQLCHAR *)kn_strdup(a, text), SQL_NTS))) {
+        driver_error(a, err, what, SQL_HANDLE_STMT, st);
+        SQLFreeHandle(SQL_HANDLE_STMT, st);
+        return NULL;
+    }
+    return st;
+}
+
+long kn_odbc_probe(kn_arena *a, const char *data, const char *table, const char *query_sql, FILE *err)
 {
     handles *h = kn_alloc(a, sizeof *h);
     memset(h, 0, sizeof *h);
@@ -83,7 +101,7 @@ bool kn_odbc_probe(kn_arena *a, const char *data, FILE *err)
         !SQL_SUCCEEDED(SQLSetEnvAttr(h->env, SQL_ATTR_ODBC_VERSION, (SQLPOINTER)SQL_OV_ODBC3, 0)) ||
         !SQL_SUCCEEDED(SQLAllocHandle(SQL_HANDLE_DBC, h->env, &h->dbc))) {
         fputs("knowable: cannot set up ODBC (unixODBC)\n", err);
-        return false;
+        return -1;
     }
     SQLSetConnectAttr(h->dbc, SQL_ATTR_LOGIN_TIMEOUT, (SQLPOINTER)(SQLLEN)30, 0);
     const char *conn = data + strlen(KN_ODBC_PREFIX);
@@ -95,7 +113,7 @@ bool kn_odbc_probe(kn_arena *a, const char *data, FILE *err)
         const char *shown = kn_odbc_display(a, data);
         char *what = kn_printf(a, "cannot connect to %s", kn_escape_term(a, shown, strlen(shown)));
         driver_error(a, err, what, SQL_HANDLE_DBC, h->dbc);
-        return false;
+        return -1;
     }
     h->connected = true;
     /* Read-only: the ODBC attribute (a hint some drivers ignore), then the
@@ -105,20 +123,24 @@ bool kn_odbc_probe(kn_arena *a, const char *data, FILE *err)
     kn_sql_plan plan;
     kn_sql_session(a, d, &plan);
     for (size_t i = 0; i < plan.n; i++) {
-        SQLHSTMT st;
-        if (!SQL_SUCCEEDED(SQLAllocHandle(SQL_HANDLE_STMT, h->dbc, &st))) {
-            driver_error(a, err, "cannot make a statement", SQL_HANDLE_DBC, h->dbc);
-            return false;
-        }
-        SQLSetStmtAttr(st, SQL_ATTR_QUERY_TIMEOUT, (SQLPOINTER)(SQLULEN)KN_SQL_TIMEOUT_SECONDS, 0);
-        rc = SQLExecDirect(st, (SQLCHAR *)kn_strdup(a, plan.q[i].text), SQL_NTS);
-        if (!SQL_SUCCEEDED(rc)) {
-            char *what = kn_printf(a, "cannot make the session read-only (%s)", plan.q[i].text);
-            driver_error(a, err, what, SQL_HANDLE_STMT, st);
-            SQLFreeHandle(SQL_HANDLE_STMT, st);
-            return false;
+        char *what = kn_printf(a, "cannot make the session read-only (%s)", plan.q[i].text);
+        SQLHSTMT st = run(a, h->dbc, plan.q[i].text, what, err);
+        if (!st) {
+            return -1;
         }
         SQLFreeHandle(SQL_HANDLE_STMT, st);
     }
-    return true;
+    const char *shown = table ? kn_escape_term(a, table, strlen(table)) : "the rows of --query";
+    SQLHSTMT st = run(a, h->dbc, kn_sql_columns_query(a, d, table, query_sql),
+                      kn_printf(a, "cannot read the columns of %s", shown), err);
+    if (!st) {
+        return -1;
+    }
+    SQLSMALLINT n = 0;
+    if (!SQL_SUCCEEDED(SQLNumResultCols(st, &n))) {
+        driver_error(a, err, kn_printf(a, "cannot read the columns of %s", shown), SQL_HANDLE_STMT, st);
+        n = -1;
+    }
+    SQLFreeHandle(SQL_HANDLE_STMT, st);
+    return n;
 }

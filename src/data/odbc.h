@@ -22,10 +22,12 @@ bool kn_odbc_built(void);
  * case, braced or not) replaced by ***, so no password is ever printed. */
 char *kn_odbc_display(kn_arena *a, const char *data);
 
-/* Connects with the string after "odbc:" and checks that a read-only
- * session can be set up (SQL_ATTR_ACCESS_MODE read-only, the dialect's
- * statements, a statement timeout).  false, with the driver's message
- * (password masked) written to err, when it cannot. */
-bool kn_odbc_probe(kn_arena *a, const char *data, FILE *err);
+/* Connects with the string after "odbc:", sets up a read-only session
+ * (SQL_ATTR_ACCESS_MODE read-only, the dialect's statements, a statement
+ * timeout on every statement) and reads the column names of table (or of
+ * the rows of query_sql, the text of --query).  Returns the number of
+ * columns, or -1 with the driver's message (password masked) written to
+ * err. */
+long kn_odbc_probe(kn_arena *a, const char *data, const char *table, const char *query_sql, FILE *err);
 
 #endif

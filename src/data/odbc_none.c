@@ -7,10 +7,12 @@ bool kn_odbc_built(void)
     return false;
 }
 
-bool kn_odbc_probe(kn_arena *a, const char *data, FILE *err)
+long kn_odbc_probe(kn_arena *a, const char *data, const char *table, const char *query_sql, FILE *err)
 {
     (void)a;
     (void)data;
+    (void)table;
+    (void)query_sql;
     fputs("knowable: this knowable was built without database support\n", err);
-    return false;
+    return -1;
 }

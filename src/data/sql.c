@@ -320,6 +320,15 @@ static void session(plan_ctx *cp)
     }
 }
 
+char *kn_sql_columns_query(kn_arena *a, kn_sql_dialect d, const char *table, const char *query_sql)
+{
+    sbuf b = {a, NULL, 0, 0};
+    puts_(&b, "SELECT *");
+    from(&b, d, table, query_sql);
+    puts_(&b, " WHERE 1 = 0");
+    return b.p;
+}
+
 void kn_sql_session(kn_arena *a, kn_sql_dialect d, kn_sql_plan *out)
 {
     plan_ctx c = {a, d, NULL, NULL, kn_vec_new(a, sizeof(kn_sql_query))};
@@ -340,12 +349,9 @@ void kn_sql_make(kn_arena *a, const kn_schema *s, const kn_rulebook *rb, const c
     /* The session: read-only, with a statement timeout. */
     session(&c);
 
-    b = (sbuf){a, NULL, 0, 0};
-    puts_(&b, "SELECT *");
-    from(&b, d, table, query_sql);
-    puts_(&b, " WHERE 1 = 0");
     add(&c, KN_SQLQ_COLUMNS, "column-not-in-schema, column-not-in-data", NULL,
-        "the table's column names, no rows: compared with the schema's columns", b.p);
+        "the table's column names, no rows: compared with the schema's columns",
+        kn_sql_columns_query(a, d, table, query_sql));
 
     b = (sbuf){a, NULL, 0, 0};
     puts_(&b, "SELECT COUNT(*) AS n_rows");

@@ -69,6 +69,9 @@ typedef struct kn_sql_plan {
 void kn_sql_make(kn_arena *a, const kn_schema *s, const kn_rulebook *rb, const char *table, const char *query_sql,
                  kn_sql_dialect d, kn_sql_plan *out);
 
+/* The query of the table's column names (no rows). */
+char *kn_sql_columns_query(kn_arena *a, kn_sql_dialect d, const char *table, const char *query_sql);
+
 /* Only the session statements of dialect d (read-only, the timeout). */
 void kn_sql_session(kn_arena *a, kn_sql_dialect d, kn_sql_plan *out);
 

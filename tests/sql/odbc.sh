@@ -44,8 +44,15 @@ db.commit()
 " || fail "cannot make the SQLite file"
     run check --data "odbc:Driver=SQLite3;Database=$tmp/parcels.db;PWD={tea;and}}scones}" --table parcels -- parcels.knowable.yaml
     [ "$rc" = 2 ] || fail "SQLite through ODBC: exit $rc (the data rules are not finished: 2)"
-    grep -q "connected read-only to odbc:Driver=SQLite3;Database=.*;PWD=\*\*\*, but" err || fail "no read-only session on SQLite"
+    grep -q "connected read-only to odbc:Driver=SQLite3;Database=.*;PWD=\*\*\* (parcels: 2 columns), but" err || fail "no read-only session on SQLite"
     if grep -q "scones" out err; then fail "the braced password was printed"; fi
+    run check --data "odbc:Driver=SQLite3;Database=$tmp/parcels.db" --table 'no_such"table' -- parcels.knowable.yaml
+    [ "$rc" = 2 ] || fail "a table that is not there: exit $rc"
+    grep -q "cannot read the columns of no_such\"table: .*no such table" err || fail "no message for a table that is not there"
+    echo 'SELECT weight_kg FROM parcels WHERE arrived_late = '"'"'yes'"'"';' >light.sql
+    run check --data "odbc:Driver=SQLite3;Database=$tmp/parcels.db" --query light.sql -- parcels.knowable.yaml
+    [ "$rc" = 2 ] || fail "--query through ODBC: exit $rc"
+    grep -q "(--query: 1 column)" err || fail "--query through ODBC: the query's columns were not read"
     run check --data "odbc:Driver=SQLite3;Database=$tmp/missing-dir/none.db" --table parcels -- parcels.knowable.yaml
     [ "$rc" = 2 ] || fail "an SQLite file that cannot be opened: exit $rc"
 else
