@@ -127,7 +127,9 @@ kn_status kn_check(const kn_options *o, const char *const *schemas, size_t n, FI
         return end(&r, KN_EXIT_FAILED);
     }
     for (size_t i = 0; i < n; i++) {
-        kn_run_analyse(&r, kn_run_load(&r, schemas[i]));
+        kn_unit *u = kn_run_load(&r, schemas[i]);
+        kn_run_analyse(&r, u);
+        kn_run_release(&r, u); /* its findings are recorded */
     }
     kn_run_finish(&r);
     FILE *report = kn_run_open_output(&r, o->output, out, false);

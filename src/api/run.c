@@ -155,8 +155,28 @@ kn_unit *kn_run_load(kn_run *r, const char *path)
     lo.cache = r->files;
     lo.overlay = r->overlay;
     lo.overlay_ctx = r->overlay_ctx;
-    u->schema = kn_schema_load(r->arena, r->sink, path, &lo);
+    u->arena = kn_arena_child(r->arena, &u->release);
+    u->schema = kn_schema_load(u->arena, r->sink, path, &lo);
+    if (u->schema) {
+        /* Which files it read outlives the model (outputs may not replace them). */
+        u->n_files = u->schema->n_files;
+        u->files = kn_alloc_array(r->arena, u->n_files + 1, sizeof *u->files);
+        for (size_t i = 0; i < u->n_files; i++) {
+            u->files[i] = kn_strdup(r->arena, u->schema->files[i].path);
+        }
+    }
     return u;
+}
+
+void kn_run_release(kn_run *r, kn_unit *u)
+{
+    if (u->release) {
+        kn_defer_run(r->arena, u->release);
+        u->release = NULL;
+    }
+    u->arena = NULL;
+    u->schema = NULL;
+    u->timeline = NULL;
 }
 
 void kn_run_analyse(kn_run *r, kn_unit *u)
@@ -164,12 +184,12 @@ void kn_run_analyse(kn_run *r, kn_unit *u)
     if (!u->schema) {
         return;
     }
-    kn_ctx ctx = {r->arena, r->sink, u->rulebook, r->today};
+    kn_ctx ctx = {u->arena, r->sink, u->rulebook, r->today};
     kn_schema *s = u->schema;
     /* The families of rules, in pipeline order; each skips only what a
      * schema error set aside.  The timeline is solved once and read by the
      * families after it. */
-    u->timeline = kn_timeline_solve(r->arena, r->sink, s, u->rulebook->strict_moment);
+    u->timeline = kn_timeline_solve(u->arena, r->sink, s, u->rulebook->strict_moment);
     kn_check_availability(&ctx, s, u->timeline);
     kn_check_maturity(&ctx, s, u->timeline);
     kn_check_provenance(&ctx, s);
@@ -248,9 +268,8 @@ const char *const *kn_run_inputs(const kn_run *r, size_t *n)
     kn_unit **units = r->units->data;
     for (size_t i = 0; i < r->units->len; i++) {
         kn_vec_push(v, &units[i]->path);
-        const kn_schema *s = units[i]->schema;
-        for (size_t k = 0; s && k < s->n_files; k++) {
-            kn_vec_push(v, &s->files[k].path);
+        for (size_t k = 0; k < units[i]->n_files; k++) {
+            kn_vec_push(v, &units[i]->files[k]);
         }
     }
     for (size_t i = 0; i < o->n_rulebooks; i++) {

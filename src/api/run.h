@@ -22,8 +22,13 @@
 typedef struct kn_unit {
     const char *path;
     kn_rulebook *rulebook; /* NULL: its rulebook could not be read */
-    kn_schema *schema;     /* NULL: the schema could not be read at all */
+    kn_schema *schema;     /* NULL: the schema could not be read at all, or
+                              its model was released */
     kn_timeline *timeline; /* after kn_run_analyse */
+    kn_arena *arena;       /* the model's own memory (a child of the run's) */
+    kn_defer *release;     /* frees it (kn_run_release) */
+    const char **files;    /* the files the schema read (run memory) */
+    size_t n_files;
 } kn_unit;
 
 typedef struct kn_run {
@@ -71,6 +76,12 @@ kn_unit *kn_run_load(kn_run *r, const char *path);
  * errors only set aside what depends on them); with o->data the data
  * checks too.  Declares the unit's waivers. */
 void kn_run_analyse(kn_run *r, kn_unit *u);
+
+/* Frees the unit's model and timeline once its findings are in the sink
+ * (which keeps its own copies of everything it reports), so a run over many
+ * schemas holds one model at a time.  Commands that read the model after
+ * the analysis (sources, timeline, the language server) keep it. */
+void kn_run_release(kn_run *r, kn_unit *u);
 
 /* Reads --baseline before anything is analysed; false (run failed) when
  * it cannot be read. */

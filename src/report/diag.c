@@ -29,6 +29,8 @@ struct kn_sink {
     size_t n_baseline;
     const char *root;
     kn_name_map *paths; /* display path -> path in fingerprints */
+    kn_name_map *files; /* file names the findings name, owned by the sink */
+    const char *last_file, *last_own;
     bool fatal;
     bool finished;
     unsigned long long sample_kept, sample_total;
@@ -45,6 +47,7 @@ kn_sink *kn_sink_new(kn_arena *a)
     s->units = kn_vec_new(a, sizeof(const kn_severity *));
     s->waivers = kn_vec_new(a, sizeof(waiver));
     s->paths = kn_names_new(a);
+    s->files = kn_names_new(a);
     return s;
 }
 
@@ -58,16 +61,51 @@ void kn_sink_begin_unit(kn_sink *s, const kn_severity *sev)
     kn_vec_push(s->units, &sev);
 }
 
-static kn_pos pos_or_file(const kn_pos *pos, const char *fallback_file)
+/* The sink's own copy of a file name: a finding outlives the model of the
+ * schema it is about (the run frees each model once it is analysed), so
+ * nothing the sink keeps may point into it.  Each name is copied once. */
+static const char *own_file(kn_sink *s, const char *file)
+{
+    if (!file || !*file) {
+        return "";
+    }
+    if (file == s->last_file) {
+        return s->last_own;
+    }
+    const char *own = kn_names_get(s->files, file);
+    if (!own) {
+        char *copy = kn_strdup(s->arena, file);
+        kn_names_put(s->files, copy, copy);
+        own = copy;
+    }
+    s->last_file = file;
+    s->last_own = own;
+    return own;
+}
+
+static kn_pos pos_or_file(kn_sink *s, const kn_pos *pos, const char *fallback_file)
 {
     kn_pos p = {0};
     if (pos) {
         p = *pos;
     }
-    if (!p.file) {
-        p.file = fallback_file ? fallback_file : "";
-    }
+    p.file = p.file ? own_file(s, p.file) : fallback_file ? own_file(s, fallback_file) : "";
     return p;
+}
+
+static const kn_pos *own_pos(kn_sink *s, const kn_pos *pos)
+{
+    if (!pos) {
+        return NULL;
+    }
+    kn_pos *p = kn_alloc(s->arena, sizeof *p);
+    *p = pos_or_file(s, pos, NULL);
+    return p;
+}
+
+static const char *own_str(kn_sink *s, const char *text)
+{
+    return text ? kn_strdup(s->arena, text) : NULL;
 }
 
 static kn_diag *vpush(kn_sink *s, kn_rule r, const kn_pos *pos, const char *subject, size_t unit,
@@ -76,7 +114,7 @@ static kn_diag *vpush(kn_sink *s, kn_rule r, const kn_pos *pos, const char *subj
     kn_diag *d = kn_alloc(s->arena, sizeof *d);
     d->rule = r;
     d->severity = kn_rule_get(r)->severity;
-    d->pos = pos_or_file(pos, NULL);
+    d->pos = pos_or_file(s, pos, NULL);
     d->subject = kn_strdup(s->arena, subject ? subject : "");
     d->message = kn_vprintf(s->arena, fmt, ap);
     d->key = d->message;
@@ -110,7 +148,7 @@ static kn_note *new_note(kn_sink *s, kn_diag *d, const kn_pos *pos)
         d->cap_notes = cap;
     }
     kn_note *note = &d->notes[d->n_notes++];
-    note->pos = pos_or_file(pos, d->pos.file);
+    note->pos = pos_or_file(s, pos, d->pos.file);
     return note;
 }
 
@@ -172,6 +210,17 @@ void kn_sink_waiver(kn_sink *s, const kn_waiver_decl *w)
         return;
     }
     waiver x = {*w, s->units->len, 0, 0};
+    /* Copied: the model the declaration points into goes before the sink. */
+    x.d.rule_id = own_str(s, w->rule_id);
+    x.d.subject = own_str(s, w->subject);
+    x.d.block = own_str(s, w->block);
+    x.d.file = w->file ? own_file(s, w->file) : NULL;
+    x.d.reason = own_str(s, w->reason);
+    x.d.expires = own_str(s, w->expires);
+    x.d.at = own_pos(s, w->at);
+    x.d.rule_at = own_pos(s, w->rule_at);
+    x.d.reason_at = own_pos(s, w->reason_at);
+    x.d.expires_at = own_pos(s, w->expires_at);
     kn_vec_push(s->waivers, &x);
 }
 
@@ -694,9 +743,9 @@ void kn_sink_data_skip(kn_sink *s, kn_rule rule, const char *subject, const char
     }
     kn_data_skip *k = &s->skips[s->n_skips++];
     k->rule = rule;
-    k->subject = subject;
-    k->statistic = statistic;
-    k->reason = reason;
+    k->subject = own_str(s, subject);
+    k->statistic = own_str(s, statistic);
+    k->reason = own_str(s, reason);
 }
 
 const kn_data_skip *kn_sink_data_skips(const kn_sink *s, size_t *n)

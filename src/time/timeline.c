@@ -1381,7 +1381,8 @@ void kn_timeline_note_chain(const kn_timeline *t, kn_sink *sink, kn_diag *d,
         }
         size_t ei = shown_edge[k];
         if (!t->step_text[ei]) {
-            t->step_text[ei] = kn_timeline_step_words(t->arena, &shown[k]);
+            /* in the sink's memory: the findings outlive the timeline */
+            t->step_text[ei] = kn_timeline_step_words(kn_sink_arena(sink), &shown[k]);
         }
         kn_diag_note_text(sink, d, constraint_pos(shown[k].con), t->step_text[ei]);
     }

@@ -146,6 +146,24 @@ void kn_arena_set_oom(kn_arena *a, jmp_buf *target)
     a->oom = target;
 }
 
+static void free_child(void *p)
+{
+    kn_arena_free(p);
+}
+
+kn_arena *kn_arena_child(kn_arena *a, kn_defer **release)
+{
+    kn_defer *d = kn_arena_defer(a, free_child, NULL);
+    kn_arena *child = kn_arena_new();
+    if (!child) {
+        kn_arena_oom(a);
+    }
+    child->oom = a->oom;
+    d->ptr = child;
+    *release = d;
+    return child;
+}
+
 _Noreturn void kn_arena_oom(kn_arena *a)
 {
     if (a->oom) {

@@ -32,6 +32,12 @@ kn_arena *kn_arena_new(void);
 /* Runs every deferred cleanup (newest first) and frees all memory. */
 void kn_arena_free(kn_arena *a);
 
+/* A second arena for memory that can go before a's (one schema's model in
+ * a run): it shares a's out-of-memory target, and a frees it at the latest
+ * when a is freed.  *release is what kn_defer_run(a, *release) takes to free
+ * it earlier.  Never returns NULL (a failure jumps to a's target). */
+kn_arena *kn_arena_child(kn_arena *a, kn_defer **release);
+
 /* Installs the jump target for allocation failure (NULL: abort-free
  * fallback is not offered; every entry point must install one). */
 void kn_arena_set_oom(kn_arena *a, jmp_buf *target);
