@@ -1,13 +1,14 @@
 #!/bin/sh
 # tests/bench/run.sh BUILD - the speed benchmarks of SPEC §8, one command:
 # generates schemas of 1,000, 10,000 and 100,000 columns (300 events, 100
-# sources), builds tests/bench/bare_parse.c (a bare libyaml event parse)
-# next to BUILD's knowable, and compares `knowable check` with the bare parse
-# on each file: best wall time and CPU time of several runs, and instruction
-# counts under valgrind --tool=callgrind (repeatable).  Then the timeline
-# solver on 100 to 10,000 events (BUILD/tests/timeline_bench) when it is
-# built.  Prints a Markdown table.  BENCH_CALLGRIND=0 skips callgrind;
-# BENCH_SIZES="1000 10000" picks the sizes.
+# sources, a tenth of the columns late), builds tests/bench/bare_parse.c (a
+# bare libyaml event parse) next to BUILD's knowable, and runs `knowable
+# check -o REPORT` and the bare parse alternately on each file: medians of
+# wall and CPU time of whole processes and peak RSS side by side, with
+# instruction counts under valgrind --tool=callgrind as a diagnostic.  Then
+# the timeline solver on 100 to 10,000 events (BUILD/tests/timeline_bench)
+# when it is built.  Prints a Markdown table.  BENCH_CALLGRIND=0 skips
+# callgrind; BENCH_SIZES="1000 10000" picks the sizes; BENCH_RUNS the runs.
 set -eu
 build=${1:?usage: tests/bench/run.sh BUILD}
 here=$(cd "$(dirname "$0")" && pwd)
