@@ -8,10 +8,10 @@
 #include <limits.h>
 #include <stdlib.h>
 #include <string.h>
-#include <unistd.h>
 
 #include "../util/hash.h"
 #include "../util/names.h"
+#include "../util/path.h"
 
 typedef struct waiver {
     kn_waiver_decl d;
@@ -461,85 +461,26 @@ static void apply_waivers(kn_sink *s, const char *today)
 
 /* ---- fingerprints ---- */
 
-/* path with "." and "x/.." taken out, lexically. */
-static const char *tidy_path(kn_arena *a, const char *path)
-{
-    size_t len = strlen(path);
-    const char **seg = kn_alloc_array(a, len / 2 + 2, sizeof *seg);
-    size_t *seg_len = kn_alloc_array(a, len / 2 + 2, sizeof *seg_len);
-    size_t n = 0;
-    bool absolute = path[0] == '/';
-    const char *p = path;
-    while (*p) {
-        while (*p == '/') {
-            p++;
-        }
-        const char *e = p;
-        while (*e && *e != '/') {
-            e++;
-        }
-        size_t l = (size_t)(e - p);
-        if (l == 0 || (l == 1 && p[0] == '.')) {
-            /* nothing */
-        } else if (l == 2 && p[0] == '.' && p[1] == '.' && n > 0 &&
-                   !(seg_len[n - 1] == 2 && seg[n - 1][0] == '.' && seg[n - 1][1] == '.')) {
-            n--;
-        } else {
-            seg[n] = p;
-            seg_len[n++] = l;
-        }
-        p = e;
-    }
-    char *out = kn_alloc(a, len + 2);
-    size_t o = 0;
-    if (absolute) {
-        out[o++] = '/';
-    }
-    for (size_t i = 0; i < n; i++) {
-        if (i) {
-            out[o++] = '/';
-        }
-        memcpy(out + o, seg[i], seg_len[i]);
-        o += seg_len[i];
-    }
-    out[o] = '\0';
-    return out;
-}
-
-/* The nearest folder upwards from real (a real path) that holds .git. */
-static const char *repository_of(kn_arena *a, const char *real)
-{
-    char *dir = kn_strdup(a, real);
-    for (;;) {
-        char *slash = strrchr(dir, '/');
-        if (!slash) {
-            return NULL;
-        }
-        *slash = '\0';
-        const char *probe = kn_printf(a, "%s/.git", *dir ? dir : "");
-        if (access(probe, F_OK) == 0) {
-            return *dir ? dir : "/";
-        }
-        if (!*dir) {
-            return NULL;
-        }
-    }
-}
-
 /* The file as fingerprints name it: relative to the root (or the file's
- * repository), so that ./a.yaml, a.yaml and d/../a.yaml are one file. */
+ * repository, SPEC §9's default root), so that ./a.yaml, a.yaml and
+ * d/../a.yaml are one file. */
 static const char *print_path(kn_sink *s, const char *file)
 {
     const char *known = kn_names_get(s->paths, file);
     if (known) {
         return known;
     }
-    const char *out = tidy_path(s->arena, file);
+    const char *out = kn_path_tidy(s->arena, file);
     char *real = *file ? realpath(file, NULL) : NULL;
     if (real) {
         const char *r = kn_strdup(s->arena, real);
         free(real);
-        const char *root = s->root ? s->root : repository_of(s->arena, r);
+        const char *root = s->root;
+        if (!root) {
+            /* the repository; without one the path stays as given, tidied */
+            root = kn_path_default_root(s->arena, r);
+            root = root && kn_path_is_project(s->arena, root) ? root : NULL;
+        }
         size_t rl = root ? strlen(root) : 0;
         if (root && strncmp(r, root, rl) == 0 && (r[rl] == '/' || (rl == 1 && root[0] == '/'))) {
             out = r + rl + (r[rl] == '/');
