@@ -9,6 +9,7 @@ knowable=${1:?usage: run.sh KNOWABLE CASE}
 case=${2:?usage: run.sh KNOWABLE CASE}
 case $knowable in /*) ;; *) knowable=$(pwd)/$knowable ;; esac
 src=$(cd "$(dirname "$0")/../.." && pwd)
+lib=$(cd "$(dirname "$0")/.." && pwd)/script-lib.sh
 tmp=$(mktemp -d "${TMPDIR:-/tmp}/kn-cli.XXXXXX") || exit 1
 trap 'rm -rf "$tmp"' EXIT
 cd "$tmp" || exit 1
@@ -16,40 +17,7 @@ export KNOWABLE_TODAY=2026-06-01
 unset NO_COLOR FORCE_COLOR CLICOLOR_FORCE
 fails=0
 
-fail() {
-    echo "FAIL: $*"
-    fails=$((fails + 1))
-}
-
-# run NAME ARGS...: knowable ARGS with stdout in NAME.out, stderr in
-# NAME.err; sets $rc.
-run() {
-    name=$1
-    shift
-    "$knowable" "$@" >"$name.out" 2>"$name.err" </dev/null
-    rc=$?
-    echo "$case/$name: exit $rc: knowable $*"
-    sed -n '1,4p' "$name.out" "$name.err" | cut -c1-200 | sed 's/^/    /'
-    if [ "$rc" -ge 128 ]; then
-        fail "$name: killed by signal $((rc - 128))"
-    fi
-}
-
-expect_rc() {
-    [ "$rc" = "$1" ] || fail "$name: exit $rc, expected $1"
-}
-
-# expect FILE PATTERN: a line of FILE matches the basic regular expression.
-expect() {
-    grep -q -e "$2" "$1" || { fail "$1: no line matching '$2'"; sed 's/^/    | /' "$1" | head -n 8; }
-}
-
-expect_not() {
-    if grep -q -e "$2" "$1"; then
-        fail "$1: a line matches '$2'"
-        sed 's/^/    | /' "$1" | head -n 8
-    fi
-}
+. "$lib"
 
 # A consistent schema (timed columns, all available at the moment).
 # schema FILE [INCLUDE]: writes it, including INCLUDE when given, whose

@@ -8,6 +8,7 @@ set -u
 knowable=${1:?usage: run.sh KNOWABLE CASE}
 case=${2:?usage: run.sh KNOWABLE CASE}
 case $knowable in /*) ;; *) knowable=$(pwd)/$knowable ;; esac
+lib=$(cd "$(dirname "$0")/.." && pwd)/script-lib.sh
 tmp=$(mktemp -d "${TMPDIR:-/tmp}/kn-run.XXXXXX") || exit 1
 trap 'rm -rf "$tmp"' EXIT
 cd "$tmp" || exit 1
@@ -15,34 +16,7 @@ mkdir .git
 export KNOWABLE_TODAY=2026-06-01 NO_COLOR=1
 fails=0
 
-fail() {
-    echo "FAIL: $*"
-    fails=$((fails + 1))
-}
-
-# run NAME ARGS...: stdout in NAME.out, stderr in NAME.err, status in $rc.
-run() {
-    name=$1
-    shift
-    "$knowable" "$@" >"$name.out" 2>"$name.err" </dev/null
-    rc=$?
-    echo "$case/$name: exit $rc: knowable $*"
-    sed -n '1,3p' "$name.out" "$name.err" | cut -c1-160 | sed 's/^/    /'
-}
-
-expect_rc() {
-    [ "$rc" = "$1" ] || fail "$name: exit $rc, expected $1"
-}
-
-expect() {
-    grep -q -e "$2" "$1" || { fail "$1: no line matching '$2'"; sed 's/^/    | /' "$1" | head -n 8; }
-}
-
-expect_not() {
-    if grep -q -e "$2" "$1"; then
-        fail "$1: a line matches '$2'"
-    fi
-}
+. "$lib"
 
 unchanged() { # FILE COPY
     cmp -s "$1" "$2" || fail "$1 was changed"
