@@ -699,26 +699,6 @@ char *kn_rulebook_discover(kn_arena *a, const char *schema_path, const char *roo
     return NULL;
 }
 
-kn_rulebook *kn_rulebook_for(kn_arena *a, kn_sink *sink, const char *const *paths, size_t n_paths,
-                             const char *schema, const char *root)
-{
-    kn_rulebook *rb = kn_rulebook_new(a);
-    if (!kn_rulebook_load_default(rb, a, sink)) {
-        return rb;
-    }
-    if (n_paths) {
-        for (size_t i = 0; i < n_paths; i++) {
-            kn_rulebook_load(rb, a, sink, paths[i]);
-        }
-    } else if (schema) {
-        char *found = kn_rulebook_discover(a, schema, root);
-        if (found) {
-            kn_rulebook_load(rb, a, sink, found);
-        }
-    }
-    return rb;
-}
-
 void kn_rulebook_apply(const kn_rulebook *rb, kn_sink *sink)
 {
     kn_sink_begin_unit(sink, rb->severity);

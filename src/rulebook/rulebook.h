@@ -66,12 +66,6 @@ bool kn_rulebook_load(kn_rulebook *rb, kn_arena *a, kn_sink *sink, const char *p
  * an arena path or NULL. */
 char *kn_rulebook_discover(kn_arena *a, const char *schema_path, const char *root);
 
-/* The rulebook a command runs under: the built-in default, then each of
- * paths in order or, when there are none and schema is given, the
- * discovered .knowable-rules.yaml.  Errors go to the sink (marked fatal). */
-kn_rulebook *kn_rulebook_for(kn_arena *a, kn_sink *sink, const char *const *paths, size_t n_paths,
-                             const char *schema, const char *root);
-
 /* Starts the sink's unit of findings judged under this rulebook. */
 void kn_rulebook_apply(const kn_rulebook *rb, kn_sink *sink);
 
