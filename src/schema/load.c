@@ -1789,6 +1789,29 @@ static const kn_node *block_clock(const dur_block *b)
     return NULL;
 }
 
+/* What a key of a block holds for the duration hints. */
+typedef enum hint_kind { HINT_NONE, HINT_RECORDING, HINT_LAG, HINT_RELATION, HINT_WINDOW, HINT_JOIN } hint_kind;
+
+static hint_kind hint_key(const char *k, size_t len)
+{
+    static const struct {
+        const char *word;
+        size_t len;
+        hint_kind kind;
+    } words[] = {
+        {"latency", 7, HINT_RECORDING}, {"delay", 5, HINT_RECORDING}, {"refresh", 7, HINT_LAG},
+        {"matures", 7, HINT_LAG},       {"gap", 3, HINT_LAG},         {"embargo", 7, HINT_LAG},
+        {"after", 5, HINT_RELATION},    {"before", 6, HINT_RELATION}, {"window", 6, HINT_WINDOW},
+        {"join", 4, HINT_JOIN},
+    };
+    for (size_t i = 0; i < sizeof words / sizeof *words; i++) {
+        if (words[i].len == len && words[i].word[0] == k[0] && memcmp(words[i].word, k, len) == 0) {
+            return words[i].kind;
+        }
+    }
+    return HINT_NONE;
+}
+
 /* Reads the durations of one block and returns its first duration in
  * hours, minutes or seconds (or NULL).  With report, pushes the hints: a
  * duration in months or years beside such a duration, and a latency or
@@ -1801,27 +1824,35 @@ static const kn_node *hint_block(ld *l, const kn_node *entry, bool report, const
     }
     dur_block b;
     b.n = 0;
-    /* One pass over the block's keys; most are neither durations nor lags. */
+    /* One pass over the block's keys; most are neither durations nor
+     * lags, and are passed over by their length and first letter. */
     for (size_t i = 0; i < entry->u.map.n; i++) {
-        const char *k = kn_node_str(entry->u.map.pairs[i].key);
+        const kn_node *key = entry->u.map.pairs[i].key;
         const kn_node *v = entry->u.map.pairs[i].value;
-        if (!k) {
+        if (key->kind != KN_NODE_SCALAR) {
             continue;
         }
-        if (strcmp(k, "latency") == 0 || strcmp(k, "delay") == 0) {
+        switch (hint_key(key->u.scalar.text, key->u.scalar.len)) {
+        case HINT_RECORDING:
             hint_take_lag(&b, v, true);
-        } else if (strcmp(k, "refresh") == 0 || strcmp(k, "matures") == 0 || strcmp(k, "gap") == 0 ||
-                   strcmp(k, "embargo") == 0) {
+            break;
+        case HINT_LAG:
             hint_take_lag(&b, v, false);
-        } else if (strcmp(k, "after") == 0 || strcmp(k, "before") == 0) {
+            break;
+        case HINT_RELATION:
             for (size_t j = 0; v && v->kind == KN_NODE_MAP && j < v->u.map.n; j++) {
                 hint_take_lag(&b, v->u.map.pairs[j].value, false);
             }
-        } else if (strcmp(k, "window") == 0) {
+            break;
+        case HINT_WINDOW:
             hint_take(&b, map_get(v, "from"), false, NULL, false);
             hint_take(&b, map_get(v, "to"), false, NULL, false);
-        } else if (strcmp(k, "join") == 0) {
+            break;
+        case HINT_JOIN:
             hint_take(&b, map_get(map_get(v, "as_of"), "offset"), false, NULL, false);
+            break;
+        case HINT_NONE:
+            break;
         }
     }
     for (size_t i = 0; i < b.n; i++) {
