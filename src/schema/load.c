@@ -80,6 +80,8 @@ typedef struct ld {
     kn_node **include_nodes;            /* per stack level: the include's value node */
     size_t n_files;
     bool errors;
+    bool calendar; /* some duration read is in months or years: the hints
+                      of hint_calendar_units have something to look at */
     size_t unknown_keys;
     size_t value_errors; /* errors that make the object being loaded unusable
                             (every error but an unknown key, which is ignored) */
@@ -241,6 +243,8 @@ static bool parse_duration(ld *l, const owner *o, const char *key, const kn_node
         }
         return false;
     }
+    l->calendar = l->calendar ||
+                  (kn_duration_units(v->u.scalar.text, v->u.scalar.len) & (KN_DU_MONTHS | KN_DU_YEARS));
     return true;
 }
 
@@ -1990,7 +1994,9 @@ kn_schema *kn_schema_load(kn_arena *a, kn_sink *sink, const char *path, const kn
     copy_out(&l);
     resolve_all(&l);
     check_target_roles(&l);
-    for (size_t i = 0; i < l.s->n_files; i++) {
+    /* The hints need a duration in months or years; the loader has read
+     * every duration, so a schema without one is spared the second pass. */
+    for (size_t i = 0; l.calendar && i < l.s->n_files; i++) {
         hint_calendar_units(&l, l.s->files[i].root);
     }
     find_cycles(&l);
