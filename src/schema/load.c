@@ -22,7 +22,7 @@
 
 #define MAX_INCLUDE_DEPTH 16
 #define MAX_INCLUDED_FILES 256
-#define MAX_KEYS 16
+#define MAX_KEYS 16 /* the most keys a shape table gives one mapping (kn_shape_selfcheck) */
 
 /* Indices into the shape tables of shape.c (kept in the same order; the
  * unit test test_schema checks them against the tables' names). */
@@ -2055,8 +2055,29 @@ const kn_pos *kn_column_pos(const kn_column *c, const kn_node *node)
 }
 
 /* The index enums above must follow the tables of shape.c. */
+/* True when shape and every shape below it take at most MAX_KEYS keys (the
+ * loader's per-mapping arrays).  Depth-bounded: the tables are finite. */
+static bool shape_fits(const kn_shape *sh, int depth)
+{
+    if (!sh || depth > 8) {
+        return true;
+    }
+    if (sh->n_keys > MAX_KEYS) {
+        return false;
+    }
+    for (size_t i = 0; i < sh->n_keys; i++) {
+        if (!shape_fits(sh->keys[i].sub, depth + 1)) {
+            return false;
+        }
+    }
+    return true;
+}
+
 bool kn_shape_selfcheck(void)
 {
+    if (!shape_fits(&kn_shape_top, 0) || !shape_fits(&kn_shape_included, 0) || !shape_fits(&kn_shape_source, 0)) {
+        return false;
+    }
     static const struct {
         const kn_shape *shape;
         int index;
