@@ -149,6 +149,14 @@ outputs-never-inputs)
     run svg-over timeline --svg shared/register.yaml -- team/s.knowable.yaml
     expect_rc 2
     unchanged shared/register.yaml register.copy
+    # A schema piped in under --stdin-name stands for that file.
+    cp team/s.knowable.yaml schema.copy
+    "$knowable" check --stdin-name team/s.knowable.yaml -o team/s.knowable.yaml - \
+        <schema.copy >stdin-over.out 2>stdin-over.err
+    rc=$?
+    expect_rc 2
+    expect stdin-over.err "never writes over an input"
+    unchanged team/s.knowable.yaml schema.copy
     ls shared team | grep -q tmp- && fail "a temporary file was left behind"
     # Elsewhere the report is written.
     run report check -o report.txt -- team/s.knowable.yaml
