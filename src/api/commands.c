@@ -154,23 +154,33 @@ kn_status kn_sources(const kn_options *o, const char *const *schemas, size_t n, 
     if (r.failed) {
         return end(&r, KN_EXIT_FAILED);
     }
-    kn_schema **loaded = kn_alloc_array(a, n ? n : 1, sizeof *loaded);
-    const kn_rulebook **rbs = kn_alloc_array(a, n ? n : 1, sizeof *rbs);
+    kn_unit **units = kn_alloc_array(a, n ? n : 1, sizeof *units);
     bool ok = n > 0;
     for (size_t i = 0; i < n; i++) {
-        kn_unit *u = kn_run_load(&r, schemas[i]);
-        loaded[i] = u->schema;
-        rbs[i] = u->rulebook;
-        ok = ok && u->schema && u->schema->shape_ok;
+        units[i] = kn_run_load(&r, schemas[i]);
+        ok = ok && units[i]->schema && units[i]->schema->shape_ok;
     }
     if (!ok || kn_sink_fatal(r.sink)) {
         return refuse(&r, "the schema has errors (above); fix them before writing its register of sources");
+    }
+    /* The register lists what the check finds against each source. */
+    kn_schema **loaded = kn_alloc_array(a, n, sizeof *loaded);
+    const kn_rulebook **rbs = kn_alloc_array(a, n, sizeof *rbs);
+    const kn_doc_findings **found = kn_alloc_array(a, n, sizeof *found);
+    for (size_t i = 0; i < n; i++) {
+        kn_run_analyse(&r, units[i]);
+        loaded[i] = units[i]->schema;
+        rbs[i] = units[i]->rulebook;
+    }
+    kn_run_finish(&r);
+    for (size_t i = 0; i < n; i++) {
+        found[i] = kn_doc_findings_make(a, r.sink, i + 1, loaded[i], units[i]->timeline);
     }
     FILE *doc = kn_run_open_output(&r, o->output, out, false);
     if (!doc) {
         return end(&r, KN_EXIT_FAILED);
     }
-    kn_sources_write(doc, a, loaded, rbs, n, fmt == KN_FORMAT_JSON);
+    kn_sources_write(doc, a, loaded, rbs, found, n, fmt == KN_FORMAT_JSON);
     return end(&r, KN_EXIT_OK);
 }
 
@@ -187,16 +197,19 @@ kn_status kn_timeline_report(const kn_options *o, const char *schema, FILE *out,
     if (!u->schema || !u->schema->shape_ok || kn_sink_fatal(r.sink)) {
         return refuse(&r, "the schema has errors (above); fix them before placing its timeline");
     }
-    /* Contradictions are part of the report itself, not diagnostics. */
-    kn_timeline *t = kn_timeline_solve(a, r.sink, u->schema, u->rulebook->strict_moment);
+    /* The same analysis as `check`: the documents show its findings, and
+     * contradictions are part of the report itself. */
+    kn_run_analyse(&r, u);
+    kn_run_finish(&r);
+    const kn_doc_findings *found = kn_doc_findings_make(a, r.sink, 0, u->schema, u->timeline);
     FILE *text = kn_run_open_output(&r, o->output, out, false);
     FILE *svg = text ? kn_run_open_output(&r, o->svg, NULL, false) : NULL;
     if (!text || (o->svg && !svg)) {
         return end(&r, KN_EXIT_FAILED);
     }
-    kn_timeline_write_text(text, u->schema, t);
+    kn_timeline_write_text(text, u->schema, u->timeline, found);
     if (svg) {
-        kn_timeline_write_svg(svg, u->schema, t);
+        kn_timeline_write_svg(svg, u->schema, u->timeline, found);
     }
     return end(&r, KN_EXIT_OK);
 }

@@ -4,9 +4,11 @@
  * that defines it and its name, so a shared register included by several
  * schemas is listed once with all its uses - and writes external sources
  * first (every provenance field, the required ones that are missing marked
- * as missing), then internal ones, each followed by the columns that come
- * from it, by which key and as of which event.  Markdown or JSON.  Reads the
- * schema model only; pushes no diagnostics of its own. */
+ * as missing), then internal ones, each followed by the findings of `check`
+ * against it (provenance, latest-value joins, unsettled values; waived ones
+ * with the waiver's reason), the waivers declared on it, and the columns
+ * that come from it, by which key and as of which event.  Markdown or JSON.
+ * Reads the schema model and the findings; pushes no diagnostics. */
 #include <knowable/knowable.h>
 
 #include <setjmp.h>
@@ -32,15 +34,24 @@ typedef struct use {
     const kn_column *input; /* VIA_DERIVED: the input that comes from it */
 } use;
 
+/* One finding of `check` against a source. */
+typedef struct against {
+    size_t schema;
+    const kn_view *v;
+    const char *column; /* the column it is about, NULL for the source itself */
+} against;
+
 typedef struct entry {
     const kn_source *src; /* the definition, as first loaded */
     kn_vec *uses;         /* use */
+    kn_vec *findings;     /* against */
 } entry;
 
 typedef struct reg {
     kn_arena *a;
     const kn_rulebook *rb;
     kn_schema **schemas;
+    const kn_doc_findings *const *found;
     size_t n_schemas;
     kn_name_map *by_id; /* "real path\nname" -> entry */
     kn_vec *entries;    /* entry *, in order of first appearance */
@@ -75,6 +86,7 @@ static entry *entry_of(reg *r, const kn_schema *s, const kn_source *src)
         e = kn_alloc(r->a, sizeof *e);
         e->src = src;
         e->uses = kn_vec_new(r->a, sizeof(use));
+        e->findings = kn_vec_new(r->a, sizeof(against));
         kn_names_put(r->by_id, id, e);
         kn_vec_push(r->entries, &e);
     }
@@ -150,6 +162,46 @@ static void derived_uses(reg *r, size_t si, const kn_column *c, size_t *seen, co
     }
 }
 
+/* The findings of schema si against its sources: those about a source
+ * (its provenance, that nothing uses it) and those about a column that name
+ * the source it reads (a latest-value join, a join that cannot go back in
+ * time, unsettled values): the join's source, else the column's own, as the
+ * checks read it. */
+static void gather_findings(reg *r, size_t si)
+{
+    const kn_schema *s = r->schemas[si];
+    const kn_doc_findings *f = r->found ? r->found[si] : NULL;
+    if (!f) {
+        return;
+    }
+    kn_name_map *sources = kn_names_new(r->a), *columns = kn_names_new(r->a);
+    for (size_t i = 0; i < s->n_sources; i++) {
+        kn_names_put(sources, s->sources[i]->name, r->of_source[i]);
+    }
+    for (size_t i = 0; i < s->n_columns; i++) {
+        kn_names_put(columns, s->columns[i]->name, s->columns[i]);
+    }
+    for (size_t i = 0; i < f->n_all; i++) {
+        const kn_view *v = &f->all[i];
+        entry *e = NULL;
+        const char *column = NULL;
+        if (v->rule == KN_R_EXTERNAL_WITHOUT_PROVENANCE || v->rule == KN_R_UNUSED_SOURCE) {
+            e = kn_names_get(sources, v->subject);
+        } else if (v->rule == KN_R_JOIN_LATEST_VALUE || v->rule == KN_R_NO_POINT_IN_TIME_HISTORY ||
+                   v->rule == KN_R_READS_UNSETTLED_VALUES) {
+            const kn_column *c = kn_names_get(columns, v->subject);
+            const kn_source *src = !c                   ? NULL
+                                   : c->join.source.name ? KN_REF_SOURCE(c->join.source)
+                                                         : KN_REF_SOURCE(c->source);
+            e = src ? r->of_source[src->index] : NULL;
+            column = c ? c->name : NULL;
+        }
+        if (e) {
+            kn_vec_push(e->findings, &(against){si, v, column});
+        }
+    }
+}
+
 static void gather(reg *r)
 {
     for (size_t si = 0; si < r->n_schemas; si++) {
@@ -173,6 +225,7 @@ static void gather(reg *r)
                 derived_uses(r, si, c, seen, stack);
             }
         }
+        gather_findings(r, si);
     }
 }
 
@@ -391,6 +444,54 @@ static void md_use_cells(FILE *out, const reg *r, const use *u)
     fputs(" |\n", out);
 }
 
+/* The findings against a source and the waivers declared on it. */
+static void md_findings(FILE *out, const reg *r, const entry *e)
+{
+    const kn_source *src = e->src;
+    if (!e->findings->len) {
+        fputs("No finding of `knowable check` against this source.\n\n", out);
+    } else {
+        fprintf(out, "Findings of `knowable check` against this source (%zu):\n\n", e->findings->len);
+        fputs("| Dataset | Column | Rule | Severity | Finding | At |\n|---|---|---|---|---|---|\n", out);
+        for (size_t i = 0; i < e->findings->len; i++) {
+            const against *g = &KN_VEC_AT(e->findings, against, i);
+            fputs("| ", out);
+            md(out, dataset_of(r->schemas[g->schema]));
+            fputs(" | ", out);
+            md(out, g->column ? g->column : "(the source)");
+            fprintf(out, " | %s | %s", kn_rule_get(g->v->rule)->id, kn_severity_name(g->v->severity));
+            if (g->v->waived) {
+                fputs(", **waived**: ", out);
+                md(out, g->v->waiver_reason ? g->v->waiver_reason : "");
+            }
+            fputs(" | ", out);
+            md(out, g->v->message);
+            fputs(" | ", out);
+            md(out, g->v->pos.file ? g->v->pos.file : "");
+            fprintf(out, ":%u |\n", g->v->pos.line);
+        }
+        fputc('\n', out);
+    }
+    if (src->n_waivers) {
+        fputs("Waivers declared on this source:\n\n| Rule | Reason | Expires |\n|---|---|---|\n", out);
+        for (size_t i = 0; i < src->n_waivers; i++) {
+            const kn_waiver *w = &src->waivers[i];
+            fputs("| ", out);
+            md(out, w->rule_ref.name ? w->rule_ref.name : "");
+            fputs(" | ", out);
+            if (w->reason && *w->reason) {
+                md(out, w->reason);
+            } else {
+                fputs("**no reason given**", out);
+            }
+            fputs(" | ", out);
+            md(out, w->expires ? w->expires : "never");
+            fputs(" |\n", out);
+        }
+        fputc('\n', out);
+    }
+}
+
 static void md_source(FILE *out, reg *r, const entry *e)
 {
     const kn_source *src = e->src;
@@ -432,6 +533,7 @@ static void md_source(FILE *out, reg *r, const entry *e)
         fputs(" |\n", out);
     }
     fputc('\n', out);
+    md_findings(out, r, e);
     if (!e->uses->len) {
         fputs("No column of these schemas takes values from this source.\n\n", out);
         return;
@@ -634,6 +736,36 @@ static void js_source(FILE *out, reg *r, const entry *e)
     for (size_t i = 0; i < n_miss; i++) {
         fprintf(out, "%s\"%s\"", i ? ", " : "", miss[i]);
     }
+    fputs("],\n     \"findings\": [", out);
+    for (size_t i = 0; i < e->findings->len; i++) {
+        const against *g = &KN_VEC_AT(e->findings, against, i);
+        fputs(i ? ",\n       " : "\n       ", out);
+        fputs("{\"schema\": ", out);
+        kn_fput_json_str(out, r->schemas[g->schema]->path);
+        fputs(", \"column\": ", out);
+        js_str_or_null(out, g->column);
+        fprintf(out, ", \"rule\": \"%s\", \"severity\": \"%s\", \"message\": ", kn_rule_get(g->v->rule)->id,
+                kn_severity_name(g->v->severity));
+        kn_fput_json_str(out, g->v->message);
+        fputs(", \"file\": ", out);
+        js_str_or_null(out, g->v->pos.file);
+        fprintf(out, ", \"line\": %u, \"waived\": %s, \"waiver_reason\": ", g->v->pos.line,
+                g->v->waived ? "true" : "false");
+        js_str_or_null(out, g->v->waived ? g->v->waiver_reason : NULL);
+        fputs("}", out);
+    }
+    fputs(e->findings->len ? "\n     ],\n     \"waivers\": [" : "],\n     \"waivers\": [", out);
+    for (size_t i = 0; i < src->n_waivers; i++) {
+        const kn_waiver *w = &src->waivers[i];
+        fputs(i ? ", " : "", out);
+        fputs("{\"rule\": ", out);
+        js_str_or_null(out, w->rule_ref.name);
+        fputs(", \"reason\": ", out);
+        js_str_or_null(out, w->reason && *w->reason ? w->reason : NULL);
+        fputs(", \"expires\": ", out);
+        js_str_or_null(out, w->expires);
+        fputs("}", out);
+    }
     fputs("],\n     \"uses\": [", out);
     for (size_t i = 0; i < e->uses->len; i++) {
         fputs(i ? ",\n       " : "\n       ", out);
@@ -681,7 +813,7 @@ static void write_json(FILE *out, reg *r)
 /* ---- entry point ---- */
 
 void kn_sources_write(FILE *out, kn_arena *a, kn_schema *const *schemas, const kn_rulebook *const *rulebooks,
-                      size_t n, bool json)
+                      const kn_doc_findings *const *findings, size_t n, bool json)
 {
     /* One set of required fields for the register: those any schema's
      * rulebook requires, so the result does not depend on their order. */
@@ -703,6 +835,7 @@ void kn_sources_write(FILE *out, kn_arena *a, kn_schema *const *schemas, const k
         r.schemas[i] = schemas[i];
     }
     r.n_schemas = n;
+    r.found = findings;
     r.by_id = kn_names_new(a);
     r.entries = kn_vec_new(a, sizeof(entry *));
     gather(&r);

@@ -1,11 +1,14 @@
 /* timeline_svg.c - the picture of `knowable timeline SCHEMA --svg FILE`: a
  * horizontal time axis relative to the prediction moment on a signed
- * logarithmic scale, the moment as a vertical line, each event as a bar over
- * its range, then each column as a bar over its availability range, grouped
- * and coloured by verdict.  Every verdict also has its own fill pattern and
- * a word beside the row, so the picture reads without colour (the colours
- * are from the Okabe-Ito palette, safe for colour-blind readers).  Reads the
- * solved timeline; writes SVG 1.1 to the caller's FILE.
+ * logarithmic scale, the moment as a vertical line, the label horizon and
+ * the split's gap as bands on the axis, each event as a bar over its range,
+ * then each column as a bar over its availability range, in the groups the
+ * check's findings decide (findings.c), each row with the rules that fired on
+ * it.  Every group also has its own fill pattern and a word beside the row,
+ * so the picture reads without colour (the colours are from the Okabe-Ito
+ * palette, safe for colour-blind readers).  Names, sources and as_of events
+ * are written in full, wrapped onto more lines where they are long.  Reads
+ * the solved timeline and the findings; writes SVG 1.1 to the caller's FILE.
  *
  * The output is deterministic (no clock, no locale, fixed number format),
  * self-contained (no script, no external font or image) and printable
@@ -16,22 +19,27 @@
 #include "docs.h"
 #include "../util/text.h"
 
-/* Geometry, in pixels. */
-#define WIDTH 1040.0
+/* Geometry, in pixels: a column of names and details, the plot, a column of
+ * verdicts and rules. */
+#define WIDTH 1280.0
 #define MARGIN 16.0
 #define NAME_X MARGIN
-#define PLOT_X0 262.0
-#define PLOT_X1 822.0
-#define NOTE_X 842.0
-#define EVENT_ROW 24.0
-#define COLUMN_ROW 32.0
+#define LEFT_W 396.0
+#define PLOT_X0 432.0
+#define PLOT_X1 992.0
+#define NOTE_X 1018.0
+#define NOTE_W 246.0
 #define HEADING_ROW 30.0
+#define LINE 13.0     /* one line of 10px detail text */
+#define ROW_HEAD 22.0 /* a row's first line: name, bar, verdict */
+#define ROW_PAD 7.0
 #define MIN_TICK_GAP 40.0
-#define NAME_CHARS 30  /* code points of a name shown before it is cut */
-#define DETAIL_CHARS 38
+#define NAME_CHARS 56 /* code points of a name shown before it is cut */
 
-/* Average advance of an 11px character, for laying out the legend. */
-#define CHAR_W 6.4
+/* Average advance of a character, for laying out and wrapping (generous, so
+ * that a wrapped line never runs into the next column). */
+#define CHAR_W 6.4   /* 11px */
+#define CHAR_W10 6.1 /* 10px */
 
 #define FONT "DejaVu Sans, Verdana, Arial, sans-serif"
 
@@ -41,29 +49,37 @@
 #define C_MAYBE "#E69F00"     /* orange */
 #define C_LATE "#D55E00"      /* vermillion */
 #define C_UNORDERED "#56B4E9" /* sky blue */
+#define C_TARGET "#CC79A7"    /* reddish purple */
+#define C_NEUTRAL "#BDBDBD"   /* grey: not given to the model */
 #define C_MUTED "#595959"
 
-/* Column groups, in the order the picture shows them. */
-typedef enum group {
-    G_AVAILABLE,
-    G_MAYBE,
-    G_LATE,
-    G_UNORDERED,
-    G_NOT_PLACED,
-    G_COUNT
-} group;
-
-static const char *const group_heading[G_COUNT] = {
-    "Columns available at the moment",
-    "Columns late in some cases: part of the range is after the moment",
-    "Columns late in every case: after the moment",
-    "Columns not ordered relative to the moment: no bound",
-    "Columns not placed",
+/* The word beside each row and in the summary, by group (kn_row_class). */
+static const char *const group_word[KN_ROW_CLASS_COUNT] = {
+    [KN_ROW_LATE] = "late",
+    [KN_ROW_MAYBE] = "late in some cases",
+    [KN_ROW_FROM_TARGET] = "built from the target",
+    [KN_ROW_UNORDERED] = "unordered",
+    [KN_ROW_RULE_OFF] = "late, rule off",
+    [KN_ROW_AVAILABLE] = "available",
+    [KN_ROW_NOT_FEATURE] = "not a feature",
+    [KN_ROW_NO_TIMING] = "no timing",
+    [KN_ROW_NOT_PLACED] = "not placed",
 };
 
-static const char *const group_word[G_COUNT] = {
-    "available", "late in some cases", "late", "unordered", "not placed",
+/* The class of each group's <g>, for readers and tests. */
+static const char *const group_class[KN_ROW_CLASS_COUNT] = {
+    [KN_ROW_LATE] = "columns-late",
+    [KN_ROW_MAYBE] = "columns-maybe-late",
+    [KN_ROW_FROM_TARGET] = "columns-from-target",
+    [KN_ROW_UNORDERED] = "columns-unordered",
+    [KN_ROW_RULE_OFF] = "columns-rule-off",
+    [KN_ROW_AVAILABLE] = "columns-available",
+    [KN_ROW_NOT_FEATURE] = "columns-not-feature",
+    [KN_ROW_NO_TIMING] = "columns-no-timing",
+    [KN_ROW_NOT_PLACED] = "columns-not-placed",
 };
+
+typedef kn_row_class group;
 
 /* Tick marks: magnitude, label, priority (lower = kept first when crowded). */
 typedef struct tick {
@@ -94,7 +110,7 @@ typedef struct svg {
     kn_arena *a;
     int64_t left, right; /* the axis runs from -left to +right */
     double s_left, s_right;
-    double y;            /* top of the next row */
+    double y; /* top of the next row */
 } svg;
 
 /* ---- text --------------------------------------------------------------- */
@@ -262,22 +278,39 @@ static void defs(FILE *f)
             "<rect width=\"5\" height=\"5\" fill=\"#ffffff\"/>"
             "<circle cx=\"2.5\" cy=\"2.5\" r=\"1.4\" fill=\"%s\"/></pattern>\n",
             C_UNORDERED);
+    /* Built from the target: upright stripes. */
+    fprintf(f,
+            "<pattern id=\"fill-target\" width=\"5\" height=\"5\" patternUnits=\"userSpaceOnUse\">"
+            "<rect width=\"5\" height=\"5\" fill=\"%s\"/>"
+            "<rect width=\"1.6\" height=\"5\" fill=\"#ffffff\"/></pattern>\n",
+            C_TARGET);
+    /* The label horizon on the axis: horizontal stripes. */
+    fprintf(f,
+            "<pattern id=\"fill-horizon\" width=\"6\" height=\"4\" patternUnits=\"userSpaceOnUse\">"
+            "<rect width=\"6\" height=\"4\" fill=\"%s\"/>"
+            "<rect width=\"6\" height=\"1.5\" fill=\"#ffffff\"/></pattern>\n",
+            C_TARGET);
     fputs("</defs>\n", f);
 }
 
 static const char *group_fill(group gr)
 {
     switch (gr) {
-    case G_AVAILABLE:
+    case KN_ROW_AVAILABLE:
         return C_AVAILABLE;
-    case G_MAYBE:
+    case KN_ROW_MAYBE:
         return "url(#fill-maybe)";
-    case G_LATE:
+    case KN_ROW_LATE:
         return "url(#fill-late)";
-    case G_UNORDERED:
+    case KN_ROW_UNORDERED:
         return "url(#fill-unordered)";
-    case G_NOT_PLACED:
-    case G_COUNT:
+    case KN_ROW_FROM_TARGET:
+        return "url(#fill-target)";
+    case KN_ROW_RULE_OFF:
+        return "#ffffff";
+    case KN_ROW_NOT_FEATURE:
+        return C_NEUTRAL;
+    default:
         break;
     }
     return "none";
@@ -286,36 +319,50 @@ static const char *group_fill(group gr)
 static const char *group_stroke(group gr)
 {
     switch (gr) {
-    case G_AVAILABLE:
+    case KN_ROW_AVAILABLE:
         return "#00654e";
-    case G_MAYBE:
+    case KN_ROW_MAYBE:
         return "#9a6a00";
-    case G_LATE:
+    case KN_ROW_LATE:
+    case KN_ROW_RULE_OFF:
         return "#8f3f00";
-    case G_UNORDERED:
+    case KN_ROW_UNORDERED:
         return "#1f6f9c";
-    case G_NOT_PLACED:
-    case G_COUNT:
+    case KN_ROW_FROM_TARGET:
+        return "#8a3f6c";
+    case KN_ROW_NOT_FEATURE:
+        return "#707070";
+    default:
         break;
     }
     return C_MUTED;
+}
+
+static const char *group_dash(group gr)
+{
+    return gr == KN_ROW_UNORDERED ? "3 2" : gr == KN_ROW_RULE_OFF ? "4 2" : NULL;
+}
+
+static bool group_has_bar(group gr)
+{
+    return gr != KN_ROW_NO_TIMING && gr != KN_ROW_NOT_PLACED;
 }
 
 /* An arrowhead at x pointing left (dir -1) or right (dir 1), centred on cy. */
 static void arrow(FILE *f, double x, double cy, double h, int dir, const char *colour)
 {
     double tip = x + dir * (h * 0.9 + 2);
-    fprintf(f, "<path d=\"M%.1f %.1fL%.1f %.1fL%.1f %.1fZ\" fill=\"%s\"/>\n", x, cy - h / 2 - 2,
-            tip, cy, x, cy + h / 2 + 2, colour);
+    fprintf(f, "<path d=\"M%.1f %.1fL%.1f %.1fL%.1f %.1fZ\" fill=\"%s\"/>\n", x, cy - h / 2 - 2, tip, cy, x,
+            cy + h / 2 + 2, colour);
 }
 
 /* A bar over r on the row centred at cy; unbounded or clipped ends get an
  * arrowhead at the edge of the plot; a point gets a diamond. */
-static void bar(const svg *g, kn_interval r, double cy, double h, const char *fill,
-                const char *stroke, const char *dash)
+static void bar(const svg *g, kn_interval r, double cy, double h, const char *fill, const char *stroke,
+                const char *dash)
 {
     FILE *f = g->out;
-    bool open_lo = r.lo < -g->left, open_hi = r.hi > g->right;
+    bool open_lo = r.lo<-g->left, open_hi = r.hi> g->right;
     double x1 = x_of(g, r.lo), x2 = x_of(g, r.hi);
     if (!open_lo && !open_hi && x2 - x1 < 3.0) {
         double cx = (x1 + x2) / 2, d = h / 2 + 2;
@@ -328,8 +375,8 @@ static void bar(const svg *g, kn_interval r, double cy, double h, const char *fi
     fprintf(f,
             "<rect x=\"%.1f\" y=\"%.1f\" width=\"%.1f\" height=\"%.1f\" fill=\"%s\" stroke=\"%s\" "
             "stroke-width=\"1\"%s%s%s/>\n",
-            x1, cy - h / 2, x2 - x1, h, fill, stroke, dash ? " stroke-dasharray=\"" : "",
-            dash ? dash : "", dash ? "\"" : "");
+            x1, cy - h / 2, x2 - x1, h, fill, stroke, dash ? " stroke-dasharray=\"" : "", dash ? dash : "",
+            dash ? "\"" : "");
     if (open_lo) {
         arrow(f, x1, cy, h, -1, stroke);
     }
@@ -396,11 +443,76 @@ static void axis(svg *g, double y_label, double y_top, double y_bottom)
     fputs("</g>\n", f);
 }
 
+/* ---- wrapped lines ------------------------------------------------------ */
+
+/* Lines of detail text, each with a tag: -1 plain, k >= 0 the k-th finding of
+ * the row (its first line), -2 a finding's continuation. */
+typedef struct lines {
+    const char **text;
+    int *tag;
+    size_t n, cap;
+} lines;
+
+static void lines_add(kn_arena *a, lines *l, const char *s, int tag)
+{
+    if (l->n == l->cap) {
+        size_t cap = l->cap ? l->cap * 2 : 8;
+        const char **t = kn_alloc_array(a, cap, sizeof *t);
+        int *g = kn_alloc_array(a, cap, sizeof *g);
+        if (l->n) {
+            memcpy(t, l->text, l->n * sizeof *t);
+            memcpy(g, l->tag, l->n * sizeof *g);
+        }
+        l->text = t;
+        l->tag = g;
+        l->cap = cap;
+    }
+    l->text[l->n] = s;
+    l->tag[l->n++] = tag;
+}
+
+/* Appends s wrapped at max code points a line: at the last space that fits,
+ * or after max code points inside a longer word.  Nothing is cut off. */
+static void wrap(kn_arena *a, lines *l, const char *s, size_t max, int tag)
+{
+    size_t len = strlen(s), i = 0;
+    bool first = true;
+    while (i < len) {
+        while (i < len && s[i] == ' ') {
+            i++;
+        }
+        if (i >= len) {
+            break;
+        }
+        size_t j = i, n = 0, space = 0;
+        while (j < len && n < max) {
+            if (s[j] == ' ') {
+                space = j;
+            }
+            size_t k = kn_utf8_valid_seq((const unsigned char *)s + j, len - j);
+            j += k ? k : 1;
+            n++;
+        }
+        size_t end = j >= len || s[j] == ' ' ? j : space > i ? space : j;
+        lines_add(a, l, kn_strndup(a, s + i, end - i), first ? tag : (tag >= 0 ? -2 : tag));
+        first = false;
+        i = end;
+    }
+}
+
+#define LEFT_CHARS ((size_t)(LEFT_W / CHAR_W10))
+#define NOTE_CHARS ((size_t)(NOTE_W / CHAR_W10))
+
+static double lines_h(size_t n)
+{
+    return n ? LINE * (double)n : 0;
+}
+
 /* ---- rows --------------------------------------------------------------- */
 
 /* A group's heading; fill/stroke, when given, draw its swatch first. */
 static void heading(svg *g, const char *words, size_t n, const char *fill, const char *stroke,
-                    bool dashed)
+                    const char *dash)
 {
     FILE *f = g->out;
     double base = g->y + HEADING_ROW - 9;
@@ -408,11 +520,12 @@ static void heading(svg *g, const char *words, size_t n, const char *fill, const
     if (fill) {
         fprintf(f,
                 "<rect x=\"%.1f\" y=\"%.1f\" width=\"22\" height=\"12\" fill=\"%s\" stroke=\"%s\" "
-                "stroke-width=\"1\"%s/>\n",
-                x, base - 10, fill, stroke, dashed ? " stroke-dasharray=\"3 2\"" : "");
+                "stroke-width=\"1\"%s%s%s/>\n",
+                x, base - 10, fill, stroke, dash ? " stroke-dasharray=\"" : "", dash ? dash : "",
+                dash ? "\"" : "");
         x += 30;
     }
-    const char *s = kn_printf(g->a, "%s (%zu)", words, n);
+    const char *s = n ? kn_printf(g->a, "%s (%zu)", words, n) : words;
     text(f, x, base, 13, "font-weight=\"bold\" fill=\"#1a1a1a\"", s);
     fprintf(f,
             "<line x1=\"%.1f\" y1=\"%.1f\" x2=\"%.1f\" y2=\"%.1f\" stroke=\"#808080\" "
@@ -421,216 +534,462 @@ static void heading(svg *g, const char *words, size_t n, const char *fill, const
     g->y += HEADING_ROW;
 }
 
-static void event_row(svg *g, const kn_event *e, const kn_event *m, kn_interval r)
+/* Detail lines under a row's first line, from x. */
+static void detail(svg *g, double x, double y, const lines *l, const char *attrs)
+{
+    for (size_t i = 0; i < l->n; i++) {
+        text(g->out, x, y + ROW_HEAD + 8 + LINE * (double)i, 10, attrs, l->text[i]);
+    }
+}
+
+/* An event's range in words, and for a first_of event its members. */
+static void event_lines(svg *g, const kn_timeline *t, const kn_event *e, lines *right)
+{
+    if (!e->first_of_node) {
+        return;
+    }
+    const kn_event *lo_by = kn_timeline_first_of_member(t, e, false);
+    const kn_event *hi_by = kn_timeline_first_of_member(t, e, true);
+    const char *names = "";
+    for (size_t k = 0; k < e->n_first_of; k++) {
+        names = kn_printf(g->a, "%s%s%s", names, k ? " | " : "", e->first_of[k].name);
+    }
+    wrap(g->a, right, kn_printf(g->a, "first of %s", names), NOTE_CHARS, -1);
+    if (lo_by && hi_by) {
+        wrap(g->a, right, kn_printf(g->a, "earliest from %s, latest from %s", lo_by->name, hi_by->name),
+             NOTE_CHARS, -1);
+    }
+}
+
+static double event_height(svg *g, const kn_timeline *t, const kn_event *e, bool placed)
+{
+    lines right = {0};
+    if (placed) {
+        event_lines(g, t, e, &right);
+    } else {
+        wrap(g->a, &right, "a schema error or a contradiction", NOTE_CHARS, -1);
+    }
+    return right.n ? ROW_HEAD + lines_h(right.n) + ROW_PAD : 24.0;
+}
+
+/* An event's row; placed false: it has no range (set aside). */
+static void event_row(svg *g, const kn_timeline *t, const kn_event *e, const kn_event *m, kn_interval r,
+                      bool placed)
 {
     FILE *f = g->out;
-    double cy = g->y + EVENT_ROW / 2;
-    bool none = r.lo <= -KN_TIME_INF && r.hi >= KN_TIME_INF;
-    const char *words = e == m ? "the moment" : none ? "not ordered" : range_words(g->a, r);
-    if (e->first_of_node) {
-        /* the earliest of several routes: its members in the tooltip */
-        const char *names = "";
-        for (size_t k = 0; k < e->n_first_of; k++) {
-            names = kn_printf(g->a, "%s%s%s", names, k ? " | " : "", e->first_of[k].name);
-        }
-        words = kn_printf(g->a, "%s; first of %s", words, names);
+    double cy = g->y + 12;
+    bool none = !placed || (r.lo <= -KN_TIME_INF && r.hi >= KN_TIME_INF);
+    const char *words = !placed  ? "set aside"
+                        : e == m ? "the moment"
+                        : none   ? "not ordered"
+                                 : range_words(g->a, r);
+    lines right = {0};
+    if (placed) {
+        event_lines(g, t, e, &right);
+    } else {
+        wrap(g->a, &right, "a schema error or a contradiction", NOTE_CHARS, -1);
+    }
+    const char *tip = kn_printf(g->a, "event %s: %s", e->name, words);
+    for (size_t i = 0; i < right.n; i++) {
+        tip = kn_printf(g->a, "%s%s%s", tip, i ? " " : "; ", right.text[i]);
     }
     fputs("<g class=\"event\"><title>", f);
-    put_str(f, kn_printf(g->a, "event %s: %s", e->name, words));
+    put_str(f, tip);
     fputs("</title>\n", f);
     text(f, NAME_X, cy + 4, 12, NULL, cut(g->a, e->name, NAME_CHARS));
     if (none) {
         fprintf(f,
                 "<line x1=\"%.1f\" y1=\"%.1f\" x2=\"%.1f\" y2=\"%.1f\" stroke=\"%s\" "
-                "stroke-width=\"2\" stroke-dasharray=\"2 4\"/>\n",
-                PLOT_X0, cy, PLOT_X1, cy, C_EVENT);
+                "stroke-width=\"%s\" stroke-dasharray=\"%s\"/>\n",
+                PLOT_X0, cy, PLOT_X1, cy, placed ? C_EVENT : "#bfbfbf", placed ? "2" : "1",
+                placed ? "2 4" : "1 3");
     } else {
         bar(g, r, cy, 8, C_EVENT, "#004a75", NULL);
     }
     text(f, NOTE_X, cy + 4, 11, e == m ? "font-weight=\"bold\"" : "fill=\"#333333\"", words);
+    detail(g, NOTE_X, g->y, &right, "fill=\"" C_MUTED "\"");
     fputs("</g>\n", f);
-    g->y += EVENT_ROW;
+    g->y += right.n ? ROW_HEAD + lines_h(right.n) + ROW_PAD : 24.0;
 }
 
-static group group_of(const kn_column_timing *T)
+/* The words under a column's verdict: its range, or why it has none. */
+static const char *column_range(svg *g, const kn_timeline *t, const kn_column *c, group gr)
 {
-    if (!T || !T->ordered || !T->computed) {
-        return G_NOT_PLACED;
+    const kn_column_timing *T = kn_timeline_column_timing(t, c);
+    if (gr == KN_ROW_NOT_PLACED) {
+        return kn_column_not_placed_words(g->a, t, c);
     }
-    switch (T->verdict) {
-    case KN_VERDICT_AVAILABLE:
-        return G_AVAILABLE;
-    case KN_VERDICT_MAYBE_LATE:
-        return G_MAYBE;
-    case KN_VERDICT_LATE:
-        return G_LATE;
-    case KN_VERDICT_UNORDERED:
-        return G_UNORDERED;
-    case KN_VERDICT_UNKNOWN:
-        break;
+    if (gr == KN_ROW_NO_TIMING) {
+        return c->join.present && c->join.as_of.name
+                   ? "the as_of join says when the join reads, not when the value exists"
+                   : "nothing says when its value exists";
     }
-    return G_NOT_PLACED;
+    return range_words(g->a, T->range);
 }
 
-/* Where the column's timing comes from, as on the text report's last column. */
-static const char *basis(kn_arena *a, const kn_column *c, const kn_column_timing *T)
+/* The lines of a column row: its timing on the left, its range and the
+ * findings about it on the right. */
+static void column_lines(svg *g, const kn_timeline *t, const kn_column *c, const kn_doc_row *row, lines *left,
+                         lines *right)
 {
-    const char *s = kn_role_name(c->role);
-    if (!T) {
-        return s;
+    const char *b = kn_column_timing_words(g->a, c);
+    wrap(g->a, left, kn_printf(g->a, "%s%s%s", kn_role_name(c->role), *b ? ", " : "", b), LEFT_CHARS, -1);
+    wrap(g->a, right, column_range(g, t, c, row->cls), NOTE_CHARS, -1);
+    for (size_t i = 0; i < row->n_findings; i++) {
+        wrap(g->a, right, kn_row_finding_words(g->a, &row->findings[i]), NOTE_CHARS, (int)i);
     }
-    if (T->has[KN_PART_KNOWN] && c->n_one_of) {
-        s = kn_printf(a, "%s, known at one of", s);
-        for (size_t i = 0; i < c->n_one_of; i++) {
-            s = kn_printf(a, "%s%s%s", s, i ? " | " : " ", c->one_of[i].name);
-        }
-    } else if (T->has[KN_PART_KNOWN]) {
-        s = kn_printf(a, "%s, known at %s", s, c->known.name);
-    }
-    if (T->has[KN_PART_WINDOW]) {
-        s = kn_printf(a, "%s, window on %s", s, c->window.anchor.name);
-    }
-    if (T->has[KN_PART_INPUTS]) {
-        s = kn_printf(a, "%s, derived from %zu column%s", s, c->n_derived, c->n_derived == 1 ? "" : "s");
-    }
-    if (T->has[KN_PART_AS_OF]) {
-        s = kn_printf(a, "%s, as of %s", s, c->join.as_of.name);
-        if (c->join.has_offset) {
-            char b[48];
-            int64_t v = c->join.offset.lo < 0 ? c->join.offset.lo : c->join.offset.hi;
-            s = kn_printf(a, "%s %s%s", s, v > 0 ? "+" : "", kn_duration_format(v, b, sizeof b));
-        }
-    }
-    const kn_source *src = c->join.present && KN_REF_SOURCE(c->join.source) ? KN_REF_SOURCE(c->join.source)
-                                                                           : KN_REF_SOURCE(c->source);
-    if (src && src->matures.present && src->matures.hi > 0) {
-        char b[48];
-        s = kn_printf(a, "%s, settles up to %s later", s, kn_duration_format(src->matures.hi, b, sizeof b));
+}
+
+static double column_height(svg *g, const kn_timeline *t, const kn_column *c, const kn_doc_row *row)
+{
+    lines left = {0}, right = {0};
+    column_lines(g, t, c, row, &left, &right);
+    return ROW_HEAD + lines_h(left.n > right.n ? left.n : right.n) + ROW_PAD;
+}
+
+/* One finding as the hover text says it. */
+static const char *finding_tip(kn_arena *a, const kn_row_finding *fd)
+{
+    const char *s =
+        kn_printf(a, "%s (%s): %s", kn_rule_get(fd->rule)->id, kn_severity_name(fd->severity), fd->message);
+    if (fd->waived) {
+        s = kn_printf(a, "%s. Waived: %s", s, fd->reason ? fd->reason : "");
     }
     return s;
 }
 
-/* Why a column could not be placed. */
-static const char *not_placed(const kn_timeline *t, const kn_column *c, const kn_column_timing *T)
-{
-    if (!T) {
-        return "not placed";
-    }
-    if (!T->ordered) {
-        return "on or behind a derivation cycle";
-    }
-    if (T->has[KN_PART_INPUTS]) {
-        for (size_t i = 0; i < c->n_derived; i++) {
-            const kn_column *in = KN_REF_COLUMN(c->derived_from[i]);
-            const kn_column_timing *TI = in ? kn_timeline_column_timing(t, in) : NULL;
-            if (!TI || !TI->computed) {
-                return kn_printf(kn_timeline_arena(t), "its input %s is not placed",
-                                 cut(kn_timeline_arena(t), c->derived_from[i].name, 24));
-            }
-        }
-    }
-    for (int p = 0; p < KN_PART_COUNT; p++) {
-        if (T->has[p]) {
-            return "a reference or duration is in error";
-        }
-    }
-    return "no timing declared";
-}
-
-static void column_row(svg *g, const kn_timeline *t, const kn_column *c, group gr)
+static void column_row(svg *g, const kn_timeline *t, const kn_column *c, const kn_doc_row *row)
 {
     FILE *f = g->out;
+    group gr = row->cls;
     const kn_column_timing *T = kn_timeline_column_timing(t, c);
-    double cy = g->y + COLUMN_ROW / 2;
-    const char *range = gr == G_NOT_PLACED ? not_placed(t, c, T) : range_words(g->a, T->range);
-    const char *tip = kn_printf(g->a, "column %s: %s, %s", c->name, group_word[gr], range);
+    double cy = g->y + 11;
+    lines left = {0}, right = {0};
+    column_lines(g, t, c, row, &left, &right);
+    const char *word = group_word[gr];
+    if (gr == KN_ROW_NOT_FEATURE) {
+        word = c->role == KN_ROLE_FEATURE || c->role == KN_ROLE_TARGET ? "the target" : kn_role_name(c->role);
+    }
+    const char *tip =
+        kn_printf(g->a, "column %s: %s, %s", c->name, group_word[gr], column_range(g, t, c, gr));
+    for (size_t i = 0; i < row->n_findings; i++) {
+        tip = kn_printf(g->a, "%s; %s", tip, finding_tip(g->a, &row->findings[i]));
+    }
     fputs("<g class=\"column\"><title>", f);
     put_str(f, tip);
     fputs("</title>\n", f);
-    text(f, NAME_X, cy - 1, 12, NULL, cut(g->a, c->name, NAME_CHARS));
-    text(f, NAME_X, cy + 11, 10, "fill=\"" C_MUTED "\"", cut(g->a, basis(g->a, c, T), DETAIL_CHARS));
-    if (gr == G_NOT_PLACED) {
+    text(f, NAME_X, cy + 4, 12, NULL, cut(g->a, c->name, NAME_CHARS));
+    detail(g, NAME_X + 10, g->y, &left, "fill=\"" C_MUTED "\"");
+    if (!group_has_bar(gr)) {
         fprintf(f,
                 "<line x1=\"%.1f\" y1=\"%.1f\" x2=\"%.1f\" y2=\"%.1f\" stroke=\"#bfbfbf\" "
                 "stroke-width=\"1\" stroke-dasharray=\"1 3\"/>\n",
                 PLOT_X0, cy, PLOT_X1, cy);
     } else {
-        bar(g, T->range, cy, 14, group_fill(gr), group_stroke(gr), gr == G_UNORDERED ? "3 2" : NULL);
+        bar(g, T->range, cy, 14, group_fill(gr), group_stroke(gr), group_dash(gr));
     }
-    /* The target is meant to be late: say so, so that the row does not
-     * read as a finding. */
-    const char *word = group_word[gr];
-    if (c->role == KN_ROLE_TARGET && gr != G_NOT_PLACED) {
-        word = kn_printf(g->a, "%s (the target)", word);
-    } else if (c->role == KN_ROLE_EXCLUDED && gr != G_NOT_PLACED) {
-        word = kn_printf(g->a, "%s (excluded)", word);
+    text(f, NOTE_X, cy + 4, 12, "font-weight=\"bold\"", word);
+    /* the range, then one group per finding, with its own hover text */
+    size_t k = 0;
+    while (k < right.n) {
+        double y = g->y + ROW_HEAD + 8 + LINE * (double)k;
+        int tag = right.tag[k];
+        if (tag < 0) {
+            text(f, NOTE_X, y, 10, "fill=\"" C_MUTED "\"", right.text[k++]);
+            continue;
+        }
+        const kn_row_finding *fd = &row->findings[tag];
+        fputs("<g class=\"finding\"><title>", f);
+        put_str(f, finding_tip(g->a, fd));
+        fputs("</title>\n", f);
+        const char *style = fd->waived ? "class=\"rule\" fill=\"" C_MUTED "\" font-style=\"italic\""
+                                       : "class=\"rule\" fill=\"#1a1a1a\" font-weight=\"bold\"";
+        text(f, NOTE_X, y, 10, style, right.text[k++]);
+        while (k < right.n && right.tag[k] == -2) {
+            y = g->y + ROW_HEAD + 8 + LINE * (double)k;
+            text(f, NOTE_X, y, 10,
+                 fd->waived ? "fill=\"" C_MUTED "\" font-style=\"italic\"" : "fill=\"#1a1a1a\"",
+                 right.text[k++]);
+        }
+        fputs("</g>\n", f);
     }
-    text(f, NOTE_X, cy - 1, 12, "font-weight=\"bold\"", word);
-    text(f, NOTE_X, cy + 11, 10, "fill=\"" C_MUTED "\"", cut(g->a, range, DETAIL_CHARS));
     fputs("</g>\n", f);
-    g->y += COLUMN_ROW;
+    g->y += ROW_HEAD + lines_h(left.n > right.n ? left.n : right.n) + ROW_PAD;
+}
+
+/* ---- the label horizon against the split's gap -------------------------- */
+
+/* The label horizon as the split check reads it (SPEC §3.2): label_known,
+ * else the target's known event (the latest member of a known.one_of). */
+static bool label_horizon(const kn_schema *s, const kn_timeline *t, kn_interval *h, const char **words,
+                          kn_arena *a)
+{
+    const kn_prediction *p = &s->prediction;
+    const kn_event *e = KN_REF_EVENT(p->label_known);
+    if (e) {
+        *words = kn_printf(a, "labels settle at %s (label_known)", e->name);
+        return kn_timeline_event_range(t, e, h);
+    }
+    const kn_column *target = KN_REF_COLUMN(p->target);
+    if (!target || target->broken) {
+        return false;
+    }
+    if (target->n_one_of) {
+        const kn_column_timing *T = kn_timeline_column_timing(t, target);
+        if (!T || !T->computed || !T->has[KN_PART_KNOWN] || !T->known_hi_by) {
+            return false;
+        }
+        *h = T->event[KN_PART_KNOWN];
+        *words = kn_printf(a, "labels settle at one of the target's events, at the latest at %s",
+                           T->known_hi_by->name);
+        return true;
+    }
+    e = KN_REF_EVENT(target->known);
+    if (!e) {
+        return false;
+    }
+    *words = kn_printf(a, "labels settle at %s, where the target %s becomes known", e->name, target->name);
+    return kn_timeline_event_range(t, e, h);
+}
+
+typedef struct bands {
+    bool horizon, split;
+    kn_interval h;
+    lines h_left, s_left, s_right;
+    const kn_view *short_gap; /* split-gap-short, when the check found it */
+    int64_t gap_us;
+    double height;
+} bands;
+
+static bool time_split(const kn_split *sp)
+{
+    return sp->method == KN_SPLIT_TIME || sp->method == KN_SPLIT_GROUP_TIME;
+}
+
+static void plan_bands(svg *g, const kn_schema *s, const kn_timeline *t, const kn_doc_findings *f, bands *b)
+{
+    const char *hw = "";
+    b->horizon = label_horizon(s, t, &b->h, &hw, g->a) && b->h.hi > 0;
+    if (b->horizon) {
+        wrap(g->a, &b->h_left, kn_printf(g->a, "label horizon: %s, %s", hw, range_words(g->a, b->h)),
+             LEFT_CHARS, -1);
+    }
+    const kn_split *sp = &s->split;
+    b->split = sp->present;
+    if (!b->split) {
+        return;
+    }
+    char b1[48], b2[48];
+    const char *gap = sp->has_gap
+                          ? kn_printf(g->a, "a gap of %s", kn_duration_format(sp->gap.lo, b1, sizeof b1))
+                          : "no gap";
+    const char *more = "";
+    if (sp->purge) {
+        more = ", purge";
+    }
+    if (sp->has_embargo) {
+        more = kn_printf(g->a, "%s, embargo %s", more, kn_duration_format(sp->embargo.hi, b2, sizeof b2));
+    }
+    wrap(g->a, &b->s_left,
+         kn_printf(g->a, "split gap: %s split with %s%s", kn_split_method_name(sp->method), gap, more),
+         LEFT_CHARS, -1);
+    for (size_t i = 0; i < f->n_all; i++) {
+        if (f->all[i].rule == KN_R_SPLIT_GAP_SHORT) {
+            b->short_gap = &f->all[i];
+        }
+    }
+    const char *verdict;
+    if (b->short_gap) {
+        verdict = kn_printf(g->a, "split-gap-short (%s%s)", kn_severity_name(b->short_gap->severity),
+                            b->short_gap->waived ? ", waived" : "");
+    } else if (!time_split(sp)) {
+        verdict = "not a time split: the gap is not judged";
+    } else if (sp->purge) {
+        verdict = "overlapping training rows purged";
+    } else if (b->horizon) {
+        verdict = "the gap covers the label horizon";
+    } else {
+        verdict = "no label horizon to compare with";
+    }
+    wrap(g->a, &b->s_right, verdict, NOTE_CHARS, -1);
+}
+
+static double band_row_h(size_t left, size_t right)
+{
+    size_t n = left > right ? left : right;
+    return 8 + LINE * (double)(n ? n : 1) + 6;
+}
+
+static double bands_height(const bands *b)
+{
+    double h = 0;
+    if (b->horizon) {
+        h += band_row_h(b->h_left.n, 1);
+    }
+    if (b->split) {
+        h += band_row_h(b->s_left.n, b->s_right.n);
+    }
+    return h ? HEADING_ROW + h : 0;
+}
+
+static void draw_bands(svg *g, const bands *b)
+{
+    FILE *f = g->out;
+    if (!b->horizon && !b->split) {
+        return;
+    }
+    heading(g, "Label horizon against the split's gap, on the axis", 0, NULL, NULL, NULL);
+    fputs("<g class=\"bands\">\n", f);
+    double x0 = x_of(g, 0);
+    if (b->horizon) {
+        double y = g->y, cy = y + 10;
+        fputs("<g class=\"horizon\"><title>", f);
+        put_str(f, kn_printf(g->a, "the label horizon: %s", range_words(g->a, b->h)));
+        fputs("</title>\n", f);
+        for (size_t i = 0; i < b->h_left.n; i++) {
+            text(f, NAME_X, y + 14 + LINE * (double)i, 10, "fill=\"#1a1a1a\"", b->h_left.text[i]);
+        }
+        kn_interval band = {0, b->h.hi};
+        bar(g, band, cy, 10, "url(#fill-horizon)", "#8a3f6c", NULL);
+        text(f, NOTE_X, y + 14, 10, "fill=\"#1a1a1a\"", "labels settle within this band");
+        fputs("</g>\n", f);
+        g->y += band_row_h(b->h_left.n, 1);
+    }
+    if (b->split) {
+        double y = g->y, cy = y + 10;
+        fputs("<g class=\"split-gap\"><title>", f);
+        put_str(f, b->short_gap ? kn_printf(g->a, "split-gap-short: %s%s%s", b->short_gap->message,
+                                            b->short_gap->waived ? ". Waived: " : "",
+                                            b->short_gap->waived && b->short_gap->waiver_reason
+                                                ? b->short_gap->waiver_reason
+                                                : "")
+                                : "the split's gap");
+        fputs("</title>\n", f);
+        for (size_t i = 0; i < b->s_left.n; i++) {
+            text(f, NAME_X, y + 14 + LINE * (double)i, 10, "fill=\"#1a1a1a\"", b->s_left.text[i]);
+        }
+        for (size_t i = 0; i < b->s_right.n; i++) {
+            text(f, NOTE_X, y + 14 + LINE * (double)i, 10,
+                 b->short_gap ? "class=\"rule\" font-weight=\"bold\" fill=\"#1a1a1a\"" : "fill=\"#1a1a1a\"",
+                 b->s_right.text[i]);
+        }
+        if (b->gap_us > 0) {
+            bar(g, (kn_interval){0, b->gap_us}, cy, 10, "#333333", "#000000", NULL);
+        } else {
+            fprintf(f,
+                    "<path d=\"M%.1f %.1fL%.1f %.1fL%.1f %.1fL%.1f %.1fZ\" fill=\"#ffffff\" "
+                    "stroke=\"#000000\"/>\n",
+                    x0, cy - 6, x0 + 6, cy, x0, cy + 6, x0 - 6, cy);
+        }
+        fputs("</g>\n", f);
+        g->y += band_row_h(b->s_left.n, b->s_right.n);
+    }
+    fputs("</g>\n", f);
 }
 
 /* ---- legend ------------------------------------------------------------- */
 
-static void legend(svg *g, double y)
+typedef struct legend_item {
+    const char *fill, *stroke, *dash, *words;
+    double h;
+} legend_item;
+
+/* Lays the legend out from y (draw: write it); returns the y below it. */
+static double legend(svg *g, double y, const size_t *n_group, bool draw)
 {
     FILE *f = g->out;
-    typedef struct item {
-        const char *fill, *stroke, *words;
-    } item;
-    const item items[] = {
-        {C_EVENT, "#004a75", "event: when it can happen"},
-        {group_fill(G_AVAILABLE), group_stroke(G_AVAILABLE), "available at the moment"},
-        {group_fill(G_MAYBE), group_stroke(G_MAYBE), "late in some cases"},
-        {group_fill(G_LATE), group_stroke(G_LATE), "late in every case"},
-        {group_fill(G_UNORDERED), group_stroke(G_UNORDERED), "not ordered (no bound)"},
-    };
-    fputs("<g class=\"legend\">\n", f);
+    legend_item items[KN_ROW_CLASS_COUNT + 1];
+    size_t n = 0;
+    items[n++] = (legend_item){C_EVENT, "#004a75", NULL, "event: when it can happen", 8};
+    static const group shown[] = {KN_ROW_AVAILABLE, KN_ROW_MAYBE,    KN_ROW_LATE,       KN_ROW_FROM_TARGET,
+                                  KN_ROW_UNORDERED, KN_ROW_RULE_OFF, KN_ROW_NOT_FEATURE};
+    static const char *const words[] = {
+        "feature available at the moment", "late in some cases",     "late in every case",
+        "built from the target",           "not ordered (no bound)", "late, its rule off in the rulebook",
+        "not a feature: never late"};
+    for (size_t i = 0; i < sizeof shown / sizeof shown[0]; i++) {
+        /* the three main verdicts always; the others when they occur */
+        if (i < 3 || n_group[shown[i]]) {
+            items[n++] = (legend_item){group_fill(shown[i]), group_stroke(shown[i]), group_dash(shown[i]),
+                                       words[i], 12};
+        }
+    }
+    if (draw) {
+        fputs("<g class=\"legend\">\n", f);
+    }
     double x = NAME_X;
-    for (size_t i = 0; i < sizeof items / sizeof items[0]; i++) {
-        double h = i == 0 ? 8 : 12;
-        fprintf(f,
-                "<rect x=\"%.1f\" y=\"%.1f\" width=\"26\" height=\"%.1f\" fill=\"%s\" stroke=\"%s\" "
-                "stroke-width=\"1\"%s/>\n",
-                x, y - 9 + (12 - h) / 2, h, items[i].fill, items[i].stroke,
-                i == 4 ? " stroke-dasharray=\"3 2\"" : "");
-        text(f, x + 32, y + 1, 11, NULL, items[i].words);
-        x += 32 + CHAR_W * (double)strlen(items[i].words) + 24;
+    for (size_t i = 0; i < n; i++) {
+        double w = 32 + CHAR_W * (double)strlen(items[i].words) + 24;
+        if (x > NAME_X && x + w > WIDTH - MARGIN) {
+            x = NAME_X;
+            y += 20;
+        }
+        if (draw) {
+            fprintf(f,
+                    "<rect x=\"%.1f\" y=\"%.1f\" width=\"26\" height=\"%.1f\" fill=\"%s\" stroke=\"%s\" "
+                    "stroke-width=\"1\"%s%s%s/>\n",
+                    x, y - 9 + (12 - items[i].h) / 2, items[i].h, items[i].fill, items[i].stroke,
+                    items[i].dash ? " stroke-dasharray=\"" : "", items[i].dash ? items[i].dash : "",
+                    items[i].dash ? "\"" : "");
+            text(f, x + 32, y + 1, 11, NULL, items[i].words);
+        }
+        x += w;
     }
     y += 20;
     x = NAME_X;
-    fprintf(f, "<line x1=\"%.1f\" y1=\"%.1f\" x2=\"%.1f\" y2=\"%.1f\" stroke=\"#000000\" stroke-width=\"2\"/>\n",
+    if (draw) {
+        fprintf(
+            f,
+            "<line x1=\"%.1f\" y1=\"%.1f\" x2=\"%.1f\" y2=\"%.1f\" stroke=\"#000000\" stroke-width=\"2\"/>\n",
             x + 13, y - 11, x + 13, y + 3);
-    text(f, x + 32, y + 1, 11, NULL, "the prediction moment");
+        text(f, x + 32, y + 1, 11, NULL, "the prediction moment");
+    }
     x += 32 + CHAR_W * 21 + 24;
-    fprintf(f, "<rect x=\"%.1f\" y=\"%.1f\" width=\"18\" height=\"12\" fill=\"%s\" stroke=\"%s\"/>\n",
-            x, y - 9, C_MUTED, C_MUTED);
-    arrow(f, x + 18, y - 3, 12, 1, C_MUTED);
-    text(f, x + 40, y + 1, 11, NULL, "no bound on that side");
+    if (draw) {
+        fprintf(f, "<rect x=\"%.1f\" y=\"%.1f\" width=\"18\" height=\"12\" fill=\"%s\" stroke=\"%s\"/>\n", x,
+                y - 9, C_MUTED, C_MUTED);
+        arrow(f, x + 18, y - 3, 12, 1, C_MUTED);
+        text(f, x + 40, y + 1, 11, NULL, "no bound on that side");
+    }
     x += 40 + CHAR_W * 21 + 24;
-    fprintf(f,
-            "<path d=\"M%.1f %.1fL%.1f %.1fL%.1f %.1fL%.1f %.1fZ\" fill=\"%s\" stroke=\"#004a75\"/>\n",
-            x + 13, y - 10, x + 20, y - 3, x + 13, y + 4, x + 6, y - 3, C_EVENT);
-    text(f, x + 32, y + 1, 11, NULL, "a single instant");
-    fputs("</g>\n", f);
+    if (draw) {
+        fprintf(f, "<path d=\"M%.1f %.1fL%.1f %.1fL%.1f %.1fL%.1f %.1fZ\" fill=\"%s\" stroke=\"#004a75\"/>\n",
+                x + 13, y - 10, x + 20, y - 3, x + 13, y + 4, x + 6, y - 3, C_EVENT);
+        text(f, x + 32, y + 1, 11, NULL, "a single instant");
+    }
+    x += 32 + CHAR_W * 16 + 24;
+    if (draw) {
+        fprintf(f,
+                "<rect x=\"%.1f\" y=\"%.1f\" width=\"26\" height=\"10\" fill=\"url(#fill-horizon)\" "
+                "stroke=\"#8a3f6c\"/>\n",
+                x, y - 8);
+        text(f, x + 32, y + 1, 11, NULL, "label horizon");
+        fputs("</g>\n", f);
+    }
+    return y + 20;
 }
 
-/* "Columns: 5 available, 1 late in some cases, 5 late (one of them the
- * target), 4 not placed." */
-static const char *summary(svg *g, const kn_schema *s, const kn_timeline *t, const size_t *n_group)
+/* "Columns: 2 late, 1 late in some cases, 5 available, 3 not features, 2
+ * with no timing." */
+static const char *summary(svg *g, const kn_schema *s, const size_t *n_group)
 {
-    const char *out = "Columns:";
+    static const char *const words[KN_ROW_CLASS_COUNT] = {
+        [KN_ROW_LATE] = "late in every case",
+        [KN_ROW_MAYBE] = "late in some cases",
+        [KN_ROW_FROM_TARGET] = "built from the target",
+        [KN_ROW_UNORDERED] = "not ordered",
+        [KN_ROW_RULE_OFF] = "late with the rule off",
+        [KN_ROW_AVAILABLE] = "available",
+        [KN_ROW_NOT_FEATURE] = "not features",
+        [KN_ROW_NO_TIMING] = "with no timing",
+        [KN_ROW_NOT_PLACED] = "not placed",
+    };
+    const char *out = "Columns, as knowable check judges them:";
     const char *sep = " ";
-    for (int k = 0; k < G_COUNT; k++) {
-        if (!n_group[k]) {
-            continue;
-        }
-        out = kn_printf(g->a, "%s%s%zu %s", out, sep, n_group[k], group_word[k]);
-        sep = ", ";
-        const kn_column *target = KN_REF_COLUMN(s->prediction.target);
-        if (target && group_of(kn_timeline_column_timing(t, target)) == (group)k) {
-            out = kn_printf(g->a, "%s (%s the target)", out, n_group[k] == 1 ? "that is" : "one of them");
+    for (int k = 0; k < KN_ROW_CLASS_COUNT; k++) {
+        if (n_group[k]) {
+            out = kn_printf(g->a, "%s%s%zu %s", out, sep, n_group[k], words[k]);
+            sep = ", ";
         }
     }
     return s->n_columns ? kn_printf(g->a, "%s.", out) : "No columns.";
@@ -648,8 +1007,7 @@ static void open_doc(FILE *f, double height, const char *title)
     fputs("<title>", f);
     put_str(f, title);
     fputs("</title>\n", f);
-    fprintf(f, "<rect x=\"0\" y=\"0\" width=\"%.0f\" height=\"%.0f\" fill=\"#ffffff\"/>\n", WIDTH,
-            height);
+    fprintf(f, "<rect x=\"0\" y=\"0\" width=\"%.0f\" height=\"%.0f\" fill=\"#ffffff\"/>\n", WIDTH, height);
 }
 
 static void message_doc(FILE *f, const char *title, const char *message)
@@ -660,7 +1018,7 @@ static void message_doc(FILE *f, const char *title, const char *message)
     fputs("</svg>\n", f);
 }
 
-void kn_timeline_write_svg(FILE *out, const kn_schema *s, const kn_timeline *t)
+void kn_timeline_write_svg(FILE *out, const kn_schema *s, const kn_timeline *t, const kn_doc_findings *f)
 {
     const char *name = s->dataset ? s->dataset : s->path;
     const kn_event *m = kn_timeline_moment(t);
@@ -671,13 +1029,16 @@ void kn_timeline_write_svg(FILE *out, const kn_schema *s, const kn_timeline *t)
         return;
     }
     svg g = {.out = out, .a = kn_timeline_arena(t)};
-    const char *title = kn_printf(g.a, "Timeline of %s", cut(g.a, name, 60));
-    if (kn_timeline_contradictory(t)) {
-        message_doc(out, title,
-                    "The event constraints contradict each other, so no event or column can be "
-                    "placed (see knowable timeline or knowable check).");
-        return;
+    if (!f) {
+        f = kn_doc_findings_make(g.a, NULL, 0, s, t);
     }
+    const char *title = kn_printf(g.a, "Timeline of %s", cut(g.a, name, 60));
+    size_t n_contra = 0;
+    if (kn_timeline_contradictory(t)) {
+        const kn_contradiction *cy;
+        n_contra = kn_timeline_contradictions(t, &cy);
+    }
+    double y_legend = n_contra ? 126 : 108;
 
     /* The axis covers every finite end, each side rounded up to a tick. */
     int64_t left = 0, right = 0;
@@ -690,33 +1051,41 @@ void kn_timeline_write_svg(FILE *out, const kn_schema *s, const kn_timeline *t)
             widen(&left, &right, er[i].hi);
         }
     }
-    size_t n_group[G_COUNT] = {0};
-    group *col_group = kn_alloc_array(g.a, s->n_columns + 1, sizeof *col_group);
+    size_t n_group[KN_ROW_CLASS_COUNT] = {0};
     for (size_t i = 0; i < s->n_columns; i++) {
-        const kn_column_timing *T = kn_timeline_column_timing(t, s->columns[i]);
-        col_group[i] = group_of(T);
-        n_group[col_group[i]]++;
-        if (col_group[i] != G_NOT_PLACED) {
+        group gr = f->rows[i].cls;
+        n_group[gr]++;
+        if (group_has_bar(gr)) {
+            const kn_column_timing *T = kn_timeline_column_timing(t, s->columns[i]);
             widen(&left, &right, T->range.lo);
             widen(&left, &right, T->range.hi);
         }
     }
+    bands b = {0};
+    plan_bands(&g, s, t, f, &b);
+    b.gap_us = s->split.present && s->split.has_gap ? s->split.gap.lo : 0;
+    if (b.horizon) {
+        widen(&left, &right, b.h.hi);
+    }
+    widen(&left, &right, b.gap_us);
     g.left = round_up(left);
     g.right = round_up(right);
     g.s_left = slog(-g.left);
     g.s_right = slog(g.right);
 
-    size_t n_ev_rows = 0;
+    /* Layout first: the height goes in the document's first line. */
+    double legend_end = legend(&g, y_legend, n_group, false);
+    double top = legend_end + 44;
+    double rows_h = bands_height(&b) + HEADING_ROW;
     for (size_t i = 0; i < s->n_events; i++) {
-        n_ev_rows += has_er[i];
+        rows_h += event_height(&g, t, s->events[i], has_er[i]);
     }
-    size_t n_headings = 1;
-    for (int k = 0; k < G_COUNT; k++) {
-        n_headings += n_group[k] > 0;
+    for (int k = 0; k < KN_ROW_CLASS_COUNT; k++) {
+        rows_h += n_group[k] ? HEADING_ROW : 0;
     }
-    double top = 184;
-    double rows_h = HEADING_ROW * (double)n_headings + EVENT_ROW * (double)n_ev_rows +
-                    COLUMN_ROW * (double)s->n_columns;
+    for (size_t i = 0; i < s->n_columns; i++) {
+        rows_h += column_height(&g, t, s->columns[i], &f->rows[i]);
+    }
     double height = top + rows_h + 52;
     open_doc(out, height, title);
     defs(out);
@@ -730,47 +1099,49 @@ void kn_timeline_write_svg(FILE *out, const kn_schema *s, const kn_timeline *t)
     text(out, NAME_X, 66, 12, "fill=\"#333333\"",
          kn_timeline_strict(t)
              ? "Time axis on a signed logarithmic scale. A value recorded exactly at the moment "
-               "counts as late (strict_moment)."
+               "counts as late (strict_moment). Groups and rules are those of knowable check."
              : "Time axis on a signed logarithmic scale. A value recorded exactly at the moment "
-               "counts as available.");
-    text(out, NAME_X, 84, 12, "font-weight=\"bold\"", summary(&g, s, t, n_group));
-    legend(&g, 108);
+               "counts as available. Groups and rules are those of knowable check.");
+    text(out, NAME_X, 84, 12, "font-weight=\"bold\"", summary(&g, s, n_group));
+    if (n_contra) {
+        text(out, NAME_X, 102, 12, "font-weight=\"bold\" fill=\"#8f3f00\"",
+             kn_printf(
+                 g.a,
+                 "The event constraints contradict each other (%zu contradiction%s): the events on one, and "
+                 "those tied to the moment only through one, are set aside (see knowable timeline).",
+                 n_contra, n_contra == 1 ? "" : "s"));
+    }
+    legend(&g, y_legend, n_group, true);
 
     double y_axis_label = top - 8;
     double y_plot_top = top - 4, y_plot_bottom = top + rows_h;
     double x0 = x_of(&g, 0);
     /* The side after the moment is shaded: nothing there is known yet. */
-    fprintf(out,
-            "<rect x=\"%.1f\" y=\"%.1f\" width=\"%.1f\" height=\"%.1f\" fill=\"#f4f4f4\"/>\n", x0,
+    fprintf(out, "<rect x=\"%.1f\" y=\"%.1f\" width=\"%.1f\" height=\"%.1f\" fill=\"#f4f4f4\"/>\n", x0,
             y_plot_top, PLOT_X1 - x0 + 8, y_plot_bottom - y_plot_top);
     text(out, x0 - 6, top - 24, 11, "text-anchor=\"end\" fill=\"#333333\"", "before the moment");
     text(out, x0 + 6, top - 24, 11, "fill=\"#333333\"", "after the moment");
     axis(&g, y_axis_label, y_plot_top, y_plot_bottom);
 
     g.y = top;
-    heading(&g, "Events", n_ev_rows, NULL, NULL, false);
+    draw_bands(&g, &b);
+    heading(&g, "Events", s->n_events, NULL, NULL, NULL);
     fputs("<g class=\"events\">\n", out);
     for (size_t i = 0; i < s->n_events; i++) {
-        if (has_er[i]) {
-            event_row(&g, s->events[i], m, er[i]);
-        }
+        event_row(&g, t, s->events[i], m, er[i], has_er[i]);
     }
     fputs("</g>\n", out);
-    for (int k = 0; k < G_COUNT; k++) {
+    for (int k = 0; k < KN_ROW_CLASS_COUNT; k++) {
         if (!n_group[k]) {
             continue;
         }
-        heading(&g, group_heading[k], n_group[k], k == G_NOT_PLACED ? NULL : group_fill((group)k),
-                group_stroke((group)k), k == G_UNORDERED);
-        fprintf(out, "<g class=\"columns-%s\">\n",
-                k == G_AVAILABLE ? "available"
-                : k == G_MAYBE   ? "maybe-late"
-                : k == G_LATE    ? "late"
-                : k == G_UNORDERED ? "unordered"
-                                   : "not-placed");
+        group gr = (group)k;
+        heading(&g, kn_row_class_heading(gr), n_group[k], group_has_bar(gr) ? group_fill(gr) : NULL,
+                group_stroke(gr), group_dash(gr));
+        fprintf(out, "<g class=\"%s\">\n", group_class[k]);
         for (size_t i = 0; i < s->n_columns; i++) {
-            if (col_group[i] == (group)k) {
-                column_row(&g, t, s->columns[i], (group)k);
+            if (f->rows[i].cls == gr) {
+                column_row(&g, t, s->columns[i], &f->rows[i]);
             }
         }
         fputs("</g>\n", out);

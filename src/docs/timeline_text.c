@@ -1,18 +1,20 @@
 /* timeline_text.c - the text form of `knowable timeline SCHEMA`: every
  * event's range relative to the moment, then every column's availability
- * range and verdict, as aligned tables for a terminal.  Reads the solved
- * timeline; writes to the caller's FILE. */
+ * range in the groups the check's findings decide (findings.c), with the
+ * rules that fired on it, as aligned tables for a terminal.  Reads the
+ * solved timeline and the findings; writes to the caller's FILE. */
 #include <string.h>
 
 #include "docs.h"
 #include "../util/text.h"
 
-#define MAX_COLS 6
+#define MAX_COLS 7
 
 typedef struct table {
     size_t n_cols;
     size_t n_rows, cap;
-    const char **cells; /* n_rows * n_cols, already escaped */
+    const char **cells; /* n_rows * n_cols, already escaped; a heading row
+                           has its text in the first cell and NULL after */
     size_t width[MAX_COLS];
     kn_arena *a;
 } table;
@@ -28,7 +30,8 @@ static size_t text_width(const char *s)
     return w;
 }
 
-static void add_row(table *t, const char *const *cells)
+/* A row of cells; heading: one text spanning the table, taking no width. */
+static void put_row(table *t, const char *const *cells, bool heading)
 {
     if (t->n_rows == t->cap) {
         size_t cap = t->cap ? t->cap * 2 : 16;
@@ -41,7 +44,10 @@ static void add_row(table *t, const char *const *cells)
     }
     for (size_t i = 0; i < t->n_cols; i++) {
         const char *c = cells[i] ? cells[i] : "";
-        t->cells[t->n_rows * t->n_cols + i] = c;
+        t->cells[t->n_rows * t->n_cols + i] = heading && i ? NULL : c;
+        if (heading) {
+            continue;
+        }
         size_t w = text_width(c);
         if (w > t->width[i]) {
             t->width[i] = w;
@@ -50,9 +56,24 @@ static void add_row(table *t, const char *const *cells)
     t->n_rows++;
 }
 
+static void add_row(table *t, const char *const *cells)
+{
+    put_row(t, cells, false);
+}
+
+static void add_heading(table *t, const char *text)
+{
+    const char *cells[MAX_COLS] = {text};
+    put_row(t, cells, true);
+}
+
 static void print_table(FILE *out, const table *t)
 {
     for (size_t r = 0; r < t->n_rows; r++) {
+        if (t->n_cols > 1 && !t->cells[r * t->n_cols + 1]) {
+            fprintf(out, "%s%s\n", r ? "\n" : "", t->cells[r * t->n_cols]);
+            continue;
+        }
         /* Trailing empty cells print nothing, so lines carry no trailing blanks. */
         size_t last = t->n_cols;
         while (last > 1 && !*t->cells[r * t->n_cols + last - 1]) {
@@ -89,87 +110,36 @@ static const char *offset(kn_arena *a, int64_t v)
 }
 
 static const char *verdict_words(kn_arena *a, const kn_timeline *t, const kn_column *c,
-                                 const kn_column_timing *T)
+                                 const kn_column_timing *T, kn_row_class cls)
 {
-    if (!T || !T->ordered) {
-        return "not placed: on or behind a derivation cycle";
+    if (cls == KN_ROW_NOT_PLACED) {
+        (void)T;
+        return kn_printf(a, "not placed: %s", esc(a, kn_column_not_placed_words(a, t, c)));
     }
-    switch (T->verdict) {
-    case KN_VERDICT_AVAILABLE:
-        return "available";
-    case KN_VERDICT_MAYBE_LATE:
-        return "maybe after the moment";
-    case KN_VERDICT_LATE:
-        return "after the moment";
-    case KN_VERDICT_UNORDERED:
-        return "unordered: no upper bound relative to the moment";
-    case KN_VERDICT_UNKNOWN:
-        break;
+    if (cls == KN_ROW_NOT_FEATURE && (c->role == KN_ROLE_FEATURE || c->role == KN_ROLE_TARGET)) {
+        return "the target: not a feature";
     }
-    /* A derived column is placed only when all its inputs are. */
-    for (size_t i = 0; i < c->n_derived; i++) {
-        const kn_column *in = KN_REF_COLUMN(c->derived_from[i]);
-        const kn_column_timing *TI = in ? kn_timeline_column_timing(t, in) : NULL;
-        if (!TI || !TI->computed) {
-            return kn_printf(a, "not placed: its input '%s' is not placed", esc(a, c->derived_from[i].name));
-        }
-    }
-    bool any = false;
-    for (int p = 0; p < KN_PART_COUNT; p++) {
-        any = any || T->has[p];
-    }
-    return any ? "not placed: a reference or duration is in error" : "not placed: no timing declared";
+    return kn_row_class_words(cls);
 }
 
-static const char *basis(kn_arena *a, const kn_column *c, const kn_column_timing *T)
+/* "after-moment, join-latest-value (waived)" */
+static const char *rules_words(kn_arena *a, const kn_doc_row *row)
 {
     const char *s = "";
-    const char *sep = "";
-    if (!T) {
-        return s;
+    for (size_t i = 0; i < row->n_findings; i++) {
+        const kn_row_finding *f = &row->findings[i];
+        s = kn_printf(a, "%s%s%s%s", s, i ? ", " : "", kn_rule_get(f->rule)->id, f->waived ? " (waived)" : "");
     }
-    if (T->has[KN_PART_KNOWN] && c->n_one_of) {
-        const char *names = "";
-        for (size_t i = 0; i < c->n_one_of; i++) {
-            names = kn_printf(a, "%s%s%s", names, i ? " | " : "", esc(a, c->one_of[i].name));
-        }
-        s = kn_printf(a, "%s%sknown at one of %s", s, sep, names);
-        sep = ", ";
-    } else if (T->has[KN_PART_KNOWN]) {
-        s = kn_printf(a, "%s%sknown at %s", s, sep, esc(a, c->known.name));
-        sep = ", ";
-    }
-    if (T->has[KN_PART_WINDOW]) {
-        s = kn_printf(a, "%s%swindow on %s", s, sep, esc(a, c->window.anchor.name));
-        sep = ", ";
-    }
-    if (T->has[KN_PART_INPUTS]) {
-        s = kn_printf(a, "%s%sderived from %zu column%s", s, sep, c->n_derived,
-                      c->n_derived == 1 ? "" : "s");
-        sep = ", ";
-    }
-    if (T->has[KN_PART_AS_OF]) {
-        s = kn_printf(a, "%s%sas of %s", s, sep, esc(a, c->join.as_of.name));
-        if (c->join.has_offset) {
-            s = kn_printf(a, "%s %s", s, offset(a, c->join.offset.lo < 0 ? c->join.offset.lo : c->join.offset.hi));
-        }
-        sep = ", ";
-    }
-    const kn_source *src = c->join.present && KN_REF_SOURCE(c->join.source) ? KN_REF_SOURCE(c->join.source)
-                                                                           : KN_REF_SOURCE(c->source);
-    if (src && src->matures.present && src->matures.hi > 0) {
-        char b[48];
-        s = kn_printf(a, "%s%ssource settles up to %s later", s, sep, kn_duration_format(src->matures.hi, b, sizeof b));
-    }
-    return s;
+    return *s ? s : "-";
 }
 
 static void write_contradictions(FILE *out, kn_arena *a, const kn_timeline *t)
 {
     const kn_contradiction *cy;
     size_t n = kn_timeline_contradictions(t, &cy);
-    fprintf(out, "The event constraints contradict each other (%zu contradiction%s), so no event "
-                 "or column can be placed.\n",
+    fprintf(out, "The event constraints contradict each other (%zu contradiction%s): the events on a "
+                 "contradiction, and those tied to the moment only through one, are set aside; the rest "
+                 "is placed below.\n",
             n, n == 1 ? "" : "s");
     for (size_t i = 0; i < n; i++) {
         fprintf(out, "\ncontradiction %zu: following these round the loop puts an event before "
@@ -190,7 +160,7 @@ static void write_contradictions(FILE *out, kn_arena *a, const kn_timeline *t)
     }
 }
 
-void kn_timeline_write_text(FILE *out, const kn_schema *s, const kn_timeline *t)
+void kn_timeline_write_text(FILE *out, const kn_schema *s, const kn_timeline *t, const kn_doc_findings *f)
 {
     const kn_event *m = kn_timeline_moment(t);
     if (!t || !m) {
@@ -200,13 +170,15 @@ void kn_timeline_write_text(FILE *out, const kn_schema *s, const kn_timeline *t)
         return;
     }
     kn_arena *a = kn_timeline_arena(t);
+    if (!f) {
+        f = kn_doc_findings_make(a, NULL, 0, s, t);
+    }
     fprintf(out, "Timeline of %s: moment '%s'; a value recorded exactly at the moment counts as %s.\n",
             s->dataset ? kn_printf(a, "'%s'", esc(a, s->dataset)) : esc(a, s->path), esc(a, m->name),
             kn_timeline_strict(t) ? "late (strict_moment)" : "available");
     if (kn_timeline_contradictory(t)) {
         fputc('\n', out);
         write_contradictions(out, a, t);
-        return;
     }
 
     table ev = {.n_cols = 4, .a = a};
@@ -216,6 +188,8 @@ void kn_timeline_write_text(FILE *out, const kn_schema *s, const kn_timeline *t)
         const kn_event *e = s->events[i];
         kn_interval r;
         if (!kn_timeline_event_range(t, e, &r)) {
+            const char *row[] = {esc(a, e->name), "-", "-", "set aside: a schema error or a contradiction"};
+            add_row(&ev, row);
             continue;
         }
         const char *remark = "";
@@ -248,21 +222,36 @@ void kn_timeline_write_text(FILE *out, const kn_schema *s, const kn_timeline *t)
     if (s->n_columns == 0) {
         return;
     }
-    table co = {.n_cols = 6, .a = a};
-    const char *chead[] = {"column", "role", "earliest", "latest", "verdict", "from"};
+    table co = {.n_cols = 7, .a = a};
+    const char *chead[] = {"column", "role", "earliest", "latest", "verdict", "rules", "from"};
     add_row(&co, chead);
-    for (size_t i = 0; i < s->n_columns; i++) {
-        const kn_column *c = s->columns[i];
-        const kn_column_timing *T = kn_timeline_column_timing(t, c);
-        const char *lo = "-", *hi = "-";
-        if (T && T->computed) {
-            lo = offset(a, T->range.lo);
-            hi = offset(a, T->range.hi);
+    for (int k = 0; k < KN_ROW_CLASS_COUNT; k++) {
+        size_t n = 0;
+        for (size_t i = 0; i < s->n_columns; i++) {
+            n += f->rows[i].cls == (kn_row_class)k;
         }
-        const char *row[] = {esc(a, c->name), kn_role_name(c->role), lo, hi, verdict_words(a, t, c, T),
-                             basis(a, c, T)};
-        add_row(&co, row);
+        if (!n) {
+            continue;
+        }
+        add_heading(&co, kn_printf(a, "%s (%zu):", kn_row_class_heading((kn_row_class)k), n));
+        for (size_t i = 0; i < s->n_columns; i++) {
+            const kn_doc_row *row = &f->rows[i];
+            if (row->cls != (kn_row_class)k) {
+                continue;
+            }
+            const kn_column *c = s->columns[i];
+            const kn_column_timing *T = kn_timeline_column_timing(t, c);
+            const char *lo = "-", *hi = "-";
+            if (T && T->computed && row->cls != KN_ROW_NO_TIMING) {
+                lo = offset(a, T->range.lo);
+                hi = offset(a, T->range.hi);
+            }
+            const char *cells[] = {esc(a, c->name), kn_role_name(c->role), lo, hi,
+                                   verdict_words(a, t, c, T, row->cls), rules_words(a, row),
+                                   esc(a, kn_column_timing_words(a, c))};
+            add_row(&co, cells);
+        }
     }
-    fputs("\nColumns, available relative to the moment:\n", out);
+    fputs("\nColumns, available relative to the moment, in the groups of `knowable check`'s findings:\n", out);
     print_table(out, &co);
 }

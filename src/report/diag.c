@@ -407,6 +407,7 @@ static void apply_waivers(kn_sink *s, const char *today)
             wstate st = state_of(w, today);
             if (st == W_ACTIVE && !d->waived) {
                 d->waived = true;
+                d->waiver_reason = w->d.reason;
                 w->matched++;
             } else if (st == W_EXPIRED) {
                 w->would++;

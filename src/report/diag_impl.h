@@ -22,6 +22,7 @@ struct kn_diag {
     kn_severity cap; /* when set, the most severe level this finding may take (a
                         "maybe" finding of an error rule is a warning); 0: no cap */
     bool waived;
+    const char *waiver_reason; /* the reason of the waiver that hid it (sink memory) */
     bool baselined;
     bool has_range;               /* a timing finding: when the value is available */
     int64_t range_lo, range_hi;   /* microseconds relative to the moment (+-KN_TIME_INF unbounded) */

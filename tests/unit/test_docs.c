@@ -140,12 +140,21 @@ static void test_svg_moment_line_and_groups(void **state)
     assert_non_null(strstr(svg, "<line class=\"moment\""));
     assert_non_null(strstr(svg, "class=\"columns-available\""));
     assert_non_null(strstr(svg, "class=\"columns-late\""));
-    assert_non_null(strstr(svg, "class=\"columns-not-placed\""));
+    assert_non_null(strstr(svg, "class=\"columns-not-feature\""));
+    assert_non_null(strstr(svg, "class=\"columns-no-timing\""));
     assert_null(strstr(svg, "class=\"columns-maybe-late\""));
-    /* Available comes before late, late before not placed. */
-    assert_true(strstr(svg, "columns-available") < strstr(svg, "columns-late"));
-    assert_true(strstr(svg, "columns-late") < strstr(svg, "columns-not-placed"));
-    assert_non_null(strstr(svg, "late (the target)"));
+    assert_null(strstr(svg, "class=\"columns-not-placed\""));
+    /* Late first, then available, then what is not a feature, then what has no timing. */
+    assert_true(strstr(svg, "columns-late") < strstr(svg, "columns-available"));
+    assert_true(strstr(svg, "columns-available") < strstr(svg, "columns-not-feature"));
+    assert_true(strstr(svg, "columns-not-feature") < strstr(svg, "columns-no-timing"));
+    /* The target is late by design and is no finding; the rules fired are shown. */
+    assert_non_null(strstr(svg, ">the target</text>"));
+    assert_non_null(strstr(svg, "class=\"rule\" fill=\"#1a1a1a\" font-weight=\"bold\">after-moment (error)</text>"));
+    assert_non_null(strstr(svg, ">missing-known (warning)</text>"));
+    /* The text report groups the same way. */
+    assert_non_null(strstr(text, "Features late in every case"));
+    assert_non_null(strstr(text, "Columns with no timing"));
     free(text);
     free(svg);
     unlink(p);
