@@ -72,6 +72,13 @@ const char *kn_row_finding_words(kn_arena *a, const kn_row_finding *f);
  * derived from x, y, source S, as of E -1d, source settles up to 180d
  * later".  Arena memory. */
 const char *kn_column_timing_words(kn_arena *a, const kn_column *c);
+/* parts joined by sep, in one pass (arena memory). */
+const char *kn_doc_join(kn_arena *a, const char *const *parts, size_t n, const char *sep);
+/* The names of refs joined by sep, the first KN_DOC_NAMES_SHOWN of them and
+ * "and N more" (raw, arena memory): a list of inputs or members stays
+ * readable, and costs its length, whatever the schema holds. */
+#define KN_DOC_NAMES_SHOWN 12
+const char *kn_doc_names(kn_arena *a, const kn_ref *refs, size_t n, const char *sep);
 /* Why a column is not placed (KN_ROW_NOT_PLACED), raw (arena memory). */
 const char *kn_column_not_placed_words(kn_arena *a, const kn_timeline *t, const kn_column *c);
 /* True for the rules whose subject is a column's name. */

@@ -178,6 +178,39 @@ const kn_doc_findings *kn_doc_findings_make(kn_arena *a, const kn_sink *sink, si
     return f;
 }
 
+const char *kn_doc_join(kn_arena *a, const char *const *parts, size_t n, const char *sep)
+{
+    size_t len = 0, sep_len = strlen(sep);
+    for (size_t i = 0; i < n; i++) {
+        len += strlen(parts[i]) + (i ? sep_len : 0);
+    }
+    char *out = kn_alloc(a, len + 1), *p = out;
+    for (size_t i = 0; i < n; i++) {
+        if (i) {
+            memcpy(p, sep, sep_len);
+            p += sep_len;
+        }
+        size_t k = strlen(parts[i]);
+        memcpy(p, parts[i], k);
+        p += k;
+    }
+    *p = '\0';
+    return out;
+}
+
+const char *kn_doc_names(kn_arena *a, const kn_ref *refs, size_t n, const char *sep)
+{
+    size_t shown = n > KN_DOC_NAMES_SHOWN ? KN_DOC_NAMES_SHOWN : n;
+    const char **parts = kn_alloc_array(a, shown + 1, sizeof *parts);
+    for (size_t i = 0; i < shown; i++) {
+        parts[i] = refs[i].name ? refs[i].name : "";
+    }
+    if (shown < n) {
+        parts[shown++] = kn_printf(a, "and %zu more", n - KN_DOC_NAMES_SHOWN);
+    }
+    return kn_doc_join(a, parts, shown, sep);
+}
+
 /* "+1d", "-2h", "0s". */
 static const char *signed_duration(kn_arena *a, int64_t v)
 {
@@ -202,11 +235,7 @@ const char *kn_column_timing_words(kn_arena *a, const kn_column *c)
     const char *sep = "";
     char b1[48], b2[48];
     if (c->n_one_of) {
-        const char *names = "";
-        for (size_t i = 0; i < c->n_one_of; i++) {
-            names = kn_printf(a, "%s%s%s", names, i ? " | " : "", (c->one_of[i].name));
-        }
-        s = kn_printf(a, "%s%sknown at one of %s", s, sep, names);
+        s = kn_printf(a, "%s%sknown at one of %s", s, sep, kn_doc_names(a, c->one_of, c->n_one_of, " | "));
         sep = ", ";
     } else if (c->known.name) {
         s = kn_printf(a, "%s%sknown at %s", s, sep, (c->known.name));
@@ -219,11 +248,7 @@ const char *kn_column_timing_words(kn_arena *a, const kn_column *c)
         sep = ", ";
     }
     if (c->n_derived) {
-        const char *names = "";
-        for (size_t i = 0; i < c->n_derived; i++) {
-            names = kn_printf(a, "%s%s%s", names, i ? ", " : "", (c->derived_from[i].name));
-        }
-        s = kn_printf(a, "%s%sderived from %s", s, sep, names);
+        s = kn_printf(a, "%s%sderived from %s", s, sep, kn_doc_names(a, c->derived_from, c->n_derived, ", "));
         sep = ", ";
     }
     const kn_source *src = read_source(c);

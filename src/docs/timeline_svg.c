@@ -550,10 +550,7 @@ static void event_lines(svg *g, const kn_timeline *t, const kn_event *e, lines *
     }
     const kn_event *lo_by = kn_timeline_first_of_member(t, e, false);
     const kn_event *hi_by = kn_timeline_first_of_member(t, e, true);
-    const char *names = "";
-    for (size_t k = 0; k < e->n_first_of; k++) {
-        names = kn_printf(g->a, "%s%s%s", names, k ? " | " : "", e->first_of[k].name);
-    }
+    const char *names = kn_doc_names(g->a, e->first_of, e->n_first_of, " | ");
     wrap(g->a, right, kn_printf(g->a, "first of %s", names), NOTE_CHARS, -1);
     if (lo_by && hi_by) {
         wrap(g->a, right, kn_printf(g->a, "earliest from %s, latest from %s", lo_by->name, hi_by->name),
@@ -590,8 +587,8 @@ static void event_row(svg *g, const kn_timeline *t, const kn_event *e, const kn_
         wrap(g->a, &right, "a schema error or a contradiction", NOTE_CHARS, -1);
     }
     const char *tip = kn_printf(g->a, "event %s: %s", e->name, words);
-    for (size_t i = 0; i < right.n; i++) {
-        tip = kn_printf(g->a, "%s%s%s", tip, i ? " " : "; ", right.text[i]);
+    if (right.n) {
+        tip = kn_printf(g->a, "%s; %s", tip, kn_doc_join(g->a, right.text, right.n, " "));
     }
     fputs("<g class=\"event\"><title>", f);
     put_str(f, tip);
@@ -672,9 +669,12 @@ static void column_row(svg *g, const kn_timeline *t, const kn_column *c, const k
     }
     const char *tip =
         kn_printf(g->a, "column %s: %s, %s", c->name, group_word[gr], column_range(g, t, c, gr));
+    const char **tips = kn_alloc_array(g->a, row->n_findings + 1, sizeof *tips);
+    tips[0] = tip;
     for (size_t i = 0; i < row->n_findings; i++) {
-        tip = kn_printf(g->a, "%s; %s", tip, finding_tip(g->a, &row->findings[i]));
+        tips[i + 1] = finding_tip(g->a, &row->findings[i]);
     }
+    tip = kn_doc_join(g->a, tips, row->n_findings + 1, "; ");
     fputs("<g class=\"column\"><title>", f);
     put_str(f, tip);
     fputs("</title>\n", f);
@@ -780,9 +780,17 @@ static void plan_bands(svg *g, const kn_schema *s, const kn_timeline *t, const k
         return;
     }
     char b1[48], b2[48];
-    const char *gap = sp->has_gap
-                          ? kn_printf(g->a, "a gap of %s", kn_duration_format(sp->gap.lo, b1, sizeof b1))
-                          : "no gap";
+    const char *gap = "no gap";
+    if (sp->has_gap && sp->gap.lo == sp->gap.hi) {
+        gap = kn_printf(g->a, "a gap of %s", kn_duration_format(sp->gap.lo, b1, sizeof b1));
+    } else if (sp->has_gap) {
+        /* a calendar unit: as written, and its shortest length, which the
+         * check compares */
+        gap = kn_printf(g->a, "a gap of %s (as short as %s)",
+                        sp->gap_node && sp->gap_node->kind == KN_NODE_SCALAR ? sp->gap_node->u.scalar.text
+                                                                             : "?",
+                        kn_duration_format(sp->gap.lo, b1, sizeof b1));
+    }
     const char *more = "";
     if (sp->purge) {
         more = ", purge";

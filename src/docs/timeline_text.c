@@ -125,12 +125,15 @@ static const char *verdict_words(kn_arena *a, const kn_timeline *t, const kn_col
 /* "after-moment, join-latest-value (waived)" */
 static const char *rules_words(kn_arena *a, const kn_doc_row *row)
 {
-    const char *s = "";
+    if (!row->n_findings) {
+        return "-";
+    }
+    const char **parts = kn_alloc_array(a, row->n_findings, sizeof *parts);
     for (size_t i = 0; i < row->n_findings; i++) {
         const kn_row_finding *f = &row->findings[i];
-        s = kn_printf(a, "%s%s%s%s", s, i ? ", " : "", kn_rule_get(f->rule)->id, f->waived ? " (waived)" : "");
+        parts[i] = f->waived ? kn_printf(a, "%s (waived)", kn_rule_get(f->rule)->id) : kn_rule_get(f->rule)->id;
     }
-    return *s ? s : "-";
+    return kn_doc_join(a, parts, row->n_findings, ", ");
 }
 
 static void write_contradictions(FILE *out, kn_arena *a, const kn_timeline *t)
@@ -200,10 +203,7 @@ void kn_timeline_write_text(FILE *out, const kn_schema *s, const kn_timeline *t,
              * one decides each end */
             const kn_event *lo_by = kn_timeline_first_of_member(t, e, false);
             const kn_event *hi_by = kn_timeline_first_of_member(t, e, true);
-            const char *names = "";
-            for (size_t k = 0; k < e->n_first_of; k++) {
-                names = kn_printf(a, "%s%s%s", names, k ? " | " : "", esc(a, e->first_of[k].name));
-            }
+            const char *names = esc(a, kn_doc_names(a, e->first_of, e->n_first_of, " | "));
             remark = kn_printf(a, "first of %s (earliest from %s, latest from %s)", names,
                                lo_by ? esc(a, lo_by->name) : "-", hi_by ? esc(a, hi_by->name) : "-");
         } else if (r.lo <= -KN_TIME_INF && r.hi >= KN_TIME_INF) {
