@@ -85,7 +85,11 @@ def shown(name):
 
 def run(exe, args, cwd):
     env = dict(os.environ, KNOWABLE_TODAY="2026-06-01", NO_COLOR="1")
-    return subprocess.run([exe] + args, cwd=cwd, env=env, capture_output=True)
+    r = subprocess.run([exe] + args, cwd=cwd, env=env, capture_output=True)
+    err = r.stderr.decode("utf-8", "replace")
+    check("Sanitizer" not in err and "runtime error" not in err and r.returncode < 3,
+          "%s: knowable %s: exit %d, %s" % (cwd, " ".join(args), r.returncode, err[-800:]))
+    return r
 
 
 def case_args(path):
@@ -193,6 +197,9 @@ def check_schema(exe, path, tmp, with_sources):
         os.unlink(svg)
     t = run(exe, ["timeline", "--svg", svg] + args + ["--", base], cwd)
     if t.returncode != 0:
+        # only a schema the check cannot read may be refused
+        check(b"fix them before placing its timeline" in t.stderr,
+              "%s: the timeline failed without saying the schema has errors" % path)
         counts["skipped"] += 1
         return
     try:
