@@ -322,7 +322,9 @@ static void on_scalar(loader *ld, const yaml_event_t *e)
     n->u.scalar.text = kn_strndup(ld->arena, (const char *)e->data.scalar.value, e->data.scalar.length);
     n->u.scalar.len = e->data.scalar.length;
     n->plain = e->data.scalar.style == YAML_PLAIN_SCALAR_STYLE;
-    if (memchr(n->u.scalar.text, '\0', n->u.scalar.len)) {
+    /* Only the \0 escape of a double-quoted scalar can put a NUL in a
+     * value: libyaml refuses the byte itself in the input. */
+    if (e->data.scalar.style == YAML_DOUBLE_QUOTED_SCALAR_STYLE && memchr(n->u.scalar.text, '\0', n->u.scalar.len)) {
         fail(ld, &n->pos, "%s", "a scalar holds a NUL character");
         return;
     }
