@@ -223,7 +223,9 @@ kn_status kn_init(const kn_options *o, const char *csv, FILE *out, FILE *err)
     if (r.failed) {
         return end(&r, KN_EXIT_FAILED);
     }
-    kn_rulebook *rb = kn_run_rulebook(&r, NULL);
+    /* The rulebook that will judge the draft: the one found from where it
+     * is written (-o), or from the current folder for standard output. */
+    kn_rulebook *rb = kn_run_rulebook(&r, o->output ? o->output : "./draft.knowable.yaml");
     if (!rb) {
         return refuse(&r, NULL);
     }
@@ -231,7 +233,7 @@ kn_status kn_init(const kn_options *o, const char *csv, FILE *out, FILE *err)
     if (!draft) {
         return end(&r, KN_EXIT_FAILED);
     }
-    if (!kn_init_write(draft, r.sink, a, csv, o->max_rows, rb->identifier_code)) {
+    if (!kn_init_write(draft, r.sink, a, csv, o->max_rows, rb)) {
         kn_run_close_outputs(&r, false);
         return refuse(&r, NULL);
     }

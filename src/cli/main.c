@@ -88,7 +88,9 @@ static const char timeline_help[] =
 static const char init_help[] =
     "usage: knowable init [-o FILE [--force]] [--max-rows N] [--] DATA.csv\n\n"
     "A draft schema from a CSV sample's header and values (the first N rows, default\n"
-    "10,000), with placeholders to fill in.\n";
+    "10,000), with placeholders to fill in.  Cells the rulebook's missing_values name\n"
+    "are missing; identifier_names marks identifiers.  The rulebook is --rulebook, or\n"
+    "the one `check` will find for the draft (from -o FILE's folder, else this one).\n";
 static const char lsp_help[] =
     "usage: knowable lsp [--rulebook FILE]... [--root DIR]\n\n"
     "A Language Server (LSP 3.17, JSON-RPC over standard input and output) for editors:\n"

@@ -118,9 +118,10 @@ void kn_sources_write(FILE *out, kn_arena *a, kn_schema *const *schemas, const k
                       const kn_doc_findings *const *findings, size_t n, bool json);
 
 /* `knowable init`: a draft schema from the CSV file at csv (the first
- * max_rows rows, 0: the default), naming identifiers with id_names (a
- * kn_regex *, may be NULL).  Returns false after pushing csv-malformed
+ * max_rows rows, 0: the default), under rulebook rb: its identifier_names
+ * name identifiers, its missing_values are the missing cells.  Returns false after pushing csv-malformed
  * (and marking the sink fatal) when the file cannot be read as CSV. */
-bool kn_init_write(FILE *out, kn_sink *sink, kn_arena *a, const char *csv, long long max_rows, void *id_names);
+bool kn_init_write(FILE *out, kn_sink *sink, kn_arena *a, const char *csv, long long max_rows,
+                   const kn_rulebook *rb);
 
 #endif

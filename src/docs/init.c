@@ -110,9 +110,9 @@ static void trim(const char **s, size_t *len)
     }
 }
 
-static void observe(kn_arena *a, colstat *c, const char *s, size_t len)
+static void observe(kn_arena *a, const kn_missing *missing, colstat *c, const char *s, size_t len)
 {
-    if (kn_value_is_missing(s, len)) {
+    if (kn_missing_test(missing, s, len)) {
         c->missing++;
         return;
     }
@@ -470,8 +470,14 @@ static void close_file(void *p)
     }
 }
 
-bool kn_init_write(FILE *out, kn_sink *sink, kn_arena *a, const char *csv, long long max_rows, void *id_names)
+bool kn_init_write(FILE *out, kn_sink *sink, kn_arena *a, const char *csv, long long max_rows,
+                   const kn_rulebook *rb)
 {
+    void *id_names = rb->identifier_code;
+    /* Missing cells are what the data checks will call missing: the
+     * rulebook's missing_values. */
+    kn_missing missing;
+    kn_missing_init(&missing, rb->missing_values, rb->n_missing_values);
     bool ok = false;
     kn_defer *d = kn_arena_defer(a, close_file, NULL);
     FILE *f = fopen(csv, "rb");
@@ -535,7 +541,7 @@ bool kn_init_write(FILE *out, kn_sink *sink, kn_arena *a, const char *csv, long 
         }
         rows++;
         for (size_t i = 0; i < n && i < row.n_fields; i++) {
-            observe(a, &cols[i], row.fields[i].ptr, row.fields[i].len);
+            observe(a, &missing, &cols[i], row.fields[i].ptr, row.fields[i].len);
         }
     }
     for (size_t i = 0; i < n; i++) {

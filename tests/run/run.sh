@@ -110,6 +110,20 @@ init-rulebook)
     run empty init -- empty.csv
     expect_rc 2
     expect empty.err "^empty.csv:.*error: .*\[csv-malformed\]"
+    # The draft counts as missing what the rulebook's missing_values say
+    # (a dash here), so a numeric column with dashes is still a number;
+    # the rulebook is found from where the draft is written.
+    printf 'order_id,weight_kg\nA1,-\nA2,2.5\nA3,-\nA4,1.25\n' >dashes.csv
+    run builtin init -o builtin.yaml -- dashes.csv
+    expect_rc 0
+    grep -A3 '"weight_kg"' builtin.yaml | grep -q 'type: category' ||
+        fail "under the built-in rulebook a dash is a value (category)"
+    mkdir -p team
+    printf 'knowable_rulebook: 1\nmissing_values: ["", "-"]\n' >team/.knowable-rules.yaml
+    run dashes init -o team/draft.yaml -- dashes.csv
+    expect_rc 0
+    grep -A3 '"weight_kg"' team/draft.yaml | grep -q 'type: number' ||
+        fail "the rulebook's missing_values were not used by init"
     ;;
 init-existing)
     printf 'order_id,weight_kg\nA1,2.5\n' >parcels.csv
