@@ -20,6 +20,8 @@ typedef struct waiver {
     size_t would;   /* findings it would hide, had it not expired */
 } waiver;
 
+#define NOTE_CLASSES 40
+
 struct kn_sink {
     kn_arena *arena;
     kn_vec *diags;  /* kn_diag * */
@@ -37,6 +39,9 @@ struct kn_sink {
     bool has_data;
     kn_data_skip *skips;
     size_t n_skips, skips_cap;
+    /* Note arrays outgrown by their finding, by size class (4 << k notes),
+     * for the next finding that needs one of that size. */
+    kn_note *spare_notes[NOTE_CLASSES];
 };
 
 kn_sink *kn_sink_new(kn_arena *a)
@@ -136,13 +141,37 @@ kn_diag *kn_diag_push(kn_sink *s, kn_rule r, const kn_pos *pos, const char *subj
     return d;
 }
 
+/* The size class of an array of cap notes (cap = 4 << k). */
+static size_t note_class(size_t cap)
+{
+    size_t k = 0;
+    while (cap > 4 && k + 1 < NOTE_CLASSES) {
+        cap /= 2;
+        k++;
+    }
+    return k;
+}
+
 static kn_note *new_note(kn_sink *s, kn_diag *d, const kn_pos *pos)
 {
     if (d->n_notes == d->cap_notes) {
+        /* A finding's notes grow by doubling; the array it leaves is kept
+         * for the next finding that reaches that size (a chain of twenty
+         * steps otherwise leaves three arrays behind for every finding). */
         size_t cap = d->cap_notes ? d->cap_notes * 2 : 4;
-        kn_note *n = kn_alloc_array(s->arena, cap, sizeof *n);
+        kn_note **spare = &s->spare_notes[note_class(cap)];
+        kn_note *n;
+        if (*spare) {
+            n = *spare;
+            memcpy(spare, n, sizeof *spare); /* the next spare, kept in its first bytes */
+        } else {
+            n = kn_alloc_array(s->arena, cap, sizeof *n);
+        }
         if (d->n_notes) {
             memcpy(n, d->notes, d->n_notes * sizeof *n);
+            kn_note **old = &s->spare_notes[note_class(d->cap_notes)];
+            memcpy(d->notes, old, sizeof *old);
+            *old = d->notes;
         }
         d->notes = n;
         d->cap_notes = cap;
