@@ -350,17 +350,41 @@ kn_interval kn_interval_point(int64_t t)
     return r;
 }
 
+/* Appends *sep, the decimal digits of v (>= 0) and suffix to tmp at *w. */
+static void put_part(char *tmp, size_t *w, const char **sep, long long v, const char *suffix)
+{
+    for (const char *p = *sep; *p; p++) {
+        tmp[(*w)++] = *p;
+    }
+    char digits[24];
+    size_t k = 0;
+    do {
+        digits[k++] = (char)('0' + v % 10);
+        v /= 10;
+    } while (v);
+    while (k) {
+        tmp[(*w)++] = digits[--k];
+    }
+    for (const char *p = suffix; *p; p++) {
+        tmp[(*w)++] = *p;
+    }
+    *sep = " ";
+}
+
 char *kn_duration_format(int64_t us, char *buf, size_t n)
 {
+    /* Written digit by digit, not with snprintf: a report of many late
+     * columns formats tens of thousands of these. */
     char tmp[64];
     size_t w = 0;
+    const char *word = NULL;
 
     if (us >= KN_TIME_INF) {
-        w = (size_t)snprintf(tmp, sizeof tmp, "unbounded");
+        word = "unbounded";
     } else if (us <= -KN_TIME_INF) {
-        w = (size_t)snprintf(tmp, sizeof tmp, "-unbounded");
+        word = "-unbounded";
     } else if (us == 0) {
-        w = (size_t)snprintf(tmp, sizeof tmp, "0s");
+        word = "0s";
     } else {
         if (us < 0) {
             tmp[w++] = '-';
@@ -374,30 +398,40 @@ char *kn_duration_format(int64_t us, char *buf, size_t n)
         const char *sep = "";
         /* At most 13 + 4 + 6 + 17 characters plus a sign: tmp is ample. */
         if (days) {
-            w += (size_t)snprintf(tmp + w, sizeof tmp - w, "%s%lldd", sep, days);
-            sep = " ";
+            put_part(tmp, &w, &sep, days, "d");
         }
         if (hours) {
-            w += (size_t)snprintf(tmp + w, sizeof tmp - w, "%s%lldh", sep, hours);
-            sep = " ";
+            put_part(tmp, &w, &sep, hours, "h");
         }
         if (mins) {
-            w += (size_t)snprintf(tmp + w, sizeof tmp - w, "%s%lldmin", sep, mins);
-            sep = " ";
+            put_part(tmp, &w, &sep, mins, "min");
         }
         if (micro) {
+            /* seconds, a point, the six digits of the fraction without
+             * trailing zeros */
             char frac[8];
-            snprintf(frac, sizeof frac, "%06lld", micro);
+            long long m = micro;
+            for (int i = 5; i >= 0; i--) {
+                frac[i] = (char)('0' + m % 10);
+                m /= 10;
+            }
             size_t f = 6;
             while (frac[f - 1] == '0') {
                 f--;
             }
-            frac[f] = '\0';
-            w += (size_t)snprintf(tmp + w, sizeof tmp - w, "%s%lld.%ss", sep,
-                                  secs, frac);
+            frac[f] = 's';
+            frac[f + 1] = '\0';
+            put_part(tmp, &w, &sep, secs, ".");
+            for (size_t i = 0; frac[i]; i++) {
+                tmp[w++] = frac[i];
+            }
         } else if (secs) {
-            w += (size_t)snprintf(tmp + w, sizeof tmp - w, "%s%llds", sep, secs);
+            put_part(tmp, &w, &sep, secs, "s");
         }
+    }
+    if (word) {
+        w = strlen(word);
+        memcpy(tmp, word, w);
     }
     if (n == 0) {
         return buf;
