@@ -598,8 +598,18 @@ static void write_markdown(FILE *out, reg *r)
     size_t incomplete = 0;
     size_t n_ext = count_kind(r, KN_SOURCE_EXTERNAL, &incomplete);
     size_t n_int = count_kind(r, KN_SOURCE_INTERNAL, NULL);
-    fprintf(out, "%zu external source%s (%zu with provenance missing), %zu internal source%s.\n\n", n_ext,
+    fprintf(out, "%zu external source%s (%zu with provenance missing), %zu internal source%s.", n_ext,
             n_ext == 1 ? "" : "s", incomplete, n_int, n_int == 1 ? "" : "s");
+    size_t n_found[2] = {0}, n_waived = 0;
+    for (size_t i = 0; i < r->entries->len; i++) {
+        const entry *e = KN_VEC_AT(r->entries, entry *, i);
+        n_found[e->src->kind == KN_SOURCE_EXTERNAL] += e->findings->len;
+        for (size_t k = 0; k < e->findings->len; k++) {
+            n_waived += KN_VEC_AT(e->findings, against, k).v->waived;
+        }
+    }
+    fprintf(out, " Findings of `knowable check` against them: %zu on external sources, %zu on internal ones (%zu waived).\n\n",
+            n_found[1], n_found[0], n_waived);
     if (r->truncated) {
         fputs("**Derived columns were traced only in part:** the schemas chain more derivations than the register "
               "follows; the columns listed as derived are not all of them.\n\n",

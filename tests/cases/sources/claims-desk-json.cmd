@@ -1,0 +1,1 @@
+--format json ../../../examples/claims-desk.knowable.yaml

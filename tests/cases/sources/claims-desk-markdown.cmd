@@ -1,0 +1,1 @@
+../../../examples/claims-desk.knowable.yaml
