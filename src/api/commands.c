@@ -71,42 +71,29 @@ static bool write_baseline(kn_run *r)
 }
 
 /* check --data 'odbc:...': refused when knowable was built without
- * database support; otherwise the connection is opened and made read-only
- * (a connection or SQL error is exit 2 with the driver's message, the
- * password masked).  The data rules over the aggregated rows are not
- * finished yet: the check then stops with exit 2 and says so. */
+ * database support or without one of --table and --query; the query file
+ * is read here.  The checks themselves run as for a CSV file
+ * (kn_run_analyse, src/checks/data_db.c). */
 static const char *read_query(kn_run *r, const char *path);
 
-static kn_status check_database(kn_run *r)
+static bool database_options(kn_run *r)
 {
     const kn_options *o = r->opt;
     if (!kn_odbc_built()) {
         fputs("knowable: --data odbc:... needs database support, and this knowable was built without it "
               "(unixODBC: Debian's unixodbc-dev, then meson setup -Dodbc=enabled)\n",
               r->err);
-        return end(r, KN_EXIT_FAILED);
+        return false;
     }
     if (!o->table == !o->query || (o->table && !o->table[0])) {
         fputs("knowable: --data odbc:... needs --table NAME or --query FILE.sql (one of them)\n", r->err);
-        return end(r, KN_EXIT_FAILED);
+        return false;
     }
-    const char *query_sql = o->query ? read_query(r, o->query) : NULL;
-    if (o->query && !query_sql) {
-        return end(r, KN_EXIT_FAILED);
+    if (o->query && !(r->query_sql = read_query(r, o->query))) {
+        return false;
     }
-    long n_cols = kn_odbc_probe(r->arena, o->data, o->table, query_sql, r->err);
-    if (n_cols < 0) {
-        return end(r, KN_EXIT_FAILED);
-    }
-    const char *shown = kn_odbc_display(r->arena, o->data);
-    fputs("knowable: connected read-only to ", r->err);
-    kn_fput_term(r->err, shown, strlen(shown));
-    fprintf(r->err, " (%s: %ld column%s)", o->table ? kn_escape_term(r->arena, o->table, strlen(o->table)) : "--query",
-            n_cols, n_cols == 1 ? "" : "s");
-    fputs(", but the data rules over a database are not finished in this version; `knowable sql` prints the "
-          "queries they run\n",
-          r->err);
-    return end(r, KN_EXIT_FAILED);
+    r->database = true;
+    return true;
 }
 
 kn_status kn_check(const kn_options *o, const char *const *schemas, size_t n, FILE *out, FILE *err)
@@ -120,9 +107,10 @@ kn_status kn_check(const kn_options *o, const char *const *schemas, size_t n, FI
         return end(&r, KN_EXIT_FAILED);
     }
     if (kn_odbc_is_connection(o->data)) {
-        return check_database(&r);
-    }
-    if (o->table || o->query) {
+        if (!database_options(&r)) {
+            return end(&r, KN_EXIT_FAILED);
+        }
+    } else if (o->table || o->query) {
         fputs("knowable: --table and --query go with a database --data 'odbc:...'\n", err);
         return end(&r, KN_EXIT_FAILED);
     }
@@ -294,7 +282,8 @@ kn_status kn_sql(const kn_options *o, const char *schema, FILE *out, FILE *err)
         return refuse(&r, "the schema has errors (above); fix them before writing its queries");
     }
     kn_sql_plan plan;
-    kn_sql_make(a, u->schema, u->rulebook, o->table, query_sql, d, &plan);
+    kn_sql_make(a, u->schema, u->rulebook, o->table, query_sql, d,
+                o->max_rows > 0 ? (unsigned long long)o->max_rows : KN_SQL_MAX_GROUPS, &plan);
     FILE *doc = kn_run_open_output(&r, o->output, out, false);
     if (!doc) {
         return end(&r, KN_EXIT_FAILED);

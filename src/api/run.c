@@ -196,7 +196,10 @@ void kn_run_analyse(kn_run *r, kn_unit *u)
     kn_check_provenance(&ctx, s);
     kn_check_identity(&ctx, s, u->timeline);
     kn_check_preparation(&ctx, s, u->timeline);
-    if (r->opt->data) {
+    if (r->opt->data && r->database) {
+        kn_check_database(&ctx, s, r->opt->data, r->opt->table, r->opt->query, r->query_sql, r->opt->max_rows,
+                          r->opt->seed, r->err);
+    } else if (r->opt->data) {
         kn_check_data(&ctx, s, r->opt->data, r->opt->max_rows, r->opt->seed);
     }
     kn_check_waivers(&ctx, s);
@@ -289,6 +292,9 @@ const char *const *kn_run_inputs(const kn_run *r, size_t *n)
     }
     if (o->data) {
         kn_vec_push(v, &o->data);
+    }
+    if (o->query) {
+        kn_vec_push(v, &o->query);
     }
     /* The baseline may be replaced by --write-baseline onto itself (the
      * refresh SPEC §7 allows), so it is listed by the callers that must

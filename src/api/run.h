@@ -45,6 +45,8 @@ typedef struct kn_run {
     kn_vec *outputs;          /* kn_defer * of each kn_output opened */
     struct kn_file_cache *files; /* included files parsed once per run (yaml/cache.h) */
     bool failed;              /* the run cannot be done: exit 2 */
+    bool database;            /* --data is a database connection (odbc:...) */
+    const char *query_sql;    /* the text of --query, for a database */
     /* Unsaved editor buffers standing for files (kn_load_options.overlay);
      * NULL: files are read from disk. */
     const char *(*overlay)(void *ctx, const char *real, size_t *len);

@@ -4,6 +4,8 @@
 #ifndef KN_CHECKS_CHECKS_H
 #define KN_CHECKS_CHECKS_H
 
+#include <stdio.h>
+
 #include "../report/diag.h"
 #include "../rulebook/rulebook.h"
 #include "../schema/schema.h"
@@ -51,5 +53,17 @@ void kn_check_waivers(kn_ctx *c, const kn_schema *s);
  * on a reservoir sample of at most max_rows rows (0: 1,000,000) drawn with
  * seed.  An unreadable file is reported and marks the sink fatal. */
 void kn_check_data(kn_ctx *c, const kn_schema *s, const char *csv_path, long long max_rows, uint64_t seed);
+
+/* data_db.c: the same rules on a table of a database (SPEC §5.1), data
+ * the "odbc:..." connection, with table (a name, schema.table allowed) or
+ * query_sql (the rows of a query, read from the file query_label).  The engine scans the rows and sends
+ * back aggregates only (src/data/sql.c); the statistics are finished by
+ * the code of the CSV path (src/data/stats.c, data_stats.c).  max_rows (0:
+ * KN_SQL_MAX_GROUPS) bounds the rows the client reads per query.
+ * Findings point at "odbc:<connection, password masked>/<table>".  A
+ * connection or SQL error goes to err with the driver's message and marks
+ * the sink fatal (exit 2). */
+void kn_check_database(kn_ctx *c, const kn_schema *s, const char *data, const char *table, const char *query_label,
+                       const char *query_sql, long long max_rows, uint64_t seed, FILE *err);
 
 #endif

@@ -28,7 +28,8 @@
 
 kn_pos kn_dx_pos(const kn_dx *x, uint64_t line, uint32_t column)
 {
-    kn_pos p = {x->path, line > UINT32_MAX ? 0 : (uint32_t)line, line > UINT32_MAX ? 0 : column, 0};
+    /* line 0: the file (a database's table) as a whole, no column */
+    kn_pos p = {x->path, line > UINT32_MAX ? 0 : (uint32_t)line, line > UINT32_MAX || line == 0 ? 0 : column, 0};
     return p;
 }
 
@@ -39,8 +40,18 @@ void kn_dx_line_note(kn_dx *x, kn_diag *d, uint64_t line)
     }
 }
 
+void kn_dx_key_note(kn_dx *x, kn_diag *d, const char *key)
+{
+    if (key && x->key_name) {
+        kn_diag_note(x->sink, d, NULL, "a row with it, the one with the least key: '%s' = '%.60s'", x->key_name, key);
+    }
+}
+
 kn_pos kn_dx_header_pos(const kn_dx *x, size_t i)
 {
+    if (x->database) {
+        return kn_dx_pos(x, 0, 0); /* the table */
+    }
     return kn_dx_pos(x, 1, x->hcol[i]);
 }
 
@@ -51,6 +62,16 @@ void kn_dx_note_decl(kn_dx *x, kn_diag *d, const kn_column *c, const kn_node *no
 
 void kn_dx_note_sample(kn_dx *x, kn_diag *d)
 {
+    if (x->t.weight) {
+        /* a database: groups over every row, unless the engine sampled */
+        if (x->sampled_of > x->t.rows) {
+            kn_diag_note(x->sink, d, NULL,
+                         "computed on a random sample of %llu of the %llu rows, drawn by the engine (--max-rows %lld); "
+                         "counts refer to the sample",
+                         (unsigned long long)x->t.rows, (unsigned long long)x->sampled_of, x->max_rows);
+        }
+        return;
+    }
     if (x->t.rows > x->t.kept) {
         kn_diag_note(x->sink, d, NULL,
                      "computed on a uniform random sample of %zu of the %llu rows (--max-rows %lld, seed %llu); "
@@ -107,7 +128,7 @@ static uint32_t *header_columns(kn_arena *a, const kn_csv_row *h)
 
 /* Matches the header with the schema and sets the table's columns and
  * roles. */
-static void read_header(kn_dx *x, const kn_csv_row *h)
+void kn_dx_read_header(kn_dx *x, const kn_csv_row *h)
 {
     const kn_schema *s = x->s;
     kn_table *t = &x->t;
@@ -265,7 +286,7 @@ void kn_check_data(kn_ctx *c, const kn_schema *s, const char *csv_path, long lon
         kn_data_csv_problem(&x, &err);
         return;
     }
-    read_header(&x, &row);
+    kn_dx_read_header(&x, &row);
     if (!kn_table_read(&x.t, rd)) {
         kn_data_csv_problem(&x, &x.t.fatal);
     }

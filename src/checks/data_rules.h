@@ -18,12 +18,26 @@ typedef struct kn_dx {
     uint32_t *hcol;         /* per table column: byte column of its name in the header */
     long long max_rows;
     uint64_t seed;
+    /* a database (data_db.c): each column is its own table of groups */
+    bool database;          /* findings point at the table (line 0) */
+    const char *key_name;   /* the column that names a row (kn_first.key), or NULL */
+    bool target_said;       /* a statistic skipped for the target is recorded once */
+    uint64_t sampled_of;    /* the table's rows, when this table is a sample of them */
 } kn_dx;
 
 /* A position in the CSV file.  A line beyond what a position holds
  * (2^32 - 1) gives line 0; kn_dx_line_note then says which line. */
 kn_pos kn_dx_pos(const kn_dx *x, uint64_t line, uint32_t column);
 void kn_dx_line_note(kn_dx *x, kn_diag *d, uint64_t line);
+
+/* Matches a header (a CSV file's first record, or a database table's
+ * column names with line 0) with the schema: column-not-in-schema and
+ * column-not-in-data, then the table's columns and roles, laid out. */
+void kn_dx_read_header(kn_dx *x, const kn_csv_row *h);
+
+/* A database: a note naming a row with the finding's value by its key
+ * (the least key among such rows), when the table has a key. */
+void kn_dx_key_note(kn_dx *x, kn_diag *d, const char *key);
 
 /* The header field of table column i (line 1). */
 kn_pos kn_dx_header_pos(const kn_dx *x, size_t i);

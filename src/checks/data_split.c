@@ -50,6 +50,9 @@ static void shared(kn_dx *x)
                          "the entity is named here; assign the split by entity (split.method: group) so that each "
                          "entity's rows stay on one side");
             kn_dx_line_note(x, d, o.first_test_line);
+            if (o.first_key) {
+                kn_diag_note(x->sink, d, NULL, "the first such entity: '%s' = '%.60s'", ec->name, o.first_key);
+            }
         }
     }
 }

@@ -25,6 +25,8 @@
  * feature's U and AUC: whether a value is missing is missingness-predicts'
  * question, not lone-feature-separates'. */
 #include <math.h>
+#include <stdio.h>
+#include <stdlib.h>
 #include <string.h>
 
 #include "data_rules.h"
@@ -38,19 +40,38 @@ enum {
 };
 
 typedef struct labels {
-    size_t n;          /* sampled rows with a target value */
+    size_t n;          /* sampled rows (a database: groups) with a target value */
+    uint64_t rows;     /* the rows they stand for */
+    uint64_t *w;       /* a database: rows per entry; NULL: one row each */
     size_t *slot;      /* their slots */
     uint32_t *y;       /* their target codes, 1..ny-1 */
     size_t ny;         /* codes are below ny */
     size_t classes;    /* distinct codes present */
     bool binary, binned;
     bool *pos;         /* binary: the positive class */
-    size_t n_pos, n_neg;
+    size_t n_pos, n_neg; /* rows */
     const char *positive;
     /* scratch, one per labelled row */
     double *score;
     uint32_t *x;
 } labels;
+
+/* The rows entry i stands for. */
+static uint64_t wt(const labels *L, size_t i)
+{
+    return L->w ? L->w[i] : 1;
+}
+
+/* With KNOWABLE_TRACE_STATS set, every statistic computed goes to
+ * standard error at full precision, whether or not it fires: the CSV and
+ * the database paths are compared with it (tests/sql/agree.sh). */
+static void trace(const char *rule, const char *subject, const char *statistic, double value, uint64_t rows)
+{
+    if (getenv("KNOWABLE_TRACE_STATS")) {
+        fprintf(stderr, "knowable-stat\t%s\t%s\t%s\t%.17g\t%llu\n", rule, subject, statistic, value,
+                (unsigned long long)rows);
+    }
+}
 
 static void skip(kn_dx *x, kn_rule r, const char *subject, const char *statistic, const char *reason)
 {
@@ -81,16 +102,27 @@ static bool prepare(kn_dx *x, labels *L)
     L->pos = kn_alloc_array(x->a, t->kept + 1, sizeof *L->pos);
     L->score = kn_alloc_array(x->a, t->kept + 1, sizeof *L->score);
     L->x = kn_alloc_array(x->a, t->kept + 1, sizeof *L->x);
+    if (t->weight) {
+        L->w = kn_alloc_array(x->a, t->kept + 1, sizeof *L->w);
+    }
     for (size_t s = 0; s < t->kept; s++) {
         uint32_t y = kn_table_target(t, s);
-        if (y == 0 || (y == KN_DICT_OTHER && !t->target_numeric)) {
+        uint64_t w = t->weight ? t->weight[s] : 1;
+        if (y == 0 || (y == KN_DICT_OTHER && !t->target_numeric) || w == 0) {
             continue;
         }
-        if (y != KN_DICT_OTHER && count[y]++ == 0) {
-            L->classes++;
+        if (y != KN_DICT_OTHER) {
+            if (count[y] == 0) {
+                L->classes++;
+            }
+            count[y] += w;
         }
         L->slot[L->n] = s;
         L->y[L->n] = y;
+        if (L->w) {
+            L->w[L->n] = w;
+        }
+        L->rows += w;
         L->n++;
     }
     L->ny = levels + 1;
@@ -100,10 +132,15 @@ static bool prepare(kn_dx *x, labels *L)
         for (size_t i = 0; i < L->n; i++) {
             L->score[i] = kn_table_target_num(t, L->slot[i]);
         }
-        L->classes = kn_quantile_bins(x->a, L->score, L->n, TARGET_BINS, L->y);
+        L->classes = kn_quantile_bins_weighted(x->a, L->score, L->w, L->n, TARGET_BINS, L->y);
+        L->rows = 0;
         for (size_t i = 0; i < L->n; i++) {
             if (L->y[i]) {
                 L->slot[m] = L->slot[i];
+                if (L->w) {
+                    L->w[m] = L->w[i];
+                }
+                L->rows += wt(L, i);
                 L->y[m++] = L->y[i];
             }
         }
@@ -112,10 +149,21 @@ static bool prepare(kn_dx *x, labels *L)
         L->binned = true;
     }
     if (!why && L->classes < 2) {
-        why = kn_printf(x->a, "the target '%s' has %s in the %zu sampled rows", target_name(x),
-                        L->classes ? "one value" : "no value", t->kept);
+        why = t->weight ? kn_printf(x->a, "the target '%s' has %s in the %llu rows", target_name(x),
+                                    L->classes ? "one value" : "no value", (unsigned long long)t->rows)
+                        : kn_printf(x->a, "the target '%s' has %s in the %zu sampled rows", target_name(x),
+                                    L->classes ? "one value" : "no value", t->kept);
+    }
+    if (why && x->sampled_of) {
+        /* a database's sample for one identifier: only its segments */
+        skip(x, KN_R_IDENTIFIER_SEGMENT_PREDICTS, t->cols[0].name, "uncertainty", why);
+        return false;
     }
     if (why) {
+        if (x->target_said) {
+            return false; /* a database's later column: said once already */
+        }
+        x->target_said = true;
         skip(x, KN_R_LONE_FEATURE_SEPARATES, "", "all", why);
         skip(x, KN_R_MISSINGNESS_PREDICTS, "", "all", why);
         skip(x, KN_R_IDENTIFIER_SEGMENT_PREDICTS, "", "all", why);
@@ -145,9 +193,9 @@ static bool prepare(kn_dx *x, labels *L)
         L->positive = kn_dict_text(t->tdict, positive, &lp);
         for (size_t i = 0; i < L->n; i++) {
             L->pos[i] = L->y[i] == positive;
-            L->n_pos += L->pos[i];
+            L->n_pos += L->pos[i] ? wt(L, i) : 0;
         }
-        L->n_neg = L->n - L->n_pos;
+        L->n_neg = L->rows - L->n_pos;
     }
     return true;
 }
@@ -182,11 +230,26 @@ static void numeric_feature(kn_dx *x, labels *L, size_t col)
     const kn_tcol *c = &t->cols[col];
     const kn_thresholds *th = &x->ctx->rulebook->thresholds;
     size_t have = 0, have_pos = 0;
-    for (size_t i = 0; i < L->n; i++) {
-        L->score[i] = kn_table_num(t, c->num_cell, L->slot[i]);
-        if (!isnan(L->score[i])) {
-            have++;
-            have_pos += L->binary && L->pos[i];
+    if (c->has_auc) {
+        /* the engine's rank sum over every row (a database column with
+         * more distinct values than the client reads) */
+        have_pos = c->auc.n_pos;
+        have = c->auc.n_pos + c->auc.n_neg;
+    } else if (c->wide) {
+        skip(x, KN_R_LONE_FEATURE_SEPARATES, c->name, L->binary ? "roc_auc" : "uncertainty",
+             kn_printf(x->a,
+                       "more distinct values than the client reads from the database (--max-rows %lld)%s",
+                       x->max_rows,
+                       L->binary ? "; the engine's rank sum needs a numeric, date or timestamp SQL type"
+                                 : "; quantile bins of such a column are not computed in the database"));
+        return;
+    } else {
+        for (size_t i = 0; i < L->n; i++) {
+            L->score[i] = kn_table_num(t, c->num_cell, L->slot[i]);
+            if (!isnan(L->score[i])) {
+                have += wt(L, i);
+                have_pos += L->binary && L->pos[i] ? wt(L, i) : 0;
+            }
         }
     }
     if (L->binary) {
@@ -200,7 +263,25 @@ static void numeric_feature(kn_dx *x, labels *L, size_t col)
             return;
         }
         kn_auc auc;
-        if (!kn_stats_auc(x->a, L->score, L->pos, L->n, &auc) || auc.separation < th->separation_auc) {
+        bool ok;
+        if (c->has_auc) {
+            auc = c->auc;
+            ok = true;
+        } else if (L->w) {
+            uint64_t *pos = kn_alloc_array(x->a, L->n + 1, sizeof *pos);
+            uint64_t *neg = kn_alloc_array(x->a, L->n + 1, sizeof *neg);
+            for (size_t i = 0; i < L->n; i++) {
+                pos[i] = L->pos[i] ? L->w[i] : 0;
+                neg[i] = L->pos[i] ? 0 : L->w[i];
+            }
+            ok = kn_stats_auc_levels(x->a, L->score, pos, neg, L->n, &auc);
+        } else {
+            ok = kn_stats_auc(x->a, L->score, L->pos, L->n, &auc);
+        }
+        if (ok) {
+            trace("lone-feature-separates", c->name, "roc_auc", auc.auc, auc.n_pos + auc.n_neg);
+        }
+        if (!ok || auc.separation < th->separation_auc) {
             return;
         }
         kn_pos p = kn_dx_header_pos(x, col);
@@ -229,9 +310,13 @@ static void numeric_feature(kn_dx *x, labels *L, size_t col)
                        rows_needed(2, L->classes), ROWS_PER_CELL, L->classes, target_name(x), have));
         return;
     }
-    kn_quantile_bins(x->a, L->score, L->n, bins, L->x);
+    kn_quantile_bins_weighted(x->a, L->score, L->w, L->n, bins, L->x);
     kn_uncertainty u;
-    if (!kn_uncertainty_ids(x->a, L->x, L->y, L->n, bins + 1, L->ny, &u) || u.u < th->uncertainty) {
+    if (!kn_uncertainty_weighted(x->a, L->x, L->y, L->w, L->n, bins + 1, L->ny, &u)) {
+        return;
+    }
+    trace("lone-feature-separates", c->name, "uncertainty", u.u, u.n);
+    if (u.u < th->uncertainty) {
         return;
     }
     fire_u(x, L, col, KN_R_LONE_FEATURE_SEPARATES, &u,
@@ -243,19 +328,25 @@ static void categorical_feature(kn_dx *x, labels *L, size_t col)
     kn_table *t = &x->t;
     const kn_tcol *c = &t->cols[col];
     const kn_thresholds *th = &x->ctx->rulebook->thresholds;
-    if (kn_dict_full(c->d)) {
+    if (kn_dict_full(c->d) || c->wide) {
         skip(x, KN_R_LONE_FEATURE_SEPARATES, c->name, "uncertainty",
-             kn_printf(x->a, "more than %d distinct values (or 1 MiB of them): too many for a contingency table",
-                       KN_TABLE_MAX_LEVELS));
+             c->wide ? kn_printf(x->a, "more distinct values than the client reads from the database (--max-rows "
+                                       "%lld): too many for a contingency table",
+                                 x->max_rows)
+                     : kn_printf(x->a,
+                                 "more than %d distinct values (or 1 MiB of them): too many for a contingency table",
+                                 KN_TABLE_MAX_LEVELS));
         return;
     }
     for (size_t i = 0; i < L->n; i++) {
         L->x[i] = kn_table_code(t, c->cat_cell, L->slot[i]);
     }
     kn_uncertainty u;
-    if (!kn_uncertainty_ids(x->a, L->x, L->y, L->n, kn_dict_levels(c->d) + 1, L->ny, &u) || u.x_levels < 2) {
+    if (!kn_uncertainty_weighted(x->a, L->x, L->y, L->w, L->n, kn_dict_levels(c->d) + 1, L->ny, &u) ||
+        u.x_levels < 2) {
         return; /* no value, or one: nothing to predict with */
     }
+    trace("lone-feature-separates", c->name, "uncertainty", u.u, u.n);
     if (u.n < rows_needed(u.x_levels, u.y_levels)) {
         skip(x, KN_R_LONE_FEATURE_SEPARATES, c->name, "uncertainty",
              kn_printf(x->a,
@@ -279,11 +370,11 @@ static void missingness(kn_dx *x, labels *L, size_t col)
     size_t miss = 0, miss_pos = 0;
     for (size_t i = 0; i < L->n; i++) {
         bool m = kn_table_is_missing(t, c->mbit, L->slot[i]);
-        miss += m;
-        miss_pos += m && L->binary && L->pos[i];
+        miss += m ? wt(L, i) : 0;
+        miss_pos += m && L->binary && L->pos[i] ? wt(L, i) : 0;
         L->x[i] = m ? 2 : 1;
     }
-    if (miss == 0 || miss == L->n) {
+    if (miss == 0 || miss == L->rows) {
         return; /* a constant indicator predicts nothing */
     }
     kn_pos p = kn_dx_header_pos(x, col);
@@ -305,19 +396,21 @@ static void missingness(kn_dx *x, labels *L, size_t col)
         double share_neg = (double)(miss - miss_pos) / (double)L->n_neg;
         double auc = (1.0 + share_pos - share_neg) / 2.0;
         double separation = auc > 0.5 ? auc : 1.0 - auc;
+        trace("missingness-predicts", c->name, "roc_auc", auc, L->rows);
         if (separation < th->missingness_auc) {
             return;
         }
         d = kn_diag_push(x->sink, KN_R_MISSINGNESS_PREDICTS, &p, c->name,
                          "whether '%s' is missing predicts %s: AUC of the missing indicator %.3f (threshold %g); "
                          "%zu of %zu rows miss it, %zu of them with %s = %s",
-                         c->name, target_name(x), separation, th->missingness_auc, miss, L->n, miss_pos,
+                         c->name, target_name(x), separation, th->missingness_auc, miss, (size_t)L->rows, miss_pos,
                          target_name(x), L->positive);
     } else {
         kn_uncertainty u;
-        if (!kn_uncertainty_ids(x->a, L->x, L->y, L->n, 3, L->ny, &u)) {
+        if (!kn_uncertainty_weighted(x->a, L->x, L->y, L->w, L->n, 3, L->ny, &u)) {
             return;
         }
+        trace("missingness-predicts", c->name, "uncertainty", u.u, u.n);
         if (u.n < rows_needed(2, u.y_levels)) {
             skip(x, KN_R_MISSINGNESS_PREDICTS, c->name, "uncertainty",
                  kn_printf(x->a, "U needs at least %zu rows (%d per cell, 2 x %zu classes of '%s'); the sample has %zu",
@@ -330,7 +423,7 @@ static void missingness(kn_dx *x, labels *L, size_t col)
         d = kn_diag_push(x->sink, KN_R_MISSINGNESS_PREDICTS, &p, c->name,
                          "whether '%s' is missing predicts %s: U(%s | missing) %.3f (threshold %g); %zu of %zu rows "
                          "miss it",
-                         c->name, target_name(x), target_name(x), u.u, th->uncertainty, miss, L->n);
+                         c->name, target_name(x), target_name(x), u.u, th->uncertainty, miss, (size_t)L->rows);
     }
     kn_diag_key(x->sink, d, "missingness %s", c->name);
     kn_dx_note_decl(x, d, x->decl[col], NULL, ": a value filled in only when the outcome is known leaks it");
@@ -371,9 +464,10 @@ static void segments(kn_dx *x, labels *L, size_t col)
                              g->kinds == 1 ? "letters" : g->kinds == 2 ? "digits" : "letters or digits", c->name);
         }
         kn_uncertainty u;
-        if (!kn_uncertainty_ids(x->a, L->x, L->y, L->n, levels + 1, L->ny, &u) || u.x_levels < 2) {
+        if (!kn_uncertainty_weighted(x->a, L->x, L->y, L->w, L->n, levels + 1, L->ny, &u) || u.x_levels < 2) {
             continue;
         }
+        trace("identifier-segment-predicts", c->name, g->name ? g->name : ordinal(x->a, gi), u.u, u.n);
         if (u.n < rows_needed(u.x_levels, u.y_levels)) {
             skip(x, KN_R_IDENTIFIER_SEGMENT_PREDICTS, c->name, "uncertainty",
                  kn_printf(x->a,

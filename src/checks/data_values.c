@@ -74,6 +74,7 @@ void kn_data_values(kn_dx *x)
             kn_diag_key(x->sink, d, "type %s", c->name);
             kn_dx_note_decl(x, d, k, k->type_node, kn_printf(x->a, " as type %s", kn_type_name(k->type)));
             kn_dx_line_note(x, d, c->bad_type.line);
+            kn_dx_key_note(x, d, c->bad_type.key);
         }
         if (c->bad_format.count) {
             kn_pos p = kn_dx_pos(x, c->bad_format.line, c->bad_format.col);
@@ -84,6 +85,7 @@ void kn_data_values(kn_dx *x)
             kn_diag_key(x->sink, d, "format %s", c->name);
             kn_dx_note_decl(x, d, k, k->format_node, " with this format");
             kn_dx_line_note(x, d, c->bad_format.line);
+            kn_dx_key_note(x, d, c->bad_format.key);
         }
         if (c->format_off) {
             kn_diag *d = kn_diag_push(x->sink, KN_R_BAD_PATTERN, kn_column_pos(k, k->format_node), c->name,
@@ -114,6 +116,7 @@ void kn_data_values(kn_dx *x)
             kn_diag_note(x->sink, d, kn_column_pos(m, x->s->prediction.moment_column.node),
                          "the moment column is named here");
             kn_dx_line_note(x, d, c->late.line);
+            kn_dx_key_note(x, d, c->late.key);
         }
     }
 }

@@ -177,22 +177,63 @@ static void side_sum(sbuf *b, kn_sql_dialect d, const char *split, bool test)
     puts_(b, ") THEN 1 ELSE 0 END)");
 }
 
-/* The CSV path's "missing": NULL, or one of the rulebook's markers. */
+/* The CSV path's "missing": NULL, or one of the rulebook's markers,
+ * spaces around ignored, without regard to ASCII case. */
 static void missing_test(sbuf *b, kn_sql_dialect d, const kn_rulebook *rb, const char *col)
 {
     ident(b, d, col);
     puts_(b, " IS NULL");
     if (rb->n_missing_values) {
-        puts_(b, " OR ");
+        puts_(b, " OR LOWER(TRIM(");
         as_text(b, d, col);
-        puts_(b, " IN (");
+        puts_(b, ")) IN (");
         for (size_t i = 0; i < rb->n_missing_values; i++) {
             if (i) {
                 puts_(b, ", ");
             }
-            literal(b, d, rb->missing_values[i]);
+            char *low = kn_strdup(b->a, rb->missing_values[i]);
+            for (char *p = low; *p; p++) {
+                if (*p >= 'A' && *p <= 'Z') {
+                    *p = (char)(*p - 'A' + 'a');
+                }
+            }
+            literal(b, d, low);
         }
         puts_(b, ")");
+    }
+}
+
+/* At most n rows of the result. */
+static void limit(sbuf *b, kn_sql_dialect d, unsigned long long n)
+{
+    char num[32];
+    snprintf(num, sizeof num, "%llu", n);
+    puts_(b, d == KN_SQL_ANSI ? " FETCH FIRST " : " LIMIT ");
+    puts_(b, num);
+    puts_(b, d == KN_SQL_ANSI ? " ROWS ONLY" : "");
+}
+
+/* A uniform number in [0, 1) for each row (MySQL's from a seed, so that
+ * the same scan draws the same rows; PostgreSQL's after setseed,
+ * kn_sql_seed_query; SQLite's cannot be seeded). */
+static void random_unit(sbuf *b, kn_sql_dialect d, uint64_t seed)
+{
+    char num[32];
+    switch (d) {
+    case KN_SQL_POSTGRESQL:
+        puts_(b, "random()");
+        break;
+    case KN_SQL_MYSQL:
+        snprintf(num, sizeof num, "RAND(%llu)", (unsigned long long)(seed % 1000000007u));
+        puts_(b, num);
+        break;
+    case KN_SQL_SQLITE:
+        /* random() is a signed 64-bit integer */
+        puts_(b, "(random() / 18446744073709551616.0 + 0.5)");
+        break;
+    case KN_SQL_ANSI:
+        puts_(b, "RAND()");
+        break;
     }
 }
 
@@ -204,6 +245,204 @@ static bool has_control(const char *s)
         }
     }
     return false;
+}
+
+/* ---- the queries of the data checks ----------------------------------------- */
+
+char *kn_sql_count_query(kn_arena *a, kn_sql_dialect d, const char *table, const char *query_sql)
+{
+    sbuf b = {a, NULL, 0, 0};
+    puts_(&b, "SELECT COUNT(*) AS n_rows");
+    from(&b, d, table, query_sql);
+    return b.p;
+}
+
+char *kn_sql_seed_query(kn_arena *a, kn_sql_dialect d, uint64_t seed)
+{
+    if (d != KN_SQL_POSTGRESQL) {
+        return NULL;
+    }
+    return kn_printf(a, "SELECT setseed(%.6f)", (double)(seed % 1000000u) / 1000000.0);
+}
+
+char *kn_sql_groups_query(kn_arena *a, kn_sql_dialect d, const char *table, const char *query_sql, const char *col,
+                          const char *target, unsigned long long max_rows, double sample, uint64_t seed)
+{
+    sbuf b = {a, NULL, 0, 0};
+    if (sample > 0 && sample < 1) {
+        char p[40];
+        snprintf(p, sizeof p, "%.17g", sample);
+        puts_(&b, "SELECT ");
+        ident(&b, d, "v");
+        puts_(&b, " AS v");
+        if (target) {
+            puts_(&b, ", ");
+            ident(&b, d, "t");
+            puts_(&b, " AS t");
+        }
+        puts_(&b, ", COUNT(*) AS n\nFROM (SELECT ");
+        ident(&b, d, col);
+        puts_(&b, " AS v");
+        if (target) {
+            puts_(&b, ", ");
+            ident(&b, d, target);
+            puts_(&b, " AS t");
+        }
+        puts_(&b, "\n     ");
+        from(&b, d, table, query_sql);
+        puts_(&b, "\n      WHERE ");
+        random_unit(&b, d, seed);
+        puts_(&b, " < ");
+        puts_(&b, p);
+        puts_(&b, ") AS ");
+        ident(&b, d, "sampled");
+        puts_(&b, "\nGROUP BY ");
+        ident(&b, d, "v");
+        if (target) {
+            puts_(&b, ", ");
+            ident(&b, d, "t");
+        }
+    } else {
+        puts_(&b, "SELECT ");
+        ident(&b, d, col);
+        puts_(&b, " AS v");
+        if (target) {
+            puts_(&b, ", ");
+            ident(&b, d, target);
+            puts_(&b, " AS t");
+        }
+        puts_(&b, ", COUNT(*) AS n");
+        from(&b, d, table, query_sql);
+        puts_(&b, " GROUP BY ");
+        ident(&b, d, col);
+        if (target) {
+            puts_(&b, ", ");
+            ident(&b, d, target);
+        }
+    }
+    if (max_rows) {
+        limit(&b, d, max_rows);
+    }
+    return b.p;
+}
+
+/* The Mann-Whitney rank sum of col for each value of the target, by the
+ * engine: per distinct value v, its rows n of class t; the rows of other
+ * classes below v (every row below v less those of class t) and beside it
+ * (at v, not of class t); twice U of class t is the sum over its values of
+ * n (2 below + beside), kn_rank_step's sum (src/data/stats.h). */
+char *kn_sql_rank_sum_query(kn_arena *a, kn_sql_dialect d, const kn_rulebook *rb, const char *table,
+                            const char *query_sql, const char *col, const char *target)
+{
+    sbuf b = {a, NULL, 0, 0};
+    puts_(&b, "SELECT t, SUM(n * (2 * (below_all - below_t) + (at_v - n))) AS two_u, SUM(n) AS n\n"
+              "FROM (SELECT t, n,\n"
+              "             SUM(n) OVER (ORDER BY v) - SUM(n) OVER (PARTITION BY v) AS below_all,\n"
+              "             SUM(n) OVER (PARTITION BY t ORDER BY v) - n AS below_t,\n"
+              "             SUM(n) OVER (PARTITION BY v) AS at_v\n"
+              "      FROM (SELECT ");
+    ident(&b, d, col);
+    puts_(&b, " AS v, ");
+    ident(&b, d, target);
+    puts_(&b, " AS t, COUNT(*) AS n\n           ");
+    from(&b, d, table, query_sql);
+    puts_(&b, "\n            WHERE NOT (");
+    missing_test(&b, d, rb, col);
+    puts_(&b, ") AND NOT (");
+    missing_test(&b, d, rb, target);
+    puts_(&b, ")\n            GROUP BY ");
+    ident(&b, d, col);
+    puts_(&b, ", ");
+    ident(&b, d, target);
+    puts_(&b, ") AS ");
+    ident(&b, d, "levels");
+    puts_(&b, ") AS ");
+    ident(&b, d, "ranked");
+    puts_(&b, "\nGROUP BY t");
+    return b.p;
+}
+
+char *kn_sql_missing_query(kn_arena *a, kn_sql_dialect d, const kn_rulebook *rb, const char *table,
+                           const char *query_sql, const char *col, const char *target)
+{
+    sbuf b = {a, NULL, 0, 0};
+    puts_(&b, "SELECT ");
+    if (target) {
+        ident(&b, d, target);
+        puts_(&b, " AS t, ");
+    }
+    puts_(&b, "SUM(CASE WHEN ");
+    missing_test(&b, d, rb, col);
+    puts_(&b, " THEN 1 ELSE 0 END) AS n_missing, COUNT(*) AS n");
+    from(&b, d, table, query_sql);
+    if (target) {
+        puts_(&b, " GROUP BY ");
+        ident(&b, d, target);
+    }
+    return b.p;
+}
+
+/* The condition of a late value: col later than the moment (or not
+ * earlier, strict), neither missing. */
+static void late_test(sbuf *b, kn_sql_dialect d, const kn_rulebook *rb, const char *col, const char *moment)
+{
+    ident(b, d, col);
+    puts_(b, rb->strict_moment ? " >= " : " > ");
+    ident(b, d, moment);
+    puts_(b, " AND NOT (");
+    missing_test(b, d, rb, col);
+    puts_(b, ") AND NOT (");
+    missing_test(b, d, rb, moment);
+    puts_(b, ")");
+}
+
+char *kn_sql_late_query(kn_arena *a, kn_sql_dialect d, const kn_rulebook *rb, const char *table,
+                        const char *query_sql, const char *col, const char *moment)
+{
+    sbuf b = {a, NULL, 0, 0};
+    puts_(&b, "SELECT COUNT(*) AS n");
+    from(&b, d, table, query_sql);
+    puts_(&b, " WHERE ");
+    late_test(&b, d, rb, col, moment);
+    return b.p;
+}
+
+char *kn_sql_late_example(kn_arena *a, kn_sql_dialect d, const kn_rulebook *rb, const char *table,
+                          const char *query_sql, const char *col, const char *moment, const char *key)
+{
+    sbuf b = {a, NULL, 0, 0};
+    puts_(&b, "SELECT ");
+    ident(&b, d, col);
+    puts_(&b, " AS v, ");
+    ident(&b, d, moment);
+    puts_(&b, " AS m");
+    if (key) {
+        puts_(&b, ", ");
+        ident(&b, d, key);
+        puts_(&b, " AS k");
+    }
+    from(&b, d, table, query_sql);
+    puts_(&b, " WHERE ");
+    late_test(&b, d, rb, col, moment);
+    puts_(&b, " ORDER BY ");
+    ident(&b, d, key ? key : col);
+    limit(&b, d, 1);
+    return b.p;
+}
+
+char *kn_sql_key_of_value(kn_arena *a, kn_sql_dialect d, const char *table, const char *query_sql, const char *col,
+                          const char *key, const char *value)
+{
+    sbuf b = {a, NULL, 0, 0};
+    puts_(&b, "SELECT MIN(");
+    ident(&b, d, key);
+    puts_(&b, ") AS k");
+    from(&b, d, table, query_sql);
+    puts_(&b, " WHERE ");
+    as_text(&b, d, col);
+    puts_(&b, " = ");
+    literal(&b, d, value);
+    return b.p;
 }
 
 /* ---- the plan --------------------------------------------------------------- */
@@ -266,8 +505,15 @@ static char *overlap_sql(plan_ctx *c, const kn_rulebook *rb, const char *split, 
     puts_(&b, "SELECT SUM(n_train) AS train_rows, SUM(n_test) AS test_rows,\n"
               "       SUM(CASE WHEN n_train > 0 AND n_test > 0 THEN 1 ELSE 0 END) AS shared_keys,\n"
               "       SUM(CASE WHEN n_train > 0 AND n_test > 0 THEN n_train ELSE 0 END) AS train_rows_shared,\n"
-              "       SUM(CASE WHEN n_train > 0 AND n_test > 0 THEN n_test ELSE 0 END) AS test_rows_shared\n"
-              "FROM (SELECT ");
+              "       SUM(CASE WHEN n_train > 0 AND n_test > 0 THEN n_test ELSE 0 END) AS test_rows_shared");
+    if (skip_missing) {
+        puts_(&b, ",\n       MIN(CASE WHEN n_train > 0 AND n_test > 0 THEN k END) AS first_key");
+    }
+    puts_(&b, "\nFROM (SELECT ");
+    if (skip_missing) {
+        ident(&b, c->d, cols[0]);
+        puts_(&b, " AS k, ");
+    }
     side_sum(&b, c->d, split, false);
     puts_(&b, " AS n_train,\n             ");
     side_sum(&b, c->d, split, true);
@@ -339,12 +585,59 @@ void kn_sql_session(kn_arena *a, kn_sql_dialect d, kn_sql_plan *out)
     out->skipped = NULL;
 }
 
+char *kn_sql_overlap_query(kn_arena *a, kn_sql_dialect d, const kn_rulebook *rb, const char *table,
+                           const char *query_sql, const char *split, const char *const *cols, size_t n, bool entity)
+{
+    plan_ctx c = {a, d, table, query_sql, NULL};
+    return overlap_sql(&c, rb, split, cols, n, entity);
+}
+
+char *kn_sql_qi_query(kn_arena *a, kn_sql_dialect d, const char *table, const char *query_sql,
+                      const char *const *cols, size_t n)
+{
+    sbuf q = {a, NULL, 0, 0};
+    puts_(&q, "SELECT group_size, COUNT(*) AS n_groups\nFROM (SELECT COUNT(*) AS group_size\n     ");
+    from(&q, d, table, query_sql);
+    puts_(&q, "\n      GROUP BY ");
+    for (size_t i = 0; i < n; i++) {
+        if (i) {
+            puts_(&q, ", ");
+        }
+        ident(&q, d, cols[i]);
+    }
+    puts_(&q, ") AS ");
+    ident(&q, d, "qi_groups");
+    puts_(&q, "\nGROUP BY group_size ORDER BY group_size");
+    return q.p;
+}
+
+/* The column a database finding names a row by: the entity, else the
+ * first identifier. */
+const kn_column *kn_sql_key_column(const kn_schema *s, bool (*present)(void *ctx, const kn_column *k), void *ctx)
+{
+    const kn_column *e = usable(KN_REF_COLUMN(s->prediction.entity));
+    if (e && (!present || present(ctx, e))) {
+        return e;
+    }
+    for (size_t i = 0; i < s->n_columns; i++) {
+        const kn_column *k = usable(s->columns[i]);
+        if (k && k->role == KN_ROLE_IDENTIFIER && (!present || present(ctx, k))) {
+            return k;
+        }
+    }
+    return NULL;
+}
+
+static bool is_temporal_or_number(kn_value_type t)
+{
+    return t == KN_TYPE_NUMBER || t == KN_TYPE_TIMESTAMP || t == KN_TYPE_DATE;
+}
+
 void kn_sql_make(kn_arena *a, const kn_schema *s, const kn_rulebook *rb, const char *table, const char *query_sql,
-                 kn_sql_dialect d, kn_sql_plan *out)
+                 kn_sql_dialect d, unsigned long long max_groups, kn_sql_plan *out)
 {
     plan_ctx c = {a, d, table, query_sql, kn_vec_new(a, sizeof(kn_sql_query))};
     kn_vec *skipped = kn_vec_new(a, sizeof(const char *));
-    sbuf b;
 
     /* The session: read-only, with a statement timeout. */
     session(&c);
@@ -352,16 +645,13 @@ void kn_sql_make(kn_arena *a, const kn_schema *s, const kn_rulebook *rb, const c
     add(&c, KN_SQLQ_COLUMNS, "column-not-in-schema, column-not-in-data", NULL,
         "the table's column names, no rows: compared with the schema's columns",
         kn_sql_columns_query(a, d, table, query_sql));
-
-    b = (sbuf){a, NULL, 0, 0};
-    puts_(&b, "SELECT COUNT(*) AS n_rows");
-    from(&b, d, table, query_sql);
-    add(&c, KN_SQLQ_ROWS, "", NULL, "rows in the table (every rule)", b.p);
+    add(&c, KN_SQLQ_ROWS, "", NULL, "rows in the table (every rule)", kn_sql_count_query(a, d, table, query_sql));
 
     const kn_column *target = usable(KN_REF_COLUMN(s->prediction.target));
     const kn_column *entity = usable(KN_REF_COLUMN(s->prediction.entity));
     const kn_column *moment = usable(KN_REF_COLUMN(s->prediction.moment_column));
     const kn_column *split = s->split.present ? usable(KN_REF_COLUMN(s->split.column)) : NULL;
+    const kn_column *key = kn_sql_key_column(s, NULL, NULL);
 
     for (size_t i = 0; i < s->n_columns; i++) {
         const kn_column *k = s->columns[i];
@@ -375,25 +665,22 @@ void kn_sql_make(kn_arena *a, const kn_schema *s, const kn_rulebook *rb, const c
     }
 
     if (target) {
-        b = (sbuf){a, NULL, 0, 0};
-        puts_(&b, "SELECT ");
-        ident(&b, d, target->name);
-        puts_(&b, " AS v, COUNT(*) AS n");
-        from(&b, d, table, query_sql);
-        puts_(&b, " GROUP BY ");
-        ident(&b, d, target->name);
-        add(&c, KN_SQLQ_VALUES, "lone-feature-separates, missingness-predicts, identifier-segment-predicts", target,
-            kn_printf(a, "the target '%s': rows per class (a binary target gives the positive and negative class)",
-                      esc(a, target->name)),
-            b.p);
+        add(&c, KN_SQLQ_VALUES, "value-mismatch, lone-feature-separates, missingness-predicts, identifier-segment-predicts",
+            target,
+            kn_printf(a, "the target '%s': rows per value, at most %llu (a binary target gives the positive and "
+                         "negative class)",
+                      esc(a, target->name), max_groups),
+            kn_sql_groups_query(a, d, table, query_sql, target->name, NULL, max_groups + 1, 0, 0));
     }
 
-    /* One GROUP BY per column: its distinct values (value-mismatch and the
-     * missing count are decided from them in C, with the CSV path's
-     * parsers) and, for a feature, the rows of each target class per value:
-     * the contingency table behind U, and the positive and negative counts
-     * per distinct value behind the exact AUC, missing values included
-     * (missingness-predicts). */
+    /* One GROUP BY per column, at most max_groups rows read: its distinct
+     * values (value-mismatch and the missing count are decided from them
+     * in C, with the CSV path's parsers) and, for a feature, the rows of
+     * each target class per value: the contingency table behind U, the
+     * positive and negative counts per distinct value behind the exact
+     * AUC, missing values included (missingness-predicts).  A column with
+     * more groups is finished by the engine (rank sum, missing rows per
+     * class), its values streamed for value-mismatch. */
     for (size_t i = 0; i < s->n_columns; i++) {
         const kn_column *k = usable(s->columns[i]);
         if (!k || k == target) {
@@ -406,42 +693,51 @@ void kn_sql_make(kn_arena *a, const kn_schema *s, const kn_rulebook *rb, const c
         if (!typed && !with_target) {
             continue;
         }
-        b = (sbuf){a, NULL, 0, 0};
-        puts_(&b, "SELECT ");
-        ident(&b, d, k->name);
-        puts_(&b, " AS v");
-        if (with_target) {
-            puts_(&b, ", ");
-            ident(&b, d, target->name);
-            puts_(&b, " AS t");
-        }
-        puts_(&b, ", COUNT(*) AS n");
-        from(&b, d, table, query_sql);
-        puts_(&b, " GROUP BY ");
-        ident(&b, d, k->name);
-        if (with_target) {
-            puts_(&b, ", ");
-            ident(&b, d, target->name);
+        const char *t_name = with_target ? target->name : NULL;
+        if (ident_col && target) {
+            add(&c, KN_SQLQ_CONTINGENCY, typed ? "value-mismatch, identifier-segment-predicts" : "identifier-segment-predicts",
+                k,
+                kn_printf(a,
+                          "identifier '%s' by target class, segments cut in C; on a table of more than %llu rows, "
+                          "a random sample of about %llu of them (WHERE <random in [0, 1)> < %llu / rows)",
+                          esc(a, k->name), max_groups, max_groups, max_groups),
+                kn_sql_groups_query(a, d, table, query_sql, k->name, t_name, max_groups + 1, 0, 0));
+            continue;
         }
         const char *rules;
         const char *what;
         if (feature && target) {
             rules = typed ? "value-mismatch, lone-feature-separates, missingness-predicts"
                           : "lone-feature-separates, missingness-predicts";
-            what = kn_printf(a, "'%s' (%s) by target class: per distinct value, positive and negative rows", esc(a, k->name),
-                             type_name(k->type));
-        } else if (ident_col && target) {
-            rules = typed ? "value-mismatch, identifier-segment-predicts" : "identifier-segment-predicts";
-            what = kn_printf(a,
-                             "identifier '%s' by target class: segments are cut in C; one row per distinct "
-                             "identifier, the client stops after --max-rows of them",
-                             esc(a, k->name));
+            what = kn_printf(a, "'%s' (%s) by target class: per distinct value, positive and negative rows (at most %llu)",
+                             esc(a, k->name), type_name(k->type), max_groups);
         } else {
             rules = "value-mismatch";
-            what = kn_printf(a, "'%s' (%s): distinct values and their rows, parsed in C", esc(a, k->name),
-                             type_name(k->type));
+            what = kn_printf(a, "'%s' (%s): distinct values and their rows, parsed in C (at most %llu)", esc(a, k->name),
+                             type_name(k->type), max_groups);
         }
-        add(&c, with_target ? KN_SQLQ_CONTINGENCY : KN_SQLQ_VALUES, rules, k, what, b.p);
+        add(&c, with_target ? KN_SQLQ_CONTINGENCY : KN_SQLQ_VALUES, rules, k, what,
+            kn_sql_groups_query(a, d, table, query_sql, k->name, t_name, max_groups + 1, 0, 0));
+        if (feature && target) {
+            if (is_temporal_or_number(k->type)) {
+                add(&c, KN_SQLQ_RANK_SUM, "lone-feature-separates", k,
+                    kn_printf(a, "when '%s' has more than %llu groups and a numeric or temporal SQL type: the "
+                                 "Mann-Whitney rank sum per target class, by the engine",
+                              esc(a, k->name), max_groups),
+                    kn_sql_rank_sum_query(a, d, rb, table, query_sql, k->name, target->name));
+            }
+            add(&c, KN_SQLQ_MISSING, "missingness-predicts", k,
+                kn_printf(a, "when '%s' has more than %llu groups: its missing rows per target class", esc(a, k->name),
+                          max_groups),
+                kn_sql_missing_query(a, d, rb, table, query_sql, k->name, target->name));
+        }
+        if (typed) {
+            add(&c, KN_SQLQ_VALUES, "value-mismatch", k,
+                kn_printf(a, "when '%s' has more than %llu groups and a character SQL type: every distinct value, "
+                             "streamed and parsed in C",
+                          esc(a, k->name), max_groups),
+                kn_sql_groups_query(a, d, table, query_sql, k->name, NULL, 0, 0, 0));
+        }
     }
 
     /* timestamp-after-moment: every timed feature against the moment. */
@@ -451,18 +747,15 @@ void kn_sql_make(kn_arena *a, const kn_schema *s, const kn_rulebook *rb, const c
             (k->type != KN_TYPE_TIMESTAMP && k->type != KN_TYPE_DATE)) {
             continue;
         }
-        b = (sbuf){a, NULL, 0, 0};
-        puts_(&b, "SELECT COUNT(*) AS n");
-        from(&b, d, table, query_sql);
-        puts_(&b, " WHERE ");
-        ident(&b, d, k->name);
-        puts_(&b, rb->strict_moment ? " >= " : " > ");
-        ident(&b, d, moment->name);
         add(&c, KN_SQLQ_LATE, "timestamp-after-moment", k,
             kn_printf(a, "rows where '%s' is %s the moment column '%s' (compared by the engine: typed columns, or ISO 8601 "
                          "text in one zone)",
                       esc(a, k->name), rb->strict_moment ? "at or after" : "after", esc(a, moment->name)),
-            b.p);
+            kn_sql_late_query(a, d, rb, table, query_sql, k->name, moment->name));
+        add(&c, KN_SQLQ_LATE_EXAMPLE, "timestamp-after-moment", k,
+            key ? kn_printf(a, "when there are such rows: the one with the least '%s'", esc(a, key->name))
+                : "when there are such rows: one of them",
+            kn_sql_late_example(a, d, rb, table, query_sql, k->name, moment->name, key ? key->name : NULL));
     }
 
     /* rows-shared-across-split and entity-in-both-splits. */
@@ -479,42 +772,34 @@ void kn_sql_make(kn_arena *a, const kn_schema *s, const kn_rulebook *rb, const c
             add(&c, KN_SQLQ_OVERLAP, "rows-shared-across-split", split,
                 kn_printf(a, "identical feature rows (%zu feature%s) on both sides of the split '%s'", nf,
                           nf == 1 ? "" : "s", esc(a, split->name)),
-                overlap_sql(&c, rb, split->name, feats, nf, false));
+                kn_sql_overlap_query(a, d, rb, table, query_sql, split->name, feats, nf, false));
         }
         if (entity) {
             add(&c, KN_SQLQ_OVERLAP, "entity-in-both-splits", entity,
                 kn_printf(a, "entities '%s' with rows on both sides of the split '%s'", esc(a, entity->name),
                           esc(a, split->name)),
-                overlap_sql(&c, rb, split->name, &entity->name, 1, true));
+                kn_sql_overlap_query(a, d, rb, table, query_sql, split->name, &entity->name, 1, true));
         }
     }
 
     /* small-quasi-identifier-groups: the sizes of the groups. */
-    b = (sbuf){a, NULL, 0, 0};
+    const char **qis = kn_alloc_array(a, s->n_columns + 1, sizeof *qis);
     size_t nq = 0;
     sbuf names = {a, NULL, 0, 0};
     for (size_t i = 0; i < s->n_columns; i++) {
         const kn_column *k = usable(s->columns[i]);
         if (k && k->quasi_identifier == 1) {
-            if (nq++) {
-                puts_(&b, ", ");
+            if (nq) {
                 puts_(&names, ", ");
             }
-            ident(&b, d, k->name);
+            qis[nq++] = k->name;
             puts_(&names, esc(a, k->name));
         }
     }
     if (nq) {
-        sbuf q = {a, NULL, 0, 0};
-        puts_(&q, "SELECT group_size, COUNT(*) AS n_groups\nFROM (SELECT COUNT(*) AS group_size\n     ");
-        from(&q, d, table, query_sql);
-        puts_(&q, "\n      GROUP BY ");
-        puts_(&q, b.p);
-        puts_(&q, ") AS ");
-        ident(&q, d, "qi_groups");
-        puts_(&q, "\nGROUP BY group_size ORDER BY group_size");
         add(&c, KN_SQLQ_GROUPS, "small-quasi-identifier-groups", NULL,
-            kn_printf(a, "how many groups of each size the quasi-identifiers (%s) form", names.p), q.p);
+            kn_printf(a, "how many groups of each size the quasi-identifiers (%s) form", names.p),
+            kn_sql_qi_query(a, d, table, query_sql, qis, nq));
     }
 
     out->n = c.q->len;

@@ -45,7 +45,16 @@ typedef enum kn_sql_kind {
     KN_SQLQ_LATE,       /* one row: rows whose value is later than the moment */
     KN_SQLQ_OVERLAP,    /* one row: train, test, shared keys, train and test rows shared */
     KN_SQLQ_GROUPS,     /* rows (size, groups): quasi-identifier group sizes */
+    KN_SQLQ_RANK_SUM,   /* rows (t, two_u, n): the engine's rank sum per target value */
+    KN_SQLQ_MISSING,    /* rows (t, missing, n): missing rows per target value */
+    KN_SQLQ_LATE_EXAMPLE, /* at most one row (v, m[, k]): a late value, its moment and key */
 } kn_sql_kind;
+
+/* Rows of one aggregate query the client reads by default (--max-rows in
+ * a database): a column with more groups (distinct values, or values and
+ * target classes) is finished by the engine, and an identifier of a
+ * larger table is read from a random sample of about this many rows. */
+#define KN_SQL_MAX_GROUPS 20000
 
 typedef struct kn_sql_query {
     kn_sql_kind kind;
@@ -67,7 +76,66 @@ typedef struct kn_sql_plan {
  * (the text of --query FILE.sql) the rows are those of that query, used as
  * a derived table. */
 void kn_sql_make(kn_arena *a, const kn_schema *s, const kn_rulebook *rb, const char *table, const char *query_sql,
-                 kn_sql_dialect d, kn_sql_plan *out);
+                 kn_sql_dialect d, unsigned long long max_groups, kn_sql_plan *out);
+
+/* The queries one by one (the plan above is made of them; the ODBC path
+ * runs them on the columns the table has).  Every column name is quoted;
+ * table and query_sql as for kn_sql_make. */
+
+/* SELECT COUNT(*). */
+char *kn_sql_count_query(kn_arena *a, kn_sql_dialect d, const char *table, const char *query_sql);
+
+/* Rows (v[, t], n): the distinct values of col (with target: of col and
+ * the target) and their rows, at most max_rows of them (0: all).  With
+ * 0 < sample < 1, of the rows the engine keeps with that probability,
+ * drawn from seed where the dialect allows. */
+char *kn_sql_groups_query(kn_arena *a, kn_sql_dialect d, const char *table, const char *query_sql, const char *col,
+                          const char *target, unsigned long long max_rows, double sample, uint64_t seed);
+
+/* The statement that seeds the engine's random() before a sample
+ * (PostgreSQL's setseed), or NULL when the dialect seeds in the query or
+ * cannot. */
+char *kn_sql_seed_query(kn_arena *a, kn_sql_dialect d, uint64_t seed);
+
+/* Rows (t, two_u, n): for each target value t, twice the Mann-Whitney U
+ * of col with t as the positive class against every other value, and its
+ * rows; rows where col or the target is missing are left out.  Window
+ * functions (SQL:2003). */
+char *kn_sql_rank_sum_query(kn_arena *a, kn_sql_dialect d, const kn_rulebook *rb, const char *table,
+                            const char *query_sql, const char *col, const char *target);
+
+/* Rows ([t,] n_missing, n): rows where col is missing, per target value
+ * (target NULL: one row). */
+char *kn_sql_missing_query(kn_arena *a, kn_sql_dialect d, const kn_rulebook *rb, const char *table,
+                           const char *query_sql, const char *col, const char *target);
+
+/* One row (n): rows where col is later than the moment (not earlier with
+ * strict_moment); and at most one such row (v, m[, k]), the one with the
+ * least key (NULL key: the least value). */
+char *kn_sql_late_query(kn_arena *a, kn_sql_dialect d, const kn_rulebook *rb, const char *table,
+                        const char *query_sql, const char *col, const char *moment);
+char *kn_sql_late_example(kn_arena *a, kn_sql_dialect d, const kn_rulebook *rb, const char *table,
+                          const char *query_sql, const char *col, const char *moment, const char *key);
+
+/* One row (k): the least key of the rows whose col, as text, is value. */
+char *kn_sql_key_of_value(kn_arena *a, kn_sql_dialect d, const char *table, const char *query_sql, const char *col,
+                          const char *key, const char *value);
+
+/* One row (train_rows, test_rows, shared_keys, train_rows_shared,
+ * test_rows_shared[, first_key]): rows grouped by cols[0..n) on the two
+ * sides of the split; with entity, cols[0] is the entity, rows where it is
+ * missing are left out and the least shared entity comes back too. */
+char *kn_sql_overlap_query(kn_arena *a, kn_sql_dialect d, const kn_rulebook *rb, const char *table,
+                           const char *query_sql, const char *split, const char *const *cols, size_t n, bool entity);
+
+/* Rows (group_size, n_groups): how many groups of each size cols[0..n)
+ * form. */
+char *kn_sql_qi_query(kn_arena *a, kn_sql_dialect d, const char *table, const char *query_sql,
+                      const char *const *cols, size_t n);
+
+/* The column that names a row in a database finding: the entity, else
+ * the first identifier, among the columns present (present NULL: all). */
+const kn_column *kn_sql_key_column(const kn_schema *s, bool (*present)(void *ctx, const kn_column *k), void *ctx);
 
 /* The query of the table's column names (no rows). */
 char *kn_sql_columns_query(kn_arena *a, kn_sql_dialect d, const char *table, const char *query_sql);

@@ -234,8 +234,7 @@ static uint32_t order_key32(float v)
             neg_g += 1 - pos_of((v)[j_]);                                    \
             j_++;                                                            \
         }                                                                    \
-        (two_u) += pos_g * (2 * (neg_below) + neg_g);                        \
-        (neg_below) += neg_g;                                                \
+        kn_rank_step(&(two_u), &(neg_below), pos_g, neg_g);                  \
         i_ = j_;                                                             \
     }
 
@@ -289,8 +288,7 @@ static bool auc_of_floats(kn_arena *a, const double *score, const bool *positive
         }
         uint64_t two_u = 0, neg_below = 0;
         TWO_U(from, m, PACKED_KEY, PACKED_POS, two_u, neg_below)
-        out->auc = (double)two_u / (2.0 * (double)out->n_pos * (double)out->n_neg);
-        out->separation = out->auc >= 0.5 ? out->auc : 1.0 - out->auc;
+        kn_auc_finish(two_u, out->n_pos, out->n_neg, out);
     }
     kn_defer_run(a, d);
     return true;
@@ -346,9 +344,69 @@ bool kn_stats_auc(kn_arena *a, const double *score, const bool *positive, size_t
 #define SCORED_POS(e) ((e).positive)
     TWO_U(v, m, SCORED_KEY, SCORED_POS, two_u, neg_below)
     kn_defer_run(a, d);
-    out->auc = (double)two_u / (2.0 * (double)out->n_pos * (double)out->n_neg);
+    return kn_auc_finish(two_u, out->n_pos, out->n_neg, out);
+}
+
+bool kn_auc_finish(uint64_t two_u, uint64_t n_pos, uint64_t n_neg, kn_auc *out)
+{
+    out->n_pos = (size_t)n_pos;
+    out->n_neg = (size_t)n_neg;
+    out->auc = out->separation = 0.5;
+    if (n_pos == 0 || n_neg == 0) {
+        return false;
+    }
+    out->auc = (double)two_u / (2.0 * (double)n_pos * (double)n_neg);
     out->separation = out->auc >= 0.5 ? out->auc : 1.0 - out->auc;
     return true;
+}
+
+typedef struct level {
+    uint64_t key, pos, neg;
+} level;
+
+static int by_level_key(const void *pa, const void *pb)
+{
+    uint64_t a = ((const level *)pa)->key, b = ((const level *)pb)->key;
+    return (a > b) - (a < b);
+}
+
+/* Distinct scores with their class counts: sorted, equal keys merged into
+ * one tie group, then the same rank sum as the rows of a sample. */
+bool kn_stats_auc_levels(kn_arena *a, const double *score, const uint64_t *pos, const uint64_t *neg, size_t n,
+                         kn_auc *out)
+{
+    memset(out, 0, sizeof *out);
+    out->auc = out->separation = 0.5;
+    kn_defer *d = kn_arena_defer(a, free, NULL);
+    level *v = n ? kn_xrealloc(a, NULL, n * sizeof *v) : NULL;
+    d->ptr = v;
+    size_t m = 0;
+    for (size_t i = 0; i < n; i++) {
+        if (isnan(score[i]) || (pos[i] | neg[i]) == 0) {
+            continue;
+        }
+        v[m].key = order_key(score[i]);
+        v[m].pos = pos[i];
+        v[m].neg = neg[i];
+        m++;
+    }
+    qsort(v, m, sizeof *v, by_level_key);
+    uint64_t two_u = 0, neg_below = 0, n_pos = 0, n_neg = 0;
+    for (size_t i = 0; i < m;) {
+        uint64_t pos_g = 0, neg_g = 0;
+        size_t j = i;
+        while (j < m && v[j].key == v[i].key) {
+            pos_g += v[j].pos;
+            neg_g += v[j].neg;
+            j++;
+        }
+        kn_rank_step(&two_u, &neg_below, pos_g, neg_g);
+        n_pos += pos_g;
+        n_neg += neg_g;
+        i = j;
+    }
+    kn_defer_run(a, d);
+    return kn_auc_finish(two_u, n_pos, n_neg, out);
 }
 
 /* ---- uncertainty coefficient ---------------------------------------------- */
@@ -370,36 +428,62 @@ static int by_u64(const void *pa, const void *pb)
 bool kn_uncertainty_ids(kn_arena *a, const uint32_t *x, const uint32_t *y, size_t n, size_t nx, size_t ny,
                         kn_uncertainty *u)
 {
+    return kn_uncertainty_weighted(a, x, y, NULL, n, nx, ny, u);
+}
+
+static int by_first_u64(const void *pa, const void *pb)
+{
+    uint64_t a = ((const uint64_t *)pa)[0], b = ((const uint64_t *)pb)[0];
+    return (a > b) - (a < b);
+}
+
+bool kn_uncertainty_weighted(kn_arena *a, const uint32_t *x, const uint32_t *y, const uint64_t *w, size_t n,
+                             size_t nx, size_t ny, kn_uncertainty *u)
+{
     memset(u, 0, sizeof *u);
     if (nx == 0 || ny == 0) {
         return false;
     }
     kn_defer *d = kn_arena_defer(a, free, NULL);
     size_t cells = nx <= KN_UNCERTAINTY_TABLE_MAX / ny ? nx * ny : 0;
-    size_t words = nx + ny + (cells ? cells : n);
+    /* sorted pairs: the pair, then (weighted) its rows */
+    size_t stride = w ? 2 : 1;
+    if (!cells && n > (SIZE_MAX / sizeof(uint64_t) - nx - ny) / stride) {
+        kn_arena_oom(a);
+    }
+    size_t words = nx + ny + (cells ? cells : n * stride);
     uint64_t *scratch = kn_xrealloc(a, NULL, words * sizeof *scratch);
     d->ptr = scratch;
     memset(scratch, 0, (nx + ny + cells) * sizeof *scratch);
     uint64_t *cx = scratch, *cy = scratch + nx, *table = scratch + nx + ny;
-    size_t m = 0;
+    size_t m = 0;      /* pairs kept */
+    uint64_t rows = 0; /* rows they stand for */
     for (size_t i = 0; i < n; i++) {
         if (x[i] == 0 || y[i] == 0 || x[i] >= nx || y[i] >= ny) {
             continue;
         }
-        cx[x[i]]++;
-        cy[y[i]]++;
+        uint64_t wi = w ? w[i] : 1;
+        if (wi == 0) {
+            continue;
+        }
+        cx[x[i]] += wi;
+        cy[y[i]] += wi;
         if (cells) {
-            table[(size_t)x[i] * ny + y[i]]++;
+            table[(size_t)x[i] * ny + y[i]] += wi;
         } else {
-            table[m] = (uint64_t)x[i] << 32 | y[i];
+            table[m * stride] = (uint64_t)x[i] << 32 | y[i];
+            if (w) {
+                table[m * stride + 1] = wi;
+            }
         }
         m++;
+        rows += wi;
     }
     if (m == 0) {
         kn_defer_run(a, d);
         return false;
     }
-    double dn = (double)m, h_y = 0, mi = 0;
+    double dn = (double)rows, h_y = 0, mi = 0;
     for (size_t j = 0; j < ny; j++) {
         if (cy[j]) {
             double p = (double)cy[j] / dn;
@@ -416,7 +500,7 @@ bool kn_uncertainty_ids(kn_arena *a, const uint32_t *x, const uint32_t *y, size_
                 mi += mi_term((double)table[c], dn, (double)cx[c / ny], (double)cy[c % ny]);
             }
         }
-    } else {
+    } else if (!w) {
         qsort(table, m, sizeof *table, by_u64);
         for (size_t i = 0; i < m;) {
             size_t j = i;
@@ -426,9 +510,22 @@ bool kn_uncertainty_ids(kn_arena *a, const uint32_t *x, const uint32_t *y, size_
             mi += mi_term((double)(j - i), dn, (double)cx[table[i] >> 32], (double)cy[table[i] & UINT32_MAX]);
             i = j;
         }
+    } else {
+        qsort(table, m, 2 * sizeof *table, by_first_u64);
+        for (size_t i = 0; i < m;) {
+            size_t j = i;
+            uint64_t nxy = 0;
+            while (j < m && table[2 * j] == table[2 * i]) {
+                nxy += table[2 * j + 1];
+                j++;
+            }
+            uint64_t key = table[2 * i];
+            mi += mi_term((double)nxy, dn, (double)cx[key >> 32], (double)cy[key & UINT32_MAX]);
+            i = j;
+        }
     }
     kn_defer_run(a, d);
-    u->n = m;
+    u->n = (size_t)rows;
     kn_uncertainty_set(u, h_y, mi);
     return true;
 }
@@ -439,27 +536,73 @@ static int by_double(const void *pa, const void *pb)
     return (a > b) - (a < b);
 }
 
+typedef struct weighed {
+    double v;
+    uint64_t w;
+} weighed;
+
+static int by_weighed(const void *pa, const void *pb)
+{
+    double a = ((const weighed *)pa)->v, b = ((const weighed *)pb)->v;
+    return (a > b) - (a < b);
+}
+
 size_t kn_quantile_bins(kn_arena *a, const double *v, size_t n, size_t bins, uint32_t *code)
+{
+    return kn_quantile_bins_weighted(a, v, NULL, n, bins, code);
+}
+
+/* Each value stands for w[i] rows (1 without w): the value at rank r of
+ * the rows is the one whose run of rows, in sorted order, holds r. */
+size_t kn_quantile_bins_weighted(kn_arena *a, const double *v, const uint64_t *w, size_t n, size_t bins,
+                                 uint32_t *code)
 {
     if (bins < 1) {
         bins = 1;
     }
     kn_defer *d = kn_arena_defer(a, free, NULL);
-    double *sorted = kn_xrealloc(a, NULL, (n ? n : 1) * sizeof *sorted + bins * sizeof(double));
+    size_t each = w ? sizeof(weighed) : sizeof(double);
+    double *sorted = kn_xrealloc(a, NULL, (n ? n : 1) * each + bins * sizeof(double));
     d->ptr = sorted;
-    double *cut = sorted + (n ? n : 1);
+    double *cut = (double *)(void *)((char *)sorted + (n ? n : 1) * each);
+    weighed *ws = (weighed *)(void *)sorted;
     size_t m = 0;
+    uint64_t rows = 0;
     for (size_t i = 0; i < n; i++) {
-        if (!isnan(v[i])) {
+        if (isnan(v[i]) || (w && w[i] == 0)) {
+            continue;
+        }
+        if (w) {
+            ws[m].v = v[i];
+            ws[m++].w = w[i];
+            rows += w[i];
+        } else {
             sorted[m++] = v[i];
         }
     }
-    qsort(sorted, m, sizeof *sorted, by_double);
-    /* Distinct cut points, ascending. */
-    size_t n_cut = 0;
+    if (w) {
+        qsort(ws, m, sizeof *ws, by_weighed);
+    } else {
+        qsort(sorted, m, sizeof *sorted, by_double);
+        rows = m;
+    }
+    /* Distinct cut points, ascending: the values at ranks rows * b / bins. */
+    size_t n_cut = 0, at = 0;
+    uint64_t below = 0; /* rows before entry at */
+    double lowest = m ? (w ? ws[0].v : sorted[0]) : 0;
     for (size_t b = 1; b < bins && m; b++) {
-        double c = sorted[(m * b) / bins];
-        if (c > sorted[0] && (n_cut == 0 || c > cut[n_cut - 1])) {
+        uint64_t rank = rows / bins * b + rows % bins * b / bins; /* rows * b / bins without overflow */
+        double c;
+        if (w) {
+            while (at < m && below + ws[at].w <= rank) {
+                below += ws[at].w;
+                at++;
+            }
+            c = ws[at < m ? at : m - 1].v;
+        } else {
+            c = sorted[rank];
+        }
+        if (c > lowest && (n_cut == 0 || c > cut[n_cut - 1])) {
             cut[n_cut++] = c;
         }
     }
@@ -507,9 +650,16 @@ void kn_uncertainty_set(kn_uncertainty *out, double h_y, double mi)
 
 /* ---- k-anonymity ------------------------------------------------------- */
 
+struct kn_group_sizes {
+    size_t size, groups;
+};
+
 struct kn_groups {
     u64map map;
     size_t rows;
+    /* a database's histogram: groups of each size (kn_groups_add_sizes) */
+    struct kn_group_sizes *sizes;
+    size_t n_sizes, cap_sizes;
 };
 
 kn_groups *kn_groups_new(kn_arena *a)
@@ -534,24 +684,47 @@ void kn_groups_add(kn_groups *g, uint64_t tuple_hash, uint64_t line)
 void kn_groups_kanon(const kn_groups *g, size_t k, kn_kanon *out)
 {
     memset(out, 0, sizeof *out);
-    out->rows = g->rows;
     for (size_t i = 0; i < g->map.cap; i++) {
         const slot *s = &g->map.slots[i];
-        if (!slot_used(s)) {
-            continue;
-        }
-        size_t size = (size_t)s->a;
-        out->groups++;
-        if (out->smallest == 0 || size < out->smallest ||
-            (size == out->smallest && s->line < out->smallest_line)) {
-            out->smallest = size;
-            out->smallest_line = s->line;
-        }
-        if (size < k) {
-            out->groups_below_k++;
-            out->rows_below_k += size;
+        if (slot_used(s)) {
+            kn_kanon_add(out, k, (size_t)s->a, 1, s->line);
         }
     }
+    for (size_t i = 0; i < g->n_sizes; i++) {
+        kn_kanon_add(out, k, g->sizes[i].size, g->sizes[i].groups, 0);
+    }
+}
+
+void kn_kanon_add(kn_kanon *out, size_t k, size_t size, size_t groups, uint64_t line)
+{
+    if (size == 0 || groups == 0) {
+        return;
+    }
+    out->rows += size * groups;
+    out->groups += groups;
+    if (out->smallest == 0 || size < out->smallest || (size == out->smallest && line < out->smallest_line)) {
+        out->smallest = size;
+        out->smallest_line = line;
+    }
+    if (size < k) {
+        out->groups_below_k += groups;
+        out->rows_below_k += size * groups;
+    }
+}
+
+void kn_groups_add_sizes(kn_groups *g, size_t size, size_t groups)
+{
+    if (g->n_sizes == g->cap_sizes) {
+        size_t cap = g->cap_sizes ? 2 * g->cap_sizes : 16;
+        struct kn_group_sizes *v = kn_alloc_array(g->map.arena, cap, sizeof *v);
+        if (g->n_sizes) {
+            memcpy(v, g->sizes, g->n_sizes * sizeof *v);
+        }
+        g->sizes = v;
+        g->cap_sizes = cap;
+    }
+    g->sizes[g->n_sizes].size = size;
+    g->sizes[g->n_sizes++].groups = groups;
 }
 
 /* ---- rows shared across a split ----------------------------------------- */
@@ -565,6 +738,9 @@ struct kn_overlap {
     bool pending;
     uint64_t pend_key, pend_line;
     bool pend_test;
+    /* a database's counts (kn_overlap_set) */
+    bool preset;
+    kn_overlap_result result;
 };
 
 kn_overlap *kn_overlap_new(kn_arena *a)
@@ -604,8 +780,18 @@ void kn_overlap_add(kn_overlap *o, uint64_t key, bool test_side, uint64_t line)
 }
 
 /* Keys counted on both sides of the split. */
+void kn_overlap_set(kn_overlap *o, const kn_overlap_result *r)
+{
+    o->preset = true;
+    o->result = *r;
+}
+
 void kn_overlap_result_get(kn_overlap *o, kn_overlap_result *out)
 {
+    if (o->preset) {
+        *out = o->result;
+        return;
+    }
     if (o->pending) {
         overlap_count(o, o->pend_key, o->pend_test, o->pend_line);
         o->pending = false;

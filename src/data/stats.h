@@ -40,6 +40,30 @@ typedef struct kn_auc {
  * released before returning. */
 bool kn_stats_auc(kn_arena *a, const double *score, const bool *positive, size_t n, kn_auc *out);
 
+/* One tie group of the rank sum, in ascending order of score: pos and neg
+ * rows share one score; neg_below counts the negatives of lower scores.
+ * Twice the Mann-Whitney U grows by pos * (2 neg_below + neg) (average
+ * ranks for ties), in exact integers.  The one step of every AUC in
+ * knowable: the sample's sorted scores, a database's distinct values
+ * (kn_stats_auc_levels) and the engine's own window sum (src/data/sql.c)
+ * all add their groups this way. */
+static inline void kn_rank_step(uint64_t *two_u, uint64_t *neg_below, uint64_t pos, uint64_t neg)
+{
+    *two_u += pos * (2 * *neg_below + neg);
+    *neg_below += neg;
+}
+
+/* The AUC from twice U and the class sizes: two_u / (2 n_pos n_neg), and
+ * its separation.  False (auc 0.5) when a class is empty. */
+bool kn_auc_finish(uint64_t two_u, uint64_t n_pos, uint64_t n_neg, kn_auc *out);
+
+/* ROC AUC from per-distinct-value counts: score[i] held by pos[i] rows of
+ * the positive class and neg[i] of the negative one (any order; a NaN
+ * score is left out).  Equal to kn_stats_auc over the rows the counts
+ * stand for. */
+bool kn_stats_auc_levels(kn_arena *a, const double *score, const uint64_t *pos, const uint64_t *neg, size_t n,
+                         kn_auc *out);
+
 /* ---- uncertainty coefficient -------------------------------------------- */
 
 typedef struct kn_uncertainty {
@@ -67,12 +91,22 @@ void kn_uncertainty_set(kn_uncertainty *out, double h_y, double mi);
 bool kn_uncertainty_ids(kn_arena *a, const uint32_t *x, const uint32_t *y, size_t n, size_t nx, size_t ny,
                         kn_uncertainty *out);
 
+/* The same over pairs that each stand for w[i] rows (a database's GROUP
+ * BY counts; w NULL: one row each).  out->n is the rows counted. */
+bool kn_uncertainty_weighted(kn_arena *a, const uint32_t *x, const uint32_t *y, const uint64_t *w, size_t n,
+                             size_t nx, size_t ny, kn_uncertainty *out);
+
 /* Quantile bins: code[i] = 0 when v[i] is NaN, else 1 + the number of cut
  * points <= v[i], where the cut points are the values at ranks
  * floor(m * b / bins), b = 1..bins-1, of the m sorted non-NaN values
  * (equal cut points merge bins, so a value never straddles two bins).
  * Returns the number of distinct codes used, NaN excluded. */
 size_t kn_quantile_bins(kn_arena *a, const double *v, size_t n, size_t bins, uint32_t *code);
+
+/* The same where v[i] stands for w[i] rows (w NULL: one each): the cut
+ * points are those of the rows the values stand for. */
+size_t kn_quantile_bins_weighted(kn_arena *a, const double *v, const uint64_t *w, size_t n, size_t bins,
+                                 uint32_t *code);
 
 /* ---- k-anonymity ------------------------------------------------------- */
 
@@ -98,6 +132,15 @@ void kn_groups_add(kn_groups *g, uint64_t tuple_hash, uint64_t line);
  * and classes smaller than k. */
 void kn_groups_kanon(const kn_groups *g, size_t k, kn_kanon *out);
 
+/* A database's histogram instead of rows: `groups` groups of `size` rows
+ * each (SELECT group_size, COUNT(*) ... GROUP BY group_size). */
+void kn_groups_add_sizes(kn_groups *g, size_t size, size_t groups);
+
+/* Adds `groups` groups of `size` rows (the first row of one on `line`, 0
+ * if unknown) to a k-anonymity tally; kn_groups_kanon is this over every
+ * group.  *out starts zeroed. */
+void kn_kanon_add(kn_kanon *out, size_t k, size_t size, size_t groups, uint64_t line);
+
 /* ---- rows shared across a split ----------------------------------------- */
 
 typedef struct kn_overlap kn_overlap;
@@ -108,6 +151,7 @@ typedef struct kn_overlap_result {
     size_t test_rows_shared;   /* test rows whose key also occurs in training */
     size_t train_rows_shared;  /* training rows whose key also occurs in test */
     uint64_t first_test_line;  /* CSV line of the first test row with a shared key, 0 if none */
+    const char *first_key;     /* a database: the least shared key (entities), or NULL */
 } kn_overlap_result;
 
 /* Keys (row hashes, or hashes of an entity value) seen on the training and
@@ -116,6 +160,10 @@ typedef struct kn_overlap_result {
 kn_overlap *kn_overlap_new(kn_arena *a);
 void kn_overlap_add(kn_overlap *o, uint64_t key, bool test_side, uint64_t line);
 void kn_overlap_result_get(kn_overlap *o, kn_overlap_result *out);
+
+/* A database's counts (one aggregate row): kn_overlap_result_get then
+ * returns them. */
+void kn_overlap_set(kn_overlap *o, const kn_overlap_result *r);
 
 /* ---- reservoir sampling --------------------------------------------------- */
 

@@ -382,11 +382,13 @@ static uint32_t field_col(kn_table *t, const kn_csv_row *row, size_t i)
     return i < row->n_fields ? t->colpos[i] : 0;
 }
 
-static void first(kn_table *t, kn_first *f, const kn_csv_row *row, size_t field)
+static void first(kn_table *t, kn_first *f, const kn_csv_row *row, size_t field, uint64_t rows)
 {
-    if (f->count++ == 0) {
+    uint64_t had = f->count;
+    f->count += rows;
+    if (had == 0) {
         f->line = row->line;
-        f->col = field_col(t, row, field);
+        f->col = row->line ? field_col(t, row, field) : 0;
         f->value = example(t->a, row->fields[field].ptr, row->fields[field].len);
     }
 }
@@ -433,16 +435,16 @@ static void store_runs(kn_table *t, kn_tcol *c, size_t slot, const char *s, size
 /* Checks one field (every row) and stores it when the row is kept
  * (slot != KN_RESERVOIR_SKIP). */
 static void check_value(kn_table *t, kn_tcol *c, const kn_csv_row *row, size_t slot, int64_t moment_us,
-                        bool have_moment)
+                        bool have_moment, uint64_t rows)
 {
     const kn_csv_field *f = &row->fields[c->field];
     kn_value_status st = KN_VALUE_OK;
     double num = NAN;
     const char *text = f->ptr;
     size_t text_len = f->len;
-    if (kn_missing_test(&t->missing, f->ptr, f->len)) {
+    if (!f->ptr || kn_missing_test(&t->missing, f->ptr, f->len)) { /* NULL: a database's NULL */
         st = KN_VALUE_MISSING;
-        c->missing++;
+        c->missing += rows;
     } else {
         switch (c->type) {
         case KN_TYPE_NUMBER:
@@ -469,7 +471,7 @@ static void check_value(kn_table *t, kn_tcol *c, const kn_csv_row *row, size_t s
                         const kn_csv_field *mf = &row->fields[t->moment->field];
                         c->late.other = example(t->a, mf->ptr, mf->len);
                     }
-                    first(t, &c->late, row, c->field);
+                    first(t, &c->late, row, c->field, rows);
                 }
             }
             break;
@@ -485,7 +487,7 @@ static void check_value(kn_table *t, kn_tcol *c, const kn_csv_row *row, size_t s
          * ("NA" for a number when the rulebook drops it) is a bad value. */
         if (st != KN_VALUE_OK) {
             st = KN_VALUE_INVALID;
-            first(t, &c->bad_type, row, c->field);
+            first(t, &c->bad_type, row, c->field, rows);
         }
     }
 
@@ -506,7 +508,7 @@ static void check_value(kn_table *t, kn_tcol *c, const kn_csv_row *row, size_t s
             pcre2_get_error_message(rc, msg, sizeof msg);
             c->limit_problem = kn_strdup(t->a, (const char *)msg);
         } else {
-            first(t, &c->bad_format, row, c->field);
+            first(t, &c->bad_format, row, c->field, rows);
         }
     }
 
@@ -590,6 +592,8 @@ unsigned kn_split_side(const char *s, size_t len)
     return 0;
 }
 
+static void store_target(kn_table *t, const kn_csv_row *row, size_t slot);
+
 static void read_row(kn_table *t, const kn_csv_row *row)
 {
     t->rows++;
@@ -608,7 +612,7 @@ static void read_row(kn_table *t, const kn_csv_row *row)
                       kn_value_timestamp(f->ptr, f->len, &moment_us, NULL) == KN_VALUE_OK;
     }
     for (size_t i = 0; i < t->n_cols; i++) {
-        check_value(t, &t->cols[i], row, slot, moment_us, have_moment);
+        check_value(t, &t->cols[i], row, slot, moment_us, have_moment, 1);
     }
 
     /* The counting rules, over every row. */
@@ -641,15 +645,48 @@ static void read_row(kn_table *t, const kn_csv_row *row)
         kn_groups_add(t->qi_groups, kn_hash_finish(h), row->line);
     }
 
-    if (slot == KN_RESERVOIR_SKIP || !t->target) {
-        return;
+    if (slot != KN_RESERVOIR_SKIP && t->target) {
+        store_target(t, row, slot);
     }
+}
+
+void kn_table_add_group(kn_table *t, const kn_csv_field *fields, size_t n_fields, uint64_t rows, bool keep)
+{
+    kn_csv_row row = {fields, n_fields, n_fields, 0, 0, 0, 0};
+    t->rows += rows;
+    size_t slot = KN_RESERVOIR_SKIP;
+    if (keep) {
+        slot = t->kept++;
+        store_reserve(t->store, slot);
+        if (slot >= t->weight_cap) {
+            size_t cap = t->weight_cap ? 2 * t->weight_cap : 64;
+            uint64_t *w = kn_alloc_array(t->a, cap, sizeof *w);
+            if (t->weight_cap) {
+                memcpy(w, t->weight, t->weight_cap * sizeof *w);
+            }
+            t->weight = w;
+            t->weight_cap = cap;
+        }
+        t->weight[slot] = rows;
+    }
+    for (size_t i = 0; i < t->n_cols; i++) {
+        check_value(t, &t->cols[i], &row, slot, 0, false, rows);
+    }
+    if (slot != KN_RESERVOIR_SKIP && t->target) {
+        store_target(t, &row, slot);
+    }
+}
+
+/* The target of a kept row: its dictionary code (booleans as true/false)
+ * and, for a numeric target, its number. */
+static void store_target(kn_table *t, const kn_csv_row *row, size_t slot)
+{
     const kn_csv_field *f = &row->fields[t->target->field];
     const char *y = f->ptr;
     size_t yl = f->len;
     double ynum = NAN;
     bool b;
-    if (kn_missing_test(&t->missing, y, yl)) {
+    if (!y || kn_missing_test(&t->missing, y, yl)) {
         y = NULL;
     } else if (t->target->type == KN_TYPE_BOOLEAN && kn_value_boolean(y, yl, &b) == KN_VALUE_OK) {
         y = b ? "true" : "false";

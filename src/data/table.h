@@ -63,6 +63,7 @@ typedef struct kn_first {
     uint32_t col;  /* byte column of the field on its line, 0 if unknown */
     char *value;   /* the value, cut to 40 bytes */
     char *other;   /* the moment's value, for a late timestamp */
+    char *key;     /* a database: the key of an offending row, or NULL */
 } kn_first;
 
 /* One segment of an identifier: a named group of its format, or the i-th
@@ -100,6 +101,12 @@ typedef struct kn_tcol {
     kn_segment *segs;
     size_t n_segs;
     bool runs;
+
+    /* a database (src/checks/data_db.c) */
+    bool wide;             /* more distinct values than the client reads: no
+                              value was kept, statistics from the engine */
+    bool has_auc;          /* auc is the engine's rank sum over every row */
+    kn_auc auc;
 } kn_tcol;
 
 /* Records with one kind of problem: how many, and the first. */
@@ -146,6 +153,11 @@ typedef struct kn_table {
     uint64_t cols_row;     /* the record whose field columns are in colpos (0: none) */
     uint32_t *colpos;
     size_t colpos_cap;
+
+    /* a database's groups (kn_table_add_group): slot s stands for
+     * weight[s] rows; NULL for a CSV file (one row a slot) */
+    uint64_t *weight;
+    size_t weight_cap;
 } kn_table;
 
 /* Lays out the sample's cells, dictionaries and segments once the caller
@@ -155,6 +167,13 @@ void kn_table_layout(kn_table *t);
 /* Reads every record of rd (whose header the caller has read).  Returns
  * false when a fatal reader problem stopped it (t->fatal). */
 bool kn_table_read(kn_table *t, kn_csv_reader *rd);
+
+/* A database's aggregated row instead of a CSV record: `rows` rows whose
+ * fields are fields[0..n_fields) (a field whose ptr is NULL is SQL NULL,
+ * missing whatever the rulebook says), counted like CSV records (no
+ * line) and, with keep, stored in the next slot with that weight.  No
+ * moment, split or quasi-identifier tally: the engine counts those. */
+void kn_table_add_group(kn_table *t, const kn_csv_field *fields, size_t n_fields, uint64_t rows, bool keep);
 
 /* The sample, by slot in [0, t->kept). */
 double kn_table_num(const kn_table *t, size_t cell, size_t slot);     /* NaN: missing or invalid */

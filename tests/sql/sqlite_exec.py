@@ -9,8 +9,10 @@ sqlite3 module) holding invented rows, and checks that
   write (PRAGMA query_only);
 - the aggregated rows equal the same figures counted here in Python over
   the rows (exact counts: rows, rows per target class, contingency tables,
-  split overlap of feature rows and of entities, quasi-identifier group
-  sizes).
+  split overlap of feature rows and of entities with the least shared
+  entity, quasi-identifier group sizes, missing rows per class, distinct
+  values, and the engine's Mann-Whitney rank sums against a count over
+  every pair of rows).
 
 Exit 0 pass, 1 fail, 77 skipped (no sqlite3 module)."""
 import collections
@@ -127,6 +129,27 @@ def overlap(keyf, skip=lambda r: False):
             sum(g[0] for g in both), sum(g[1] for g in both))
 
 
+def is_missing(v):
+    return v is None or str(v).strip(" ").lower() in {"", "na", "n/a", "nan", "null"}
+
+
+def rank_sums(i):
+    """Twice the Mann-Whitney U of column i for each target value against
+    the others, by comparing every pair (the definition; ties count one
+    half, common practice), rows with a missing value or target left out."""
+    kept = [(r[i], r[0]) for r in rows if not is_missing(r[i]) and not is_missing(r[0])]
+    out = []
+    for t in sorted({y for _, y in kept}):
+        pos = [v for v, y in kept if y == t]
+        neg = [v for v, y in kept if y != t]
+        out.append((t, sum(2 if p > n else 1 if p == n else 0 for p in pos for n in neg), len(pos)))
+    return out
+
+
+def column_of(tag):
+    return cols.index(ROLLS) if "Brötchen" in tag else cols.index(FLOUR) if "flour" in tag else cols.index(SHOP)
+
+
 checked = 0
 for c, s, res in results:
     tag = " ".join(c)
@@ -140,7 +163,26 @@ for c, s, res in results:
     elif "[rows-shared-across-split]" in tag:
         check("rows-shared-across-split", tuple(res[0]), overlap(lambda r: (r[3], r[4])))
     elif "[entity-in-both-splits]" in tag:
-        check("entity-in-both-splits", tuple(res[0]), overlap(lambda r: r[1], lambda r: r[1] in missing))
+        shared = collections.defaultdict(set)
+        for r in rows:
+            if r[1] not in missing and side(r[2]):
+                shared[r[1]].add(side(r[2]))
+        first = min(k for k, v in shared.items() if len(v) == 2)
+        check("entity-in-both-splits", tuple(res[0]), overlap(lambda r: r[1], lambda r: r[1] in missing) + (first,))
+    elif "[lone-feature-separates]" in tag and "rank sum" in tag:
+        check("rank sums of %r per target value" % cols[column_of(tag)], sorted(res), rank_sums(column_of(tag)))
+    elif "[missingness-predicts]" in tag:
+        i = column_of(tag)
+        want = collections.defaultdict(lambda: [0, 0])
+        for r in rows:
+            want[r[0]][0] += is_missing(r[i])
+            want[r[0]][1] += 1
+        check("missing rows of %r per target value" % cols[i], sorted(res, key=repr),
+              sorted(((t, m, n) for t, (m, n) in want.items()), key=repr))
+    elif "[value-mismatch]" in tag and "streamed" in tag:
+        i = column_of(tag)
+        check("distinct values of %r" % cols[i], sorted(res, key=repr),
+              sorted(collections.Counter(r[i] for r in rows).items(), key=repr))
     elif "[small-quasi-identifier-groups]" in tag:
         sizes = collections.Counter(collections.Counter((r[3], r[4]) for r in rows).values())
         check("quasi-identifier group sizes", res, sorted(sizes.items()))
@@ -148,7 +190,7 @@ for c, s, res in results:
         check("rows per target class", sorted(res, key=repr),
               sorted(collections.Counter(r[0] for r in rows).items(), key=repr))
     elif "by target class" in tag:
-        i = cols.index(ROLLS) if "Brötchen" in tag else cols.index(FLOUR) if "flour" in tag else cols.index(SHOP)
+        i = column_of(tag)
         want = collections.Counter((r[i], r[0]) for r in rows)
         check("contingency of %r and the target" % cols[i], sorted((((v, t), n) for v, t, n in res), key=repr),
               sorted(want.items(), key=repr))

@@ -1,0 +1,831 @@
+/* data_db.c - `check --data 'odbc:...' --table NAME` (SPEC §5.1): the data
+ * rules of §4.7 where the table lives.  The engine scans the rows; only
+ * aggregated rows cross the connection (src/data/sql.c builds the
+ * queries, src/data/odbc.c runs them), and the findings are made by the
+ * rules of the CSV path from the same structures:
+ *   - the column names become the header (kn_dx_read_header):
+ *     column-not-in-schema, column-not-in-data;
+ *   - each column's GROUP BY rows (value, target value, rows) are fed to a
+ *     table of its own as groups of rows (kn_table_add_group), whose
+ *     cells are parsed and matched by the CSV path's code (value-mismatch)
+ *     and whose weighted slots the statistics read (data_stats.c:
+ *     lone-feature-separates, missingness-predicts,
+ *     identifier-segment-predicts, finished by src/data/stats.c);
+ *   - a column with more groups than the client reads (--max-rows, default
+ *     KN_SQL_MAX_GROUPS) is "wide": its AUC is the engine's rank sum (a
+ *     numeric or temporal SQL type and a binary target), its missingness
+ *     comes from missing rows per class, its values are streamed for
+ *     value-mismatch when its SQL type is text (a typed column cannot hold
+ *     a value of another type), and an identifier of a table larger than
+ *     that is read from a random sample of about as many rows, drawn by
+ *     the engine;
+ *   - timestamp-after-moment, rows-shared-across-split,
+ *     entity-in-both-splits and small-quasi-identifier-groups are counted
+ *     by the engine over every row and finished by data_values.c and
+ *     data_split.c (kn_overlap_set, kn_groups_add_sizes).
+ * Findings point at "odbc:<connection, password masked>/<table>" (line 0:
+ * the table as a whole) with the note at the column's declaration, and
+ * name the first offending row by its key (the entity, else the first
+ * identifier) where the table has one. */
+#include <stdlib.h>
+#include <string.h>
+
+#define PCRE2_CODE_UNIT_WIDTH 8
+#include <pcre2.h>
+
+#include "../data/odbc.h"
+#include "../data/sql.h"
+#include "../util/regex.h"
+#include "data_rules.h"
+
+typedef struct db_run {
+    kn_dx x;            /* the whole table: header, roles, counted rules */
+    kn_db *db;
+    kn_sql_dialect d;
+    const char *table, *query_sql, *shown;
+    unsigned long long cap; /* groups read per query */
+    bool target_wide;       /* the target has more values than cap */
+    const char *key;        /* the key column's name, or NULL */
+    /* a binary target of two raw values, for the engine's rank sum */
+    bool rank_ok;
+    char *raw[2];           /* the two raw values as the engine sent them */
+    bool raw_positive[2];
+    FILE *err;
+} db_run;
+
+static void free_mctx(void *p)
+{
+    pcre2_match_context_free(p);
+}
+
+/* The count in a result's text ("123", "123.000" from a DECIMAL sum). */
+static bool parse_count(const char *s, size_t len, uint64_t *out)
+{
+    uint64_t v = 0;
+    size_t i = 0;
+    if (!s || len == 0) {
+        *out = 0;
+        return s != NULL; /* an empty result: 0; NULL (SUM of no rows): 0 too */
+    }
+    for (; i < len && s[i] >= '0' && s[i] <= '9'; i++) {
+        if (v > (UINT64_MAX - 9) / 10) {
+            return false;
+        }
+        v = v * 10 + (uint64_t)(s[i] - '0');
+    }
+    if (i == 0) {
+        return false;
+    }
+    if (i < len && s[i] == '.') {
+        for (i++; i < len && s[i] == '0'; i++) {
+        }
+    }
+    *out = v;
+    return i == len;
+}
+
+/* The value of column i of the current row as a count; NULL is 0. */
+static bool count_at(db_run *r, kn_db_rows *q, size_t i, uint64_t *out)
+{
+    size_t len;
+    const char *s = kn_db_get(q, i, &len);
+    if (!s) {
+        *out = 0;
+        return true;
+    }
+    if (!parse_count(s, len, out)) {
+        fprintf(r->err, "knowable: the database sent '%.40s' where a count was expected\n", s);
+        return false;
+    }
+    return true;
+}
+
+static void failed(db_run *r)
+{
+    kn_sink_mark_fatal(r->x.sink);
+}
+
+static kn_db_rows *query(db_run *r, const char *sql, const char *what)
+{
+    kn_db_rows *q = kn_db_query(r->db, sql, kn_printf(r->x.a, "%s (%s)", what, r->shown));
+    if (!q) {
+        failed(r);
+    }
+    return q;
+}
+
+/* ---- one column's tables ------------------------------------------------------ */
+
+/* A table of groups for column src (a copy of the whole table's column,
+ * its format only when with_format) and, with_target, the target. */
+static void column_table(db_run *r, kn_dx *cx, const kn_tcol *src, const kn_column *decl, bool with_target,
+                         bool with_format)
+{
+    const kn_dx *x = &r->x;
+    memset(cx, 0, sizeof *cx);
+    cx->ctx = x->ctx;
+    cx->s = x->s;
+    cx->path = x->path;
+    cx->a = x->a;
+    cx->sink = x->sink;
+    cx->max_rows = x->max_rows;
+    cx->seed = x->seed;
+    cx->database = true;
+    cx->key_name = r->key;
+    kn_table *t = &cx->t;
+    t->a = x->a;
+    t->max_rows = 1;
+    t->seed = x->seed;
+    t->strict_moment = x->t.strict_moment;
+    t->missing = x->t.missing;
+    t->match_context = x->t.match_context;
+    t->cols = kn_alloc_array(x->a, 2, sizeof *t->cols);
+    cx->decl = kn_alloc_array(x->a, 2, sizeof *cx->decl);
+    cx->hcol = kn_alloc_array(x->a, 2, sizeof *cx->hcol);
+    kn_tcol *c = &t->cols[t->n_cols];
+    c->name = src->name;
+    c->field = 0;
+    c->type = src->type;
+    c->format = with_format ? src->format : NULL;
+    c->feature = src->feature;
+    c->identifier = src->identifier;
+    cx->decl[t->n_cols++] = decl;
+    if (with_target) {
+        const kn_tcol *tg = x->t.target;
+        kn_tcol *tc = &t->cols[t->n_cols];
+        tc->name = tg->name;
+        tc->field = 1;
+        tc->type = tg->type;
+        cx->decl[t->n_cols++] = KN_REF_COLUMN(x->s->prediction.target);
+        t->target = tc;
+    }
+    kn_table_layout(t);
+}
+
+/* The raw text of the first value that failed its type or its format, for
+ * the key of its row. */
+typedef struct firsts {
+    char *type, *format;
+} firsts;
+
+/* Feeds the rows (v[, t], n) of q into cx's table as groups, at most cap
+ * of them (0: all).  *wide when there were more.  False on an error. */
+static bool feed(db_run *r, kn_dx *cx, kn_db_rows *q, bool with_target, bool keep, unsigned long long cap,
+                 bool *wide, firsts *f)
+{
+    kn_table *t = &cx->t;
+    kn_tcol *c = &t->cols[0];
+    unsigned long long n = 0;
+    size_t count_col = with_target ? 2 : 1;
+    *wide = false;
+    while (kn_db_next(q)) {
+        if (cap && ++n > cap) {
+            *wide = true;
+            break;
+        }
+        kn_csv_field fields[2];
+        size_t len;
+        fields[0].ptr = kn_db_get(q, 0, &len);
+        fields[0].len = len;
+        fields[0].quoted = false;
+        if (with_target) {
+            fields[1].ptr = kn_db_get(q, 1, &len);
+            fields[1].len = len;
+            fields[1].quoted = false;
+        }
+        uint64_t rows;
+        if (!count_at(r, q, count_col, &rows)) {
+            kn_db_done(q);
+            return false;
+        }
+        uint64_t had_type = c->bad_type.count, had_format = c->bad_format.count;
+        kn_table_add_group(t, fields, with_target ? 2 : 1, rows, keep);
+        if (f && !had_type && c->bad_type.count) {
+            f->type = kn_strndup(r->x.a, fields[0].ptr, fields[0].len);
+        }
+        if (f && !had_format && c->bad_format.count) {
+            f->format = kn_strndup(r->x.a, fields[0].ptr, fields[0].len);
+        }
+    }
+    kn_db_done(q);
+    return !kn_db_failed(r->db);
+}
+
+/* The key of the first row whose column holds value (as text). */
+static char *key_of(db_run *r, const char *col, const char *value)
+{
+    if (!r->key || !value) {
+        return NULL;
+    }
+    kn_db_rows *q = query(r, kn_sql_key_of_value(r->x.a, r->d, r->table, r->query_sql, col, r->key, value),
+                          "cannot find the row of a value");
+    char *key = NULL;
+    if (q && kn_db_next(q)) {
+        size_t len;
+        const char *k = kn_db_get(q, 0, &len);
+        key = k ? kn_strndup(r->x.a, k, len) : NULL;
+    }
+    if (q) {
+        kn_db_done(q);
+    }
+    return key;
+}
+
+/* Whether a column of SQL kind k can only hold values of type t (then no
+ * value of it can fail its type). */
+static bool typed_by_engine(kn_value_type t, kn_db_type k)
+{
+    switch (t) {
+    case KN_TYPE_NUMBER:
+        return k == KN_DB_NUMBER;
+    case KN_TYPE_TIMESTAMP:
+        return k == KN_DB_TIMESTAMP || k == KN_DB_DATE;
+    case KN_TYPE_DATE:
+        return k == KN_DB_DATE;
+    case KN_TYPE_BOOLEAN:
+        return k == KN_DB_BOOLEAN;
+    default:
+        return true; /* category, text, untyped: any value is one */
+    }
+}
+
+/* A value of type t that parses, standing for "not missing". */
+static const char *present_value(kn_value_type t)
+{
+    switch (t) {
+    case KN_TYPE_NUMBER:
+        return "0";
+    case KN_TYPE_TIMESTAMP:
+    case KN_TYPE_DATE:
+        return "1970-01-01";
+    case KN_TYPE_BOOLEAN:
+        return "true";
+    default:
+        return "present";
+    }
+}
+
+/* Copies what a column's table counted into the whole table's column. */
+static void take_values(db_run *r, kn_tcol *dst, const kn_tcol *src, const firsts *f)
+{
+    dst->bad_type = src->bad_type;
+    dst->bad_format = src->bad_format;
+    dst->missing = src->missing;
+    if (src->format_off) {
+        dst->format_off = true;
+        dst->limit_line = 0;
+        dst->limit_problem = src->limit_problem;
+    }
+    if (dst->bad_type.count) {
+        dst->bad_type.key = key_of(r, dst->name, f->type);
+    }
+    if (dst->bad_format.count) {
+        dst->bad_format.key = key_of(r, dst->name, f->format);
+    }
+}
+
+/* Streams every distinct value of column i for value-mismatch. */
+static bool stream_values(db_run *r, size_t i)
+{
+    kn_dx vx;
+    kn_tcol *dst = &r->x.t.cols[i];
+    column_table(r, &vx, dst, r->x.decl[i], false, true);
+    kn_db_rows *q = query(r, kn_sql_groups_query(r->x.a, r->d, r->table, r->query_sql, dst->name, NULL, 0, 0, 0),
+                          kn_printf(r->x.a, "cannot read the values of '%s'", dst->name));
+    firsts f = {0};
+    bool wide;
+    if (!q || !feed(r, &vx, q, false, false, 0, &wide, &f)) {
+        return false;
+    }
+    take_values(r, dst, &vx.t.cols[0], &f);
+    return true;
+}
+
+/* The engine's rank sum of a wide numeric feature against a binary target. */
+static bool rank_sum(db_run *r, kn_tcol *c)
+{
+    kn_db_rows *q = query(r,
+                          kn_sql_rank_sum_query(r->x.a, r->d, r->x.ctx->rulebook, r->table, r->query_sql, c->name,
+                                                r->x.t.target->name),
+                          kn_printf(r->x.a, "cannot rank the values of '%s'", c->name));
+    if (!q) {
+        return false;
+    }
+    uint64_t two_u[2] = {0, 0}, n[2] = {0, 0};
+    bool seen[2] = {false, false}, other = false;
+    while (kn_db_next(q)) {
+        size_t len;
+        const char *t = kn_db_get(q, 0, &len);
+        int which = -1;
+        for (int k = 0; k < 2 && t; k++) {
+            if (strlen(r->raw[k]) == len && memcmp(r->raw[k], t, len) == 0) {
+                which = k;
+            }
+        }
+        uint64_t u, rows;
+        if (!count_at(r, q, 1, &u) || !count_at(r, q, 2, &rows)) {
+            kn_db_done(q);
+            return false;
+        }
+        if (which < 0) {
+            other = true; /* a value the target query did not send */
+            continue;
+        }
+        seen[which] = true;
+        two_u[which] = u;
+        n[which] = rows;
+    }
+    kn_db_done(q);
+    if (kn_db_failed(r->db)) {
+        return false;
+    }
+    if (other) {
+        return true; /* no rank sum: the statistic is skipped */
+    }
+    int p = r->raw_positive[0] ? 0 : 1;
+    (void)seen;
+    c->has_auc = true;
+    kn_auc_finish(two_u[p], n[p], n[1 - p], &c->auc);
+    return true;
+}
+
+/* A wide feature's missing rows per target value, as two groups per
+ * class (missing, present) for missingness-predicts. */
+static bool missing_groups(db_run *r, kn_dx *cx, const kn_tcol *c)
+{
+    kn_db_rows *q = query(r,
+                          kn_sql_missing_query(r->x.a, r->d, r->x.ctx->rulebook, r->table, r->query_sql, c->name,
+                                               r->x.t.target->name),
+                          kn_printf(r->x.a, "cannot count the missing values of '%s'", c->name));
+    if (!q) {
+        return false;
+    }
+    unsigned long long n = 0;
+    while (kn_db_next(q)) {
+        if (++n > r->cap) {
+            break; /* the target query said how many values it has */
+        }
+        size_t len;
+        kn_csv_field fields[2] = {{NULL, 0, false}, {NULL, 0, false}};
+        fields[1].ptr = kn_db_get(q, 0, &len);
+        fields[1].len = len;
+        uint64_t missing, rows;
+        if (!count_at(r, q, 1, &missing) || !count_at(r, q, 2, &rows) || missing > rows) {
+            kn_db_done(q);
+            return false;
+        }
+        if (missing) {
+            kn_table_add_group(&cx->t, fields, 2, missing, true);
+        }
+        if (rows > missing) {
+            const char *v = present_value(c->type);
+            fields[0].ptr = v;
+            fields[0].len = strlen(v);
+            kn_table_add_group(&cx->t, fields, 2, rows - missing, true);
+        }
+    }
+    kn_db_done(q);
+    return !kn_db_failed(r->db);
+}
+
+/* One column: its groups, its value findings into the whole table, its
+ * statistics. */
+static bool column(db_run *r, size_t i, kn_db_type kind)
+{
+    kn_dx *x = &r->x;
+    kn_tcol *c = &x->t.cols[i];
+    const kn_column *k = x->decl[i];
+    bool stats = x->t.target && !r->target_wide && (c->feature || c->identifier);
+    bool typed = c->type != KN_TYPE_UNSET || c->format;
+    if (!stats && !typed) {
+        return true;
+    }
+    kn_dx cx;
+    firsts f = {0};
+    bool wide = false;
+    if (stats && c->identifier && x->t.rows > r->cap) {
+        /* An identifier of a large table: a random sample of about cap
+         * rows (its segments are statistics); its values, when typed, are
+         * streamed for value-mismatch. */
+        column_table(r, &cx, c, k, true, true);
+        cx.sampled_of = x->t.rows;
+        double p = (double)r->cap / (double)x->t.rows;
+        const char *seed = kn_sql_seed_query(x->a, r->d, x->seed);
+        kn_db_rows *q = seed ? query(r, seed, "cannot seed the engine's random numbers") : NULL;
+        if (seed && !q) {
+            return false;
+        }
+        if (q) {
+            while (kn_db_next(q)) {
+            }
+            kn_db_done(q);
+        }
+        q = query(r,
+                  kn_sql_groups_query(x->a, r->d, r->table, r->query_sql, c->name, x->t.target->name, 2 * r->cap, p,
+                                      x->seed),
+                  kn_printf(x->a, "cannot read a sample of '%s'", c->name));
+        if (!q || !feed(r, &cx, q, true, true, 2 * r->cap, &wide, NULL)) {
+            return false;
+        }
+        if (typed && !stream_values(r, i)) {
+            return false;
+        }
+    } else {
+        column_table(r, &cx, c, k, stats, true);
+        kn_db_rows *q = query(
+            r, kn_sql_groups_query(x->a, r->d, r->table, r->query_sql, c->name, stats ? x->t.target->name : NULL,
+                                   r->cap + 1, 0, 0),
+            kn_printf(x->a, "cannot read the values of '%s'", c->name));
+        if (!q || !feed(r, &cx, q, stats, stats, r->cap, &wide, &f)) {
+            return false;
+        }
+        if (!wide) {
+            take_values(r, c, &cx.t.cols[0], &f);
+        } else {
+            /* Too many groups to read: the values are checked by
+             * streaming them when the engine's type does not already
+             * guarantee them, the statistics finished by the engine. */
+            if (typed && (c->format || !typed_by_engine(c->type, kind)) && !stream_values(r, i)) {
+                return false;
+            }
+            if (!stats) {
+                return true;
+            }
+            column_table(r, &cx, c, k, true, false);
+            cx.t.cols[0].wide = true;
+            bool numeric = c->type == KN_TYPE_NUMBER || c->type == KN_TYPE_TIMESTAMP || c->type == KN_TYPE_DATE;
+            bool engine_ordered = kind == KN_DB_NUMBER || kind == KN_DB_TIMESTAMP || kind == KN_DB_DATE;
+            if (c->feature && numeric && engine_ordered && r->rank_ok && !rank_sum(r, &cx.t.cols[0])) {
+                return false;
+            }
+            if (c->feature && !missing_groups(r, &cx, c)) {
+                return false;
+            }
+            if (c->identifier) {
+                return true; /* cannot happen: an identifier of so few rows has fewer groups */
+            }
+        }
+    }
+    if (stats) {
+        cx.target_said = x->target_said;
+        kn_data_statistics(&cx);
+        x->target_said = cx.target_said;
+    }
+    return true;
+}
+
+/* ---- the target ----------------------------------------------------------------- */
+
+/* The target's values: value-mismatch of the target, and whether the
+ * engine's rank sum can serve a binary target (exactly two raw values,
+ * two classes). */
+static bool target(db_run *r, size_t i, kn_db_type kind)
+{
+    kn_dx *x = &r->x;
+    kn_tcol *c = &x->t.cols[i];
+    kn_dx cx;
+    firsts f = {0};
+    bool wide;
+    column_table(r, &cx, c, x->decl[i], false, true);
+    kn_db_rows *q = query(r, kn_sql_groups_query(x->a, r->d, r->table, r->query_sql, c->name, NULL, r->cap + 1, 0, 0),
+                          kn_printf(x->a, "cannot read the values of the target '%s'", c->name));
+    if (!q) {
+        return false;
+    }
+    /* The raw values as they come, kept beside the table's count. */
+    kn_table *t = &cx.t;
+    kn_tcol *tc = &t->cols[0];
+    size_t raw = 0;
+    unsigned long long n = 0;
+    wide = false;
+    while (kn_db_next(q)) {
+        if (++n > r->cap) {
+            wide = true;
+            break;
+        }
+        size_t len;
+        kn_csv_field field = {kn_db_get(q, 0, &len), 0, false};
+        field.len = len;
+        uint64_t rows;
+        if (!count_at(r, q, 1, &rows)) {
+            kn_db_done(q);
+            return false;
+        }
+        uint64_t had_type = tc->bad_type.count, had_format = tc->bad_format.count, had_missing = tc->missing;
+        kn_table_add_group(t, &field, 1, rows, false);
+        if (!had_type && tc->bad_type.count) {
+            f.type = kn_strndup(x->a, field.ptr, field.len);
+        }
+        if (!had_format && tc->bad_format.count) {
+            f.format = kn_strndup(x->a, field.ptr, field.len);
+        }
+        if (tc->missing == had_missing) {
+            if (raw < 2) {
+                r->raw[raw] = kn_strndup(x->a, field.ptr, field.len);
+            }
+            raw++;
+        }
+    }
+    kn_db_done(q);
+    if (kn_db_failed(r->db)) {
+        return false;
+    }
+    if (wide) {
+        r->target_wide = true;
+        const char *why = kn_printf(x->a, "the target '%s' has more values than the client reads from the database "
+                                          "(--max-rows %lld)",
+                                    c->name, x->max_rows);
+        kn_sink_data_skip(x->sink, KN_R_LONE_FEATURE_SEPARATES, "", "all", why);
+        kn_sink_data_skip(x->sink, KN_R_MISSINGNESS_PREDICTS, "", "all", why);
+        kn_sink_data_skip(x->sink, KN_R_IDENTIFIER_SEGMENT_PREDICTS, "", "all", why);
+        x->target_said = true;
+        bool typed = c->type != KN_TYPE_UNSET || c->format;
+        return !(typed && (c->format || !typed_by_engine(c->type, kind))) || stream_values(r, i);
+    }
+    take_values(r, c, tc, &f);
+    /* Two raw values that are two classes (as prepare() in data_stats.c
+     * names them: a boolean as true/false, the positive class the one that
+     * sorts last, or true). */
+    if (raw == 2) {
+        const char *norm[2];
+        for (int k = 0; k < 2; k++) {
+            bool b;
+            norm[k] = r->raw[k];
+            if (c->type == KN_TYPE_BOOLEAN && kn_value_boolean(r->raw[k], strlen(r->raw[k]), &b) == KN_VALUE_OK) {
+                norm[k] = b ? "true" : "false";
+            }
+        }
+        if (strcmp(norm[0], norm[1]) != 0) {
+            r->rank_ok = true;
+            bool first_positive = strcmp(norm[0], norm[1]) > 0;
+            if (c->type == KN_TYPE_BOOLEAN && (strcmp(norm[0], "true") == 0 || strcmp(norm[1], "true") == 0)) {
+                first_positive = strcmp(norm[0], "true") == 0;
+            }
+            r->raw_positive[0] = first_positive;
+            r->raw_positive[1] = !first_positive;
+        }
+    }
+    return true;
+}
+
+/* ---- the counted rules ----------------------------------------------------------- */
+
+static bool late(db_run *r)
+{
+    kn_dx *x = &r->x;
+    const kn_rulebook *rb = x->ctx->rulebook;
+    for (size_t i = 0; i < x->t.n_cols && x->t.moment; i++) {
+        kn_tcol *c = &x->t.cols[i];
+        if (!c->timed) {
+            continue;
+        }
+        kn_db_rows *q = query(r, kn_sql_late_query(x->a, r->d, rb, r->table, r->query_sql, c->name, x->t.moment->name),
+                              kn_printf(x->a, "cannot compare '%s' with the moment", c->name));
+        uint64_t n = 0;
+        if (!q) {
+            return false;
+        }
+        bool ok = !kn_db_next(q) || count_at(r, q, 0, &n);
+        kn_db_done(q);
+        if (!ok || kn_db_failed(r->db)) {
+            return false;
+        }
+        if (!n) {
+            continue;
+        }
+        c->late.count = n;
+        q = query(r, kn_sql_late_example(x->a, r->d, rb, r->table, r->query_sql, c->name, x->t.moment->name, r->key),
+                  kn_printf(x->a, "cannot read a late row of '%s'", c->name));
+        if (!q) {
+            return false;
+        }
+        if (kn_db_next(q)) {
+            size_t len;
+            const char *v = kn_db_get(q, 0, &len);
+            c->late.value = kn_printf(x->a, "%.40s%s", v ? v : "NULL", len > 40 ? "..." : "");
+            v = kn_db_get(q, 1, &len);
+            c->late.other = kn_printf(x->a, "%.40s%s", v ? v : "NULL", len > 40 ? "..." : "");
+            if (r->key && (v = kn_db_get(q, 2, &len))) {
+                c->late.key = kn_strndup(x->a, v, len);
+            }
+        } else {
+            c->late.value = c->late.other = kn_strdup(x->a, "?");
+        }
+        kn_db_done(q);
+        if (kn_db_failed(r->db)) {
+            return false;
+        }
+    }
+    return true;
+}
+
+static bool overlap(db_run *r, kn_overlap *o, const char *const *cols, size_t n, bool entity)
+{
+    kn_dx *x = &r->x;
+    kn_db_rows *q = query(r,
+                          kn_sql_overlap_query(x->a, r->d, x->ctx->rulebook, r->table, r->query_sql, x->t.split->name,
+                                               cols, n, entity),
+                          entity ? "cannot count the entities on each side of the split"
+                                 : "cannot count the feature rows on each side of the split");
+    if (!q) {
+        return false;
+    }
+    kn_overlap_result res;
+    memset(&res, 0, sizeof res);
+    if (kn_db_next(q)) {
+        uint64_t v[5];
+        for (size_t i = 0; i < 5; i++) {
+            if (!count_at(r, q, i, &v[i])) {
+                kn_db_done(q);
+                return false;
+            }
+        }
+        res.train_rows = (size_t)v[0];
+        res.test_rows = (size_t)v[1];
+        res.shared_keys = (size_t)v[2];
+        res.train_rows_shared = (size_t)v[3];
+        res.test_rows_shared = (size_t)v[4];
+        size_t len;
+        const char *k = entity ? kn_db_get(q, 5, &len) : NULL;
+        res.first_key = k ? kn_strndup(x->a, k, len) : NULL;
+    }
+    kn_db_done(q);
+    kn_overlap_set(o, &res);
+    return !kn_db_failed(r->db);
+}
+
+static bool counted(db_run *r)
+{
+    kn_dx *x = &r->x;
+    kn_table *t = &x->t;
+    if (!late(r)) {
+        return false;
+    }
+    if (t->shared_rows) {
+        const char **feats = kn_alloc_array(x->a, t->n_cols + 1, sizeof *feats);
+        size_t nf = 0;
+        for (size_t i = 0; i < t->n_cols; i++) {
+            if (t->cols[i].feature) {
+                feats[nf++] = t->cols[i].name;
+            }
+        }
+        if (!overlap(r, t->shared_rows, feats, nf, false)) {
+            return false;
+        }
+    }
+    if (t->shared_ents && !overlap(r, t->shared_ents, &t->entity->name, 1, true)) {
+        return false;
+    }
+    if (t->qi_groups) {
+        const char **qis = kn_alloc_array(x->a, t->n_cols + 1, sizeof *qis);
+        size_t nq = 0;
+        for (size_t i = 0; i < t->n_cols; i++) {
+            if (x->decl[i]->quasi_identifier == 1) {
+                qis[nq++] = t->cols[i].name;
+            }
+        }
+        kn_db_rows *q = query(r, kn_sql_qi_query(x->a, r->d, r->table, r->query_sql, qis, nq),
+                              "cannot count the quasi-identifier groups");
+        if (!q) {
+            return false;
+        }
+        while (kn_db_next(q)) {
+            uint64_t size, groups;
+            if (!count_at(r, q, 0, &size) || !count_at(r, q, 1, &groups)) {
+                kn_db_done(q);
+                return false;
+            }
+            kn_groups_add_sizes(t->qi_groups, (size_t)size, (size_t)groups);
+        }
+        kn_db_done(q);
+        if (kn_db_failed(r->db)) {
+            return false;
+        }
+    }
+    return true;
+}
+
+/* ---- the check ---------------------------------------------------------------------- */
+
+static bool present(void *ctx, const kn_column *k)
+{
+    const kn_dx *x = ctx;
+    for (size_t i = 0; i < x->t.n_cols; i++) {
+        if (x->decl[i] == k) {
+            return true;
+        }
+    }
+    return false;
+}
+
+static bool run_checks(db_run *r, const char *data)
+{
+    kn_dx *x = &r->x;
+    r->db = kn_db_open(x->a, data, r->err);
+    if (!r->db) {
+        return false;
+    }
+    r->d = kn_db_dialect(r->db);
+
+    /* The header: the result's column names and SQL kinds. */
+    kn_db_rows *q = query(r, kn_sql_columns_query(x->a, r->d, r->table, r->query_sql),
+                          "cannot read the columns");
+    if (!q) {
+        return false;
+    }
+    size_t n = kn_db_columns(q);
+    kn_csv_field *fields = kn_alloc_array(x->a, n + 1, sizeof *fields);
+    kn_db_type *kinds = kn_alloc_array(x->a, n + 1, sizeof *kinds);
+    for (size_t i = 0; i < n; i++) {
+        fields[i].ptr = kn_strdup(x->a, kn_db_column_name(q, i));
+        fields[i].len = strlen(fields[i].ptr);
+        kinds[i] = kn_db_column_type(q, i);
+    }
+    kn_db_done(q);
+    kn_csv_row header = {fields, n, n, 0, 0, 0, 0};
+    kn_dx_read_header(x, &header);
+    const kn_column *key = kn_sql_key_column(x->s, present, x);
+    r->key = key ? key->name : NULL;
+    x->key_name = r->key;
+
+    q = query(r, kn_sql_count_query(x->a, r->d, r->table, r->query_sql), "cannot count the rows");
+    if (!q) {
+        return false;
+    }
+    uint64_t rows = 0;
+    bool ok = kn_db_next(q) && count_at(r, q, 0, &rows);
+    kn_db_done(q);
+    if (!ok) {
+        if (!kn_db_failed(r->db)) {
+            fputs("knowable: the database sent no row count\n", r->err);
+        }
+        return false;
+    }
+    x->t.rows = rows;
+
+    if (x->t.target) {
+        size_t ti = (size_t)(x->t.target - x->t.cols);
+        if (!target(r, ti, kinds[x->t.target->field])) {
+            return false;
+        }
+    }
+    for (size_t i = 0; i < x->t.n_cols; i++) {
+        if (&x->t.cols[i] != x->t.target && !column(r, i, kinds[x->t.cols[i].field])) {
+            return false;
+        }
+    }
+    return counted(r);
+}
+
+void kn_check_database(kn_ctx *c, const kn_schema *s, const char *data, const char *table, const char *query_label,
+                       const char *query_sql, long long max_rows, uint64_t seed, FILE *err)
+{
+    db_run r;
+    memset(&r, 0, sizeof r);
+    kn_dx *x = &r.x;
+    x->ctx = c;
+    x->s = s;
+    x->a = c->arena;
+    x->sink = c->sink;
+    x->database = true;
+    x->max_rows = max_rows > 0 ? max_rows : KN_SQL_MAX_GROUPS;
+    x->seed = seed;
+    r.cap = (unsigned long long)x->max_rows;
+    r.err = err;
+    r.table = table;
+    r.query_sql = table ? NULL : query_sql;
+    r.shown = table ? table : query_label;
+    x->path = kn_printf(x->a, "%s/%s", kn_odbc_display(x->a, data), table ? table : query_label);
+    x->t.a = x->a;
+    x->t.max_rows = 1;
+    x->t.seed = seed;
+    x->t.strict_moment = c->rulebook->strict_moment;
+    kn_missing_init(&x->t.missing, c->rulebook->missing_values, c->rulebook->n_missing_values);
+
+    kn_defer *md = kn_arena_defer(x->a, free_mctx, NULL);
+    pcre2_match_context *mctx = pcre2_match_context_create(NULL);
+    if (!mctx) {
+        kn_arena_oom(x->a);
+    }
+    md->ptr = mctx;
+    kn_regex_limits lim;
+    kn_regex_limits_default(&lim);
+    pcre2_set_match_limit(mctx, lim.match);
+    pcre2_set_depth_limit(mctx, lim.depth);
+    pcre2_set_heap_limit(mctx, lim.heap_kib);
+    x->t.match_context = mctx;
+
+    if (!run_checks(&r, data)) {
+        failed(&r);
+        return;
+    }
+    kn_data_values(x);
+    kn_data_split(x);
+    kn_sink_set_sample(x->sink, (unsigned long long)x->t.rows, (unsigned long long)x->t.rows);
+    if (getenv("KNOWABLE_ODBC_TRAFFIC")) {
+        uint64_t rows, bytes;
+        kn_db_traffic(r.db, &rows, &bytes);
+        fprintf(err, "knowable: %llu rows and %llu bytes of values came from the database\n",
+                (unsigned long long)rows, (unsigned long long)bytes);
+    }
+}
