@@ -49,6 +49,7 @@ typedef struct db_run {
     /* a binary target of two raw values, for the engine's rank sum */
     bool rank_ok;
     char *raw[2];           /* the two raw values as the engine sent them */
+    uint64_t raw_rows[2];   /* and their rows */
     bool raw_positive[2];
     FILE *err;
 } db_run;
@@ -301,51 +302,31 @@ static bool stream_values(db_run *r, size_t i)
     return true;
 }
 
-/* The engine's rank sum of a wide numeric feature against a binary target. */
+/* The engine's rank sum of a wide numeric feature against a binary
+ * target.  The two classes must account for every row counted (an engine
+ * that compares the target's text otherwise than it sent it gives no
+ * AUC, and the statistic is skipped). */
 static bool rank_sum(db_run *r, kn_tcol *c)
 {
+    int p = r->raw_positive[0] ? 0 : 1;
     kn_db_rows *q = query(r,
                           kn_sql_rank_sum_query(r->x.a, r->d, r->x.ctx->rulebook, r->table, r->query_sql, c->name,
-                                                r->x.t.target->name),
+                                                r->x.t.target->name, r->raw[p], r->raw[1 - p]),
                           kn_printf(r->x.a, "cannot rank the values of '%s'", c->name));
     if (!q) {
         return false;
     }
-    uint64_t two_u[2] = {0, 0}, n[2] = {0, 0};
-    bool seen[2] = {false, false}, other = false;
-    while (kn_db_next(q)) {
-        size_t len;
-        const char *t = kn_db_get(q, 0, &len);
-        int which = -1;
-        for (int k = 0; k < 2 && t; k++) {
-            if (strlen(r->raw[k]) == len && memcmp(r->raw[k], t, len) == 0) {
-                which = k;
-            }
-        }
-        uint64_t u, rows;
-        if (!count_at(r, q, 1, &u) || !count_at(r, q, 2, &rows)) {
-            kn_db_done(q);
-            return false;
-        }
-        if (which < 0) {
-            other = true; /* a value the target query did not send */
-            continue;
-        }
-        seen[which] = true;
-        two_u[which] = u;
-        n[which] = rows;
-    }
+    uint64_t two_u = 0, n_pos = 0, n_neg = 0;
+    bool got = kn_db_next(q);
+    bool ok = !got || (count_at(r, q, 0, &two_u) && count_at(r, q, 1, &n_pos) && count_at(r, q, 2, &n_neg));
     kn_db_done(q);
-    if (kn_db_failed(r->db)) {
+    if (!ok || kn_db_failed(r->db)) {
         return false;
     }
-    if (other) {
-        return true; /* no rank sum: the statistic is skipped */
+    if (got && n_pos <= r->raw_rows[p] && n_neg <= r->raw_rows[1 - p] && n_pos + n_neg > 0) {
+        c->has_auc = true;
+        kn_auc_finish(two_u, n_pos, n_neg, &c->auc);
     }
-    int p = r->raw_positive[0] ? 0 : 1;
-    (void)seen;
-    c->has_auc = true;
-    kn_auc_finish(two_u[p], n[p], n[1 - p], &c->auc);
     return true;
 }
 
@@ -397,8 +378,8 @@ static bool column(db_run *r, size_t i, kn_db_type kind)
     const kn_column *k = x->decl[i];
     bool stats = x->t.target && !r->target_wide && (c->feature || c->identifier);
     bool typed = c->type != KN_TYPE_UNSET || c->format;
-    if (!stats && !typed) {
-        return true;
+    if (!stats && (!typed || (!c->format && typed_by_engine(c->type, kind)))) {
+        return true; /* nothing to read: no statistic, and the engine's type keeps the values in type */
     }
     kn_dx cx;
     firsts f = {0};
@@ -522,6 +503,7 @@ static bool target(db_run *r, size_t i, kn_db_type kind)
         if (tc->missing == had_missing) {
             if (raw < 2) {
                 r->raw[raw] = kn_strndup(x->a, field.ptr, field.len);
+                r->raw_rows[raw] = rows;
             }
             raw++;
         }
@@ -579,40 +561,27 @@ static bool late(db_run *r)
         if (!c->timed) {
             continue;
         }
-        kn_db_rows *q = query(r, kn_sql_late_query(x->a, r->d, rb, r->table, r->query_sql, c->name, x->t.moment->name),
-                              kn_printf(x->a, "cannot compare '%s' with the moment", c->name));
+        kn_db_rows *q = query(
+            r, kn_sql_late_query(x->a, r->d, rb, r->table, r->query_sql, c->name, x->t.moment->name, r->key),
+            kn_printf(x->a, "cannot compare '%s' with the moment", c->name));
+        if (!q) {
+            return false;
+        }
         uint64_t n = 0;
-        if (!q) {
-            return false;
-        }
-        bool ok = !kn_db_next(q) || count_at(r, q, 0, &n);
-        kn_db_done(q);
-        if (!ok || kn_db_failed(r->db)) {
-            return false;
-        }
-        if (!n) {
-            continue;
-        }
-        c->late.count = n;
-        q = query(r, kn_sql_late_example(x->a, r->d, rb, r->table, r->query_sql, c->name, x->t.moment->name, r->key),
-                  kn_printf(x->a, "cannot read a late row of '%s'", c->name));
-        if (!q) {
-            return false;
-        }
-        if (kn_db_next(q)) {
+        bool ok = true;
+        if (kn_db_next(q) && (ok = count_at(r, q, 0, &n)) && n) {
             size_t len;
-            const char *v = kn_db_get(q, 0, &len);
+            const char *v = kn_db_get(q, 1, &len);
+            c->late.count = n;
             c->late.value = kn_printf(x->a, "%.40s%s", v ? v : "NULL", len > 40 ? "..." : "");
-            v = kn_db_get(q, 1, &len);
+            v = kn_db_get(q, 2, &len);
             c->late.other = kn_printf(x->a, "%.40s%s", v ? v : "NULL", len > 40 ? "..." : "");
-            if (r->key && (v = kn_db_get(q, 2, &len))) {
+            if (r->key && (v = kn_db_get(q, 3, &len))) {
                 c->late.key = kn_strndup(x->a, v, len);
             }
-        } else {
-            c->late.value = c->late.other = kn_strdup(x->a, "?");
         }
         kn_db_done(q);
-        if (kn_db_failed(r->db)) {
+        if (!ok || kn_db_failed(r->db)) {
             return false;
         }
     }

@@ -233,10 +233,13 @@ kn_db *kn_db_open(kn_arena *a, const char *data, FILE *err)
     }
     SQLSetConnectAttr(h->dbc, SQL_ATTR_LOGIN_TIMEOUT, (SQLPOINTER)(SQLLEN)LOGIN_TIMEOUT, 0);
     const char *conn = data + strlen(KN_ODBC_PREFIX);
-    SQLWCHAR out[16];
+    /* The connection string goes in 8-bit (UTF-8) text: MariaDB's driver
+     * (3.1) reads past the end of its own copy of a UTF-16 one
+     * (AddressSanitizer, in SQLDriverConnectW). */
+    SQLCHAR out[16];
     SQLSMALLINT out_len;
-    SQLRETURN rc =
-        SQLDriverConnectW(h->dbc, NULL, to_wide(a, conn), SQL_NTS, out, 16, &out_len, SQL_DRIVER_NOPROMPT);
+    SQLRETURN rc = SQLDriverConnect(h->dbc, NULL, (SQLCHAR *)kn_strdup(a, conn), SQL_NTS, out, sizeof out, &out_len,
+                                    SQL_DRIVER_NOPROMPT);
     if (!SQL_SUCCEEDED(rc)) {
         const char *shown = kn_odbc_display(a, data);
         driver_error(a, err, kn_printf(a, "cannot connect to %s", shown), SQL_HANDLE_DBC, h->dbc);

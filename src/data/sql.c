@@ -326,25 +326,29 @@ char *kn_sql_groups_query(kn_arena *a, kn_sql_dialect d, const char *table, cons
     return b.p;
 }
 
-/* The Mann-Whitney rank sum of col for each value of the target, by the
- * engine: per distinct value v, its rows n of class t; the rows of other
- * classes below v (every row below v less those of class t) and beside it
- * (at v, not of class t); twice U of class t is the sum over its values of
- * n (2 below + beside), kn_rank_step's sum (src/data/stats.h). */
+/* The Mann-Whitney rank sum of col against a binary target, by the
+ * engine: per distinct value v, its positive rows p and negative rows q;
+ * ascending in v, twice U grows by p (2 q_below + q), where q_below is
+ * the negatives of lower values (one window sum): kn_rank_step's sum
+ * (src/data/stats.h).  One GROUP BY and one sort. */
 char *kn_sql_rank_sum_query(kn_arena *a, kn_sql_dialect d, const kn_rulebook *rb, const char *table,
-                            const char *query_sql, const char *col, const char *target)
+                            const char *query_sql, const char *col, const char *target, const char *positive,
+                            const char *negative)
 {
     sbuf b = {a, NULL, 0, 0};
-    puts_(&b, "SELECT t, SUM(n * (2 * (below_all - below_t) + (at_v - n))) AS two_u, SUM(n) AS n\n"
-              "FROM (SELECT t, n,\n"
-              "             SUM(n) OVER (ORDER BY v) - SUM(n) OVER (PARTITION BY v) AS below_all,\n"
-              "             SUM(n) OVER (PARTITION BY t ORDER BY v) - n AS below_t,\n"
-              "             SUM(n) OVER (PARTITION BY v) AS at_v\n"
+    puts_(&b, "SELECT SUM(p * (2 * COALESCE(q_below, 0) + q)) AS two_u, SUM(p) AS n_pos, SUM(q) AS n_neg\n"
+              "FROM (SELECT p, q, SUM(q) OVER (ORDER BY v ROWS BETWEEN UNBOUNDED PRECEDING AND 1 PRECEDING) AS q_below\n"
               "      FROM (SELECT ");
     ident(&b, d, col);
-    puts_(&b, " AS v, ");
+    puts_(&b, " AS v,\n                   SUM(CASE WHEN ");
     ident(&b, d, target);
-    puts_(&b, " AS t, COUNT(*) AS n\n           ");
+    puts_(&b, " = ");
+    literal(&b, d, positive);
+    puts_(&b, " THEN 1 ELSE 0 END) AS p,\n                   SUM(CASE WHEN ");
+    ident(&b, d, target);
+    puts_(&b, " = ");
+    literal(&b, d, negative);
+    puts_(&b, " THEN 1 ELSE 0 END) AS q\n           ");
     from(&b, d, table, query_sql);
     puts_(&b, "\n            WHERE NOT (");
     missing_test(&b, d, rb, col);
@@ -352,13 +356,10 @@ char *kn_sql_rank_sum_query(kn_arena *a, kn_sql_dialect d, const kn_rulebook *rb
     missing_test(&b, d, rb, target);
     puts_(&b, ")\n            GROUP BY ");
     ident(&b, d, col);
-    puts_(&b, ", ");
-    ident(&b, d, target);
     puts_(&b, ") AS ");
     ident(&b, d, "levels");
     puts_(&b, ") AS ");
     ident(&b, d, "ranked");
-    puts_(&b, "\nGROUP BY t");
     return b.p;
 }
 
@@ -396,22 +397,13 @@ static void late_test(sbuf *b, kn_sql_dialect d, const kn_rulebook *rb, const ch
     puts_(b, ")");
 }
 
+/* One scan: the late rows counted by a window over all of them, the one
+ * with the least key (or value) kept. */
 char *kn_sql_late_query(kn_arena *a, kn_sql_dialect d, const kn_rulebook *rb, const char *table,
-                        const char *query_sql, const char *col, const char *moment)
+                        const char *query_sql, const char *col, const char *moment, const char *key)
 {
     sbuf b = {a, NULL, 0, 0};
-    puts_(&b, "SELECT COUNT(*) AS n");
-    from(&b, d, table, query_sql);
-    puts_(&b, " WHERE ");
-    late_test(&b, d, rb, col, moment);
-    return b.p;
-}
-
-char *kn_sql_late_example(kn_arena *a, kn_sql_dialect d, const kn_rulebook *rb, const char *table,
-                          const char *query_sql, const char *col, const char *moment, const char *key)
-{
-    sbuf b = {a, NULL, 0, 0};
-    puts_(&b, "SELECT ");
+    puts_(&b, "SELECT COUNT(*) OVER () AS n, ");
     ident(&b, d, col);
     puts_(&b, " AS v, ");
     ident(&b, d, moment);
@@ -721,10 +713,12 @@ void kn_sql_make(kn_arena *a, const kn_schema *s, const kn_rulebook *rb, const c
         if (feature && target) {
             if (is_temporal_or_number(k->type)) {
                 add(&c, KN_SQLQ_RANK_SUM, "lone-feature-separates", k,
-                    kn_printf(a, "when '%s' has more than %llu groups and a numeric or temporal SQL type: the "
-                                 "Mann-Whitney rank sum per target class, by the engine",
+                    kn_printf(a, "when '%s' has more than %llu groups and a numeric or temporal SQL type, and the "
+                                 "target two values (in place of ':positive' and ':negative'): the Mann-Whitney "
+                                 "rank sum, by the engine",
                               esc(a, k->name), max_groups),
-                    kn_sql_rank_sum_query(a, d, rb, table, query_sql, k->name, target->name));
+                    kn_sql_rank_sum_query(a, d, rb, table, query_sql, k->name, target->name, ":positive",
+                                          ":negative"));
             }
             add(&c, KN_SQLQ_MISSING, "missingness-predicts", k,
                 kn_printf(a, "when '%s' has more than %llu groups: its missing rows per target class", esc(a, k->name),
@@ -749,13 +743,10 @@ void kn_sql_make(kn_arena *a, const kn_schema *s, const kn_rulebook *rb, const c
         }
         add(&c, KN_SQLQ_LATE, "timestamp-after-moment", k,
             kn_printf(a, "rows where '%s' is %s the moment column '%s' (compared by the engine: typed columns, or ISO 8601 "
-                         "text in one zone)",
-                      esc(a, k->name), rb->strict_moment ? "at or after" : "after", esc(a, moment->name)),
-            kn_sql_late_query(a, d, rb, table, query_sql, k->name, moment->name));
-        add(&c, KN_SQLQ_LATE_EXAMPLE, "timestamp-after-moment", k,
-            key ? kn_printf(a, "when there are such rows: the one with the least '%s'", esc(a, key->name))
-                : "when there are such rows: one of them",
-            kn_sql_late_example(a, d, rb, table, query_sql, k->name, moment->name, key ? key->name : NULL));
+                         "text in one zone): how many, and the one with the least %s",
+                      esc(a, k->name), rb->strict_moment ? "at or after" : "after", esc(a, moment->name),
+                      key ? kn_printf(a, "'%s'", esc(a, key->name)) : "value"),
+            kn_sql_late_query(a, d, rb, table, query_sql, k->name, moment->name, key ? key->name : NULL));
     }
 
     /* rows-shared-across-split and entity-in-both-splits. */

@@ -42,12 +42,11 @@ typedef enum kn_sql_kind {
     KN_SQLQ_ROWS,       /* one row: rows */
     KN_SQLQ_VALUES,     /* rows (v, n): the column's distinct values */
     KN_SQLQ_CONTINGENCY,/* rows (v, t, n): distinct value, target value, rows */
-    KN_SQLQ_LATE,       /* one row: rows whose value is later than the moment */
+    KN_SQLQ_LATE,       /* at most one row (n, v, m[, k]): late rows, the first of them */
     KN_SQLQ_OVERLAP,    /* one row: train, test, shared keys, train and test rows shared */
     KN_SQLQ_GROUPS,     /* rows (size, groups): quasi-identifier group sizes */
     KN_SQLQ_RANK_SUM,   /* rows (t, two_u, n): the engine's rank sum per target value */
     KN_SQLQ_MISSING,    /* rows (t, missing, n): missing rows per target value */
-    KN_SQLQ_LATE_EXAMPLE, /* at most one row (v, m[, k]): a late value, its moment and key */
 } kn_sql_kind;
 
 /* Rows of one aggregate query the client reads by default (--max-rows in
@@ -97,25 +96,24 @@ char *kn_sql_groups_query(kn_arena *a, kn_sql_dialect d, const char *table, cons
  * cannot. */
 char *kn_sql_seed_query(kn_arena *a, kn_sql_dialect d, uint64_t seed);
 
-/* Rows (t, two_u, n): for each target value t, twice the Mann-Whitney U
- * of col with t as the positive class against every other value, and its
- * rows; rows where col or the target is missing are left out.  Window
- * functions (SQL:2003). */
+/* One row (two_u, n_pos, n_neg): twice the Mann-Whitney U of col with
+ * the target value positive (a string literal, as the engine sent it)
+ * against negative, and the rows of each; rows where col or the target is
+ * missing are left out.  A window sum (SQL:2003). */
 char *kn_sql_rank_sum_query(kn_arena *a, kn_sql_dialect d, const kn_rulebook *rb, const char *table,
-                            const char *query_sql, const char *col, const char *target);
+                            const char *query_sql, const char *col, const char *target, const char *positive,
+                            const char *negative);
 
 /* Rows ([t,] n_missing, n): rows where col is missing, per target value
  * (target NULL: one row). */
 char *kn_sql_missing_query(kn_arena *a, kn_sql_dialect d, const kn_rulebook *rb, const char *table,
                            const char *query_sql, const char *col, const char *target);
 
-/* One row (n): rows where col is later than the moment (not earlier with
- * strict_moment); and at most one such row (v, m[, k]), the one with the
- * least key (NULL key: the least value). */
+/* At most one row (n, v, m[, k]): how many rows have col later than the
+ * moment (not earlier with strict_moment), and of them the one with the
+ * least key (NULL key: the least value); no row when there is none. */
 char *kn_sql_late_query(kn_arena *a, kn_sql_dialect d, const kn_rulebook *rb, const char *table,
-                        const char *query_sql, const char *col, const char *moment);
-char *kn_sql_late_example(kn_arena *a, kn_sql_dialect d, const kn_rulebook *rb, const char *table,
-                          const char *query_sql, const char *col, const char *moment, const char *key);
+                        const char *query_sql, const char *col, const char *moment, const char *key);
 
 /* One row (k): the least key of the rows whose col, as text, is value. */
 char *kn_sql_key_of_value(kn_arena *a, kn_sql_dialect d, const char *table, const char *query_sql, const char *col,
