@@ -14,7 +14,7 @@ SELECT i AS leg_id,
        'D' || lpad((i * 31 % 40)::text, 2, '0') AS depot,
        (18 + (i * 13 % 60) / 10 * 10)::int AS sender_age_band,
        stops,
-       TIMESTAMP '2025-01-01' + (i % 525600) * INTERVAL '1 minute' + (r4 * 50 - 2) * INTERVAL '1 hour' AS promised_at,
+       TIMESTAMP '2025-01-01' + (i % 525600) * INTERVAL '1 minute' + (r4 * 50 - 48) * INTERVAL '1 hour' AS promised_at,
        CASE WHEN r5 < 0.05 THEN NULL ELSE r5 < 0.3 END AS fragile,
        CASE WHEN ((stops > 15 AND r7 < 0.7) OR r7 < 0.1) AND r6 < 0.5 THEN NULL
             ELSE round((r6 * 500)::numeric, 2) END AS declared_value

@@ -507,6 +507,136 @@ static void test_reservoir_uniform(void **state)
     }
 }
 
+/* ---- a database's groups: the same figures as the rows they stand for ---- */
+
+/* Seeded groups (value, positive rows, negative rows) with ties across
+ * groups: the AUC from the counts equals the AUC of the expanded rows. */
+static void test_auc_levels_equal_rows(void **state)
+{
+    enum { G = 300 };
+    double lv[G];
+    uint64_t pos[G], neg[G];
+    static double score[G * 20];
+    static bool y[G * 20];
+    size_t n = 0;
+    kn_rng r;
+    kn_rng_seed(&r, 7);
+    for (size_t i = 0; i < G; i++) {
+        lv[i] = (double)kn_rng_below(&r, 60) / 4.0; /* many groups share a value */
+        pos[i] = kn_rng_below(&r, 8);
+        neg[i] = kn_rng_below(&r, 8);
+        for (uint64_t k = 0; k < pos[i] + neg[i]; k++) {
+            score[n] = lv[i];
+            y[n++] = k < pos[i];
+        }
+    }
+    kn_auc a, b;
+    assert_true(kn_stats_auc(*state, score, y, n, &a));
+    assert_true(kn_stats_auc_levels(*state, lv, pos, neg, G, &b));
+    assert_true(a.auc == b.auc); /* exact: both are integers over the same product */
+    assert_int_equal(a.n_pos, b.n_pos);
+    assert_int_equal(a.n_neg, b.n_neg);
+}
+
+/* kn_auc_finish from twice U and the class sizes (an engine's rank sum). */
+static void test_auc_finish(void **state)
+{
+    (void)state;
+    kn_auc a;
+    assert_true(kn_auc_finish(6, 2, 3, &a)); /* U = 3 of 6 pairs */
+    assert_close(a.auc, 0.5);
+    assert_true(kn_auc_finish(2, 1, 4, &a)); /* U = 1 of 4 */
+    assert_close(a.auc, 0.25);
+    assert_close(a.separation, 0.75);
+    assert_false(kn_auc_finish(0, 0, 4, &a));
+    assert_close(a.auc, 0.5);
+}
+
+/* Weighted pairs give the U of the rows they stand for, through the
+ * counting table and through sorted pairs alike. */
+static void test_u_weighted_equals_rows(void **state)
+{
+    enum { G = 200 };
+    uint32_t x[G], y[G];
+    uint64_t w[G];
+    static uint32_t xr[G * 10], yr[G * 10];
+    size_t n = 0;
+    kn_rng r;
+    kn_rng_seed(&r, 11);
+    for (size_t i = 0; i < G; i++) {
+        x[i] = 1 + (uint32_t)kn_rng_below(&r, 12);
+        y[i] = 1 + (uint32_t)kn_rng_below(&r, 3);
+        w[i] = kn_rng_below(&r, 10);
+        for (uint64_t k = 0; k < w[i]; k++) {
+            xr[n] = x[i];
+            yr[n++] = y[i];
+        }
+    }
+    kn_uncertainty rows, grouped, sorted;
+    assert_true(kn_uncertainty_ids(*state, xr, yr, n, 13, 4, &rows));
+    assert_true(kn_uncertainty_weighted(*state, x, y, w, G, 13, 4, &grouped));
+    assert_true(kn_uncertainty_weighted(*state, x, y, w, G, KN_UNCERTAINTY_TABLE_MAX, 4, &sorted));
+    assert_true(fabs(rows.u - grouped.u) < 1e-12 && fabs(rows.u - sorted.u) < 1e-12);
+    assert_int_equal(rows.n, grouped.n);
+    assert_int_equal(rows.n, sorted.n);
+    assert_int_equal(rows.x_levels, sorted.x_levels);
+}
+
+/* Quantile bins of weighted values: the codes of the rows they stand for. */
+static void test_quantile_bins_weighted(void **state)
+{
+    double v[] = {3, 1, NAN, 2, 5, 4};
+    uint64_t w[] = {2, 5, 9, 1, 0, 4};
+    static double rows[32];
+    size_t n = 0;
+    for (size_t i = 0; i < N_OF(v); i++) {
+        for (uint64_t k = 0; k < w[i]; k++) {
+            rows[n++] = v[i];
+        }
+    }
+    uint32_t code_rows[32], code[N_OF(v)];
+    size_t used_rows = kn_quantile_bins(*state, rows, n, 3, code_rows);
+    size_t used = kn_quantile_bins_weighted(*state, v, w, N_OF(v), 3, code);
+    assert_int_equal(used, used_rows);
+    n = 0;
+    for (size_t i = 0; i < N_OF(v); i++) {
+        for (uint64_t k = 0; k < w[i]; k++) {
+            assert_int_equal(code[i], code_rows[n++]);
+        }
+    }
+}
+
+/* A database's histogram of group sizes gives the k-anonymity of the
+ * groups it describes. */
+static void test_kanon_from_sizes(void **state)
+{
+    kn_groups *g = kn_groups_new(*state);
+    kn_groups_add_sizes(g, 1, 3); /* three groups of one row */
+    kn_groups_add_sizes(g, 4, 2);
+    kn_groups_add_sizes(g, 9, 1);
+    kn_kanon k;
+    kn_groups_kanon(g, 5, &k);
+    assert_int_equal(k.rows, 3 + 8 + 9);
+    assert_int_equal(k.groups, 6);
+    assert_int_equal(k.smallest, 1);
+    assert_int_equal(k.groups_below_k, 5);
+    assert_int_equal(k.rows_below_k, 11);
+    assert_int_equal(k.smallest_line, 0);
+}
+
+static void test_overlap_preset(void **state)
+{
+    kn_overlap *o = kn_overlap_new(*state);
+    kn_overlap_result in = {.train_rows = 10, .test_rows = 4, .shared_keys = 2, .test_rows_shared = 2,
+                            .train_rows_shared = 3, .first_key = "C0042"},
+                      out;
+    kn_overlap_set(o, &in);
+    kn_overlap_result_get(o, &out);
+    assert_int_equal(out.train_rows, 10);
+    assert_int_equal(out.test_rows_shared, 2);
+    assert_string_equal(out.first_key, "C0042");
+}
+
 int main(void)
 {
 #define T(f) cmocka_unit_test_setup_teardown(f, setup, teardown)
@@ -541,6 +671,12 @@ int main(void)
         T(test_reservoir_keeps_first_cap_items),
         T(test_reservoir_reproducible),
         T(test_reservoir_uniform),
+        T(test_auc_levels_equal_rows),
+        T(test_auc_finish),
+        T(test_u_weighted_equals_rows),
+        T(test_quantile_bins_weighted),
+        T(test_kanon_from_sizes),
+        T(test_overlap_preset),
     };
 #undef T
     return cmocka_run_group_tests(tests, NULL, NULL);
