@@ -185,6 +185,49 @@ static void test_position_beyond_32_bits(void **state)
     assert_int_equal(p.col, 0);
 }
 
+/* A database's groups: each counts its rows in every tally and keeps its
+ * weight; SQL NULL is missing even when the rulebook's markers leave the
+ * empty text out. */
+static void test_groups_weighted(void **state)
+{
+    kn_arena *a = *state;
+    kn_table t;
+    memset(&t, 0, sizeof t);
+    t.a = a;
+    t.max_rows = 1;
+    static const char *const only_na[] = {"NA"};
+    kn_missing_init(&t.missing, only_na, 1);
+    t.cols = kn_alloc_array(a, 2, sizeof *t.cols);
+    t.cols[0] = (kn_tcol){.name = "loaves", .field = 0, .type = KN_TYPE_NUMBER, .feature = true};
+    t.cols[1] = (kn_tcol){.name = "sold_out", .field = 1, .type = KN_TYPE_BOOLEAN};
+    t.n_cols = 2;
+    t.target = &t.cols[1];
+    kn_table_layout(&t);
+    kn_csv_field f[2] = {{"12", 2, false}, {"yes", 3, false}};
+    kn_table_add_group(&t, f, 2, 7, true);
+    f[0] = (kn_csv_field){NULL, 0, false}; /* NULL */
+    f[1] = (kn_csv_field){"no", 2, false};
+    kn_table_add_group(&t, f, 2, 5, true);
+    f[0] = (kn_csv_field){"twelve", 6, false};
+    kn_table_add_group(&t, f, 2, 3, true);
+    f[0] = (kn_csv_field){"", 0, false}; /* the empty text: not missing under these markers */
+    kn_table_add_group(&t, f, 2, 2, false);
+    assert_int_equal(t.rows, 17);
+    assert_int_equal(t.kept, 3);
+    assert_int_equal(t.weight[0], 7);
+    assert_int_equal(t.weight[2], 3);
+    assert_int_equal(t.cols[0].missing, 5);
+    assert_int_equal(t.cols[0].bad_type.count, 5); /* "twelve" x 3 and "" x 2 */
+    assert_string_equal(t.cols[0].bad_type.value, "twelve");
+    assert_int_equal(t.cols[0].bad_type.line, 0);
+    assert_true(kn_table_is_missing(&t, t.cols[0].mbit, 1));
+    assert_false(kn_table_is_missing(&t, t.cols[0].mbit, 0));
+    assert_true(kn_table_num(&t, t.cols[0].num_cell, 0) == 12.0);
+    size_t len;
+    assert_string_equal(kn_dict_text(t.tdict, kn_table_target(&t, 0), &len), "true");
+    assert_string_equal(kn_dict_text(t.tdict, kn_table_target(&t, 1), &len), "false");
+}
+
 int main(void)
 {
 #define T(f) cmocka_unit_test_setup_teardown(f, setup, teardown)
@@ -194,6 +237,7 @@ int main(void)
         T(test_strict_moment),
         T(test_missing_values_setting),
         T(test_position_beyond_32_bits),
+        T(test_groups_weighted),
     };
 #undef T
     return cmocka_run_group_tests(tests, NULL, NULL);
