@@ -418,6 +418,27 @@ case_readme_ci() {
     expect attack.out 'is a rulebook'
 }
 
+# ---- the README's report excerpt, as it stands -----------------------------
+# Every line of the block after "From the demo (" (but "...") is a line of
+# the demo's report, in the same order; the summary is its last line.
+case_readme_report() {
+    awk '/^From the demo \(/ { found = 1; next }
+         found && /^```/ && !inside { inside = 1; next }
+         inside && /^```/ { exit }
+         inside { print }' "$src/README.md" >excerpt.txt
+    [ -s excerpt.txt ] || { fail "no report excerpt after 'From the demo (' in README.md"; return; }
+    (cd "$src/examples" && "$knowable" check --color never -- parcel-delays.knowable.yaml) >report.txt 2>&1
+    rc=$?
+    name=report
+    expect_rc 1
+    # Each excerpt line must be found after the previous one.
+    awk 'NR == FNR { if ($0 != "...") want[++n] = $0; next }
+         k < n && $0 == want[k + 1] { k++ }
+         END { if (k < n) { print "not in the report (in order): " want[k + 1]; exit 1 } }' \
+        excerpt.txt report.txt || fail "the README's excerpt is not what check prints"
+    [ "$(tail -n 1 excerpt.txt)" = "$(tail -n 1 report.txt)" ] || fail "the README's summary line is not check's"
+}
+
 "case_$(echo "$case" | tr '-' '_')"
 if [ "$fails" -ne 0 ]; then
     echo "$case: $fails failure(s)"
