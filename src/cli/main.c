@@ -20,12 +20,13 @@ static const char usage_text[] =
     "commands:\n"
     "  check [OPTIONS] [--] SCHEMA... lint schemas (the main job)\n"
     "  explain RULE                   what a rule finds, why, how to fix it\n"
-    "  rules [--rulebook F]           every rule with its effective severity\n"
-    "  sources SCHEMA... [--format markdown|json] [-o FILE]\n"
+    "  rules [--rulebook F] [SCHEMA]  every rule with its effective severity\n"
+    "  sources [--format markdown|json] [-o FILE] [--] SCHEMA...\n"
     "                                 register of feature sources and their provenance\n"
-    "  timeline SCHEMA [--svg FILE]   each event and column placed relative to the moment\n"
-    "  init DATA.csv [-o FILE]        draft a schema from a data sample\n"
-    "  sql SCHEMA --table NAME [--dialect D]   the data checks as aggregate SQL, for review\n"
+    "  timeline [--svg FILE] [--] SCHEMA   each event and column placed relative to the moment\n"
+    "  init [-o FILE [--force]] [--] DATA.csv   draft a schema from a data sample\n"
+    "  sql (--table NAME | --query FILE.sql) [--dialect D] [--] SCHEMA\n"
+    "                                 the data checks as aggregate SQL, for review\n"
     "  json-schema                    a JSON Schema of the schema format, for editors\n"
     "  lsp [--rulebook F] [--root D]  a language server for editors (LSP over stdin/stdout)\n"
     "  help COMMAND                   help on one command (`knowable help help`)\n"
@@ -81,9 +82,12 @@ static const char help_help[] =
     "Without COMMAND, the list of commands; with one, its options.  The commands are\n"
     "check, explain, rules, sources, timeline, init, sql, json-schema, lsp and help.\n";
 static const char sources_help[] =
-    "usage: knowable sources [--format markdown|json] [-o FILE] [--root DIR] [--] SCHEMA...\n\n"
+    "usage: knowable sources [--format markdown|json] [-o FILE] [--rulebook FILE]... [--root DIR]\n"
+    "                        [--] SCHEMA...\n\n"
     "The register of feature sources: external sources first, with their provenance,\n"
-    "then which columns come from each source, by which key and as of which event.\n";
+    "the findings of `check` against each (and the waivers declared on it), then which\n"
+    "columns come from each source, by which key and as of which event.  The rulebook\n"
+    "decides which provenance fields are required, as for `check`.\n";
 static const char timeline_help[] =
     "usage: knowable timeline [--svg FILE] [--rulebook FILE] [--root DIR] [--] SCHEMA\n\n"
     "Each event's range relative to the moment, then each column's availability and verdict.\n"
@@ -177,6 +181,9 @@ static const char *kn_cli_strndup(const char *s, size_t n)
     return p;
 }
 
+/* The command being parsed, once known: a usage error points at its help. */
+static const char *usage_command;
+
 __attribute__((format(printf, 1, 2)))
 static int bad(const char *fmt, ...)
 {
@@ -185,7 +192,11 @@ static int bad(const char *fmt, ...)
     va_start(ap, fmt);
     vfprintf(stderr, fmt, ap);
     va_end(ap);
-    fputs("\n(try 'knowable --help')\n", stderr);
+    if (usage_command) {
+        fprintf(stderr, "\n(see 'knowable help %s')\n", usage_command);
+    } else {
+        fputs("\n(try 'knowable --help')\n", stderr);
+    }
     return KN_EXIT_FAILED;
 }
 
@@ -198,7 +209,9 @@ static const char *value_of(int argc, char **argv, int *i, const char *name)
         return a + n + 1;
     }
     if (strcmp(a, name) == 0) {
-        if (*i + 1 >= argc) {
+        /* "--" ends the options: it is never an option's value (check -o --
+         * FILE would otherwise write the report to a file named "--"). */
+        if (*i + 1 >= argc || strcmp(argv[*i + 1], "--") == 0) {
             return NULL;
         }
         return argv[++*i];
@@ -407,10 +420,11 @@ static int parse(int argc, char **argv, int first, args *ar)
             } else if (strcmp(v, "markdown") == 0) {
                 ar->opt.format = KN_FORMAT_MARKDOWN;
             } else {
-                return bad("unknown format '%s' (text, json, sarif or markdown)", v);
+                return bad("unknown format '%s' (check writes text, json or sarif; sources markdown or json)", v);
             }
         } else if (strcmp(a, "-o") == 0 || is_opt(a, "--output")) {
-            v = strcmp(a, "-o") == 0 ? (i + 1 < argc ? argv[++i] : NULL) : value_of(argc, argv, &i, "--output");
+            v = strcmp(a, "-o") == 0 ? (i + 1 < argc && strcmp(argv[i + 1], "--") != 0 ? argv[++i] : NULL)
+                                     : value_of(argc, argv, &i, "--output");
             if (!v) {
                 return bad("%s needs a file", "-o");
             }
@@ -611,6 +625,10 @@ static int dispatch(int argc, char **argv)
         }
         const char *h = help_for(argv[2]);
         if (!h) {
+            const char *near = near_command(argv[2]);
+            if (near) {
+                return bad("no command '%s'; did you mean '%s'?", argv[2], near);
+            }
             return bad("no command '%s'", argv[2]);
         }
         fputs(h, stdout);
@@ -625,6 +643,7 @@ static int dispatch(int argc, char **argv)
         return bad("no command '%s'", cmd);
     }
     static args ar;
+    usage_command = cmd;
     int rc = parse(argc, argv, 2, &ar);
     if (rc != KN_EXIT_OK) {
         return rc;
@@ -635,7 +654,7 @@ static int dispatch(int argc, char **argv)
     }
     const char *foreign = foreign_option(&ar, cmd);
     if (foreign) {
-        return bad("%s does not take %s (see 'knowable help %s')", cmd, foreign, cmd);
+        return bad("%s does not take %s", cmd, foreign);
     }
     if (strcmp(cmd, "check") == 0) {
         if (!ar.n_positional) {

@@ -231,6 +231,15 @@ case_options() {
     run typo check --fromat json -- s.knowable.yaml
     expect_rc 2
     expect typo.err "unknown option '--fromat'; did you mean '--format'?"
+    expect typo.err "(see 'knowable help check')"
+    # "--" ends the options: never an option's value.
+    run dashdash-value check -o -- s.knowable.yaml
+    expect_rc 2
+    expect dashdash-value.err "-o needs a file"
+    [ -e ./-- ] && fail "check -o -- wrote a file named --"
+    run help-typo help chek
+    expect_rc 2
+    expect help-typo.err "did you mean 'check'?"
     run typo-eq check --rulebok=x.yaml -- s.knowable.yaml
     expect_rc 2
     expect typo-eq.err "did you mean '--rulebook'?"
