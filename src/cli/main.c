@@ -64,6 +64,8 @@ static const char check_help[] =
     "  --max-rows N           sample at most N data rows (reservoir sampling); in a\n"
     "                         database, read at most N rows per query (default 20000)\n"
     "  -q, --quiet            diagnostics only: no notes, no summary\n"
+    "  --today YYYY-MM-DD     the date waivers' expires is compared with (default today,\n"
+    "                         UTC, or KNOWABLE_TODAY)\n"
     "\n"
     "rulebook: without --rulebook, each schema is judged under the nearest\n"
     ".knowable-rules.yaml in its folder or a parent (no higher than its repository\n"
