@@ -170,6 +170,19 @@ static void note_wait(const cx *x, kn_diag *d, const kn_column *c)
                      "(sources.%s.refresh)",
                      src->name, dur(src->refresh, b), dur(src->refresh, b), src->name);
     }
+    /* Known exactly at the moment and late only by the source's wait: most
+     * often a value that comes with the request itself, declared with the
+     * source it is also stored in. */
+    const kn_column_timing *T = kn_timeline_column_timing(x->t, c);
+    bool waits = (src->latency.present && src->latency.hi > 0) || (src->has_refresh && src->refresh > 0);
+    if (T && waits && !c->delay.present && !c->n_one_of && T->has[KN_PART_KNOWN] &&
+        T->event[KN_PART_KNOWN].lo == 0 && T->event[KN_PART_KNOWN].hi == 0) {
+        kn_diag_note(x->ctx->sink, d, at(c, c->source.node),
+                     "if '%s' comes with the prediction request itself (sent by the caller or typed in), "
+                     "it is there at the moment: declare it without source '%s', whose wait is for "
+                     "records the model has to look up",
+                     c->name, src->name);
+    }
 }
 
 /* A range relative to the moment in words, through a small table keyed by
