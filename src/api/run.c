@@ -221,6 +221,16 @@ void kn_run_finish(kn_run *r)
     kn_sink_finish(r->sink, r->today);
 }
 
+static int cmp_origin(const void *pa, const void *pb)
+{
+    const char *a = *(const char *const *)pa, *b = *(const char *const *)pb;
+    bool ba = strcmp(a, "(built-in)") == 0, bb = strcmp(b, "(built-in)") == 0;
+    if (ba != bb) {
+        return ba ? 1 : -1;
+    }
+    return strcmp(a, b);
+}
+
 void kn_run_render(kn_run *r, FILE *out, kn_format fmt)
 {
     const kn_options *o = r->opt;
@@ -230,14 +240,44 @@ void kn_run_render(kn_run *r, FILE *out, kn_format fmt)
         judged += units[i]->rulebook != NULL;
     }
     /* The rulebooks in force, when some schema is not judged by the
-     * built-in one alone, in the order first used. */
+     * built-in one alone, in the order first used: "rulebook FILE" when it
+     * judged every schema, else each with the number of schemas it judged
+     * ("rulebooks a/.knowable-rules.yaml for 2, the built-in for 1"). */
     const char *names = "";
     kn_name_map *seen = kn_names_new(r->arena);
+    size_t *count = kn_alloc_array(r->arena, r->units->len + 1, sizeof *count);
     for (size_t i = 0; i < r->units->len; i++) {
         const kn_rulebook *rb = units[i]->rulebook;
-        if (rb && strcmp(rb->origin, "(built-in)") != 0 && kn_names_put(seen, rb->origin, seen)) {
-            names = *names ? kn_printf(r->arena, "%s, %s", names, rb->origin) : rb->origin;
+        if (!rb) {
+            continue;
         }
+        size_t *c = kn_names_get(seen, rb->origin);
+        if (!c) {
+            c = &count[kn_names_count(seen)];
+            kn_names_put(seen, rb->origin, c);
+        }
+        ++*c;
+    }
+    /* By name, the built-in last: the line is the same whatever the order
+     * of the schemas on the command line. */
+    size_t n_origins = kn_names_count(seen);
+    const char **origins = kn_alloc_array(r->arena, n_origins + 1, sizeof *origins);
+    for (size_t i = 0; i < n_origins; i++) {
+        origins[i] = kn_names_at(seen, i);
+    }
+    qsort(origins, n_origins, sizeof *origins, cmp_origin);
+    for (size_t i = 0; i < n_origins; i++) {
+        const char *origin = origins[i];
+        size_t n = *(size_t *)kn_names_get(seen, origin);
+        bool builtin = strcmp(origin, "(built-in)") == 0;
+        if (n_origins == 1) {
+            names = builtin ? "" : kn_printf(r->arena, "rulebook %s", origin);
+        } else {
+            names = kn_printf(r->arena, "%s%s%s for %zu", names, i ? ", " : "", builtin ? "the built-in" : origin, n);
+        }
+    }
+    if (n_origins > 1) {
+        names = kn_printf(r->arena, "rulebooks %s", names);
     }
     kn_render_opts ro = {o->color, o->quiet, o->show_waived, judged, names};
     /* The report is written in many small pieces: the stream is locked once

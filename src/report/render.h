@@ -12,8 +12,10 @@ typedef struct kn_render_opts {
     bool quiet;
     bool show_waived;
     size_t n_schemas;
-    const char *rulebooks; /* the rulebook files in force, when not only the
-                              built-in one ("a.yaml, b.yaml"); NULL or "" */
+    const char *rulebooks; /* the rulebooks in force, when not only the
+                              built-in one: "rulebook a.yaml" (it judged every
+                              schema) or "rulebooks a.yaml for 2, the built-in
+                              for 1"; NULL or "" */
 } kn_render_opts;
 
 /* FILE:LINE:COL: SEVERITY: MESSAGE [RULE], notes, then the summary line.

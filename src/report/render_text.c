@@ -132,7 +132,7 @@ void kn_render_summary(FILE *out, const kn_sink *s, const kn_render_opts *o)
     }
     fprintf(out, " in %zu schema%s", o->n_schemas, o->n_schemas == 1 ? "" : "s");
     if (o->rulebooks && *o->rulebooks) {
-        fputs(" (rulebook ", out);
+        fputs(" (", out);
         kn_fput_term(out, o->rulebooks, strlen(o->rulebooks));
         fputc(')', out);
     }

@@ -60,6 +60,14 @@ import json, sys
 a, b = (sorted(json.dumps(d, sort_keys=True) for d in json.load(open(f))["diagnostics"]) for f in sys.argv[1:])
 sys.exit(0 if a == b else 1)
 PY
+    # The text reports of the two orders are the same, and the summary says
+    # which rulebook judged how many schemas.
+    run ab-text check -- teamA/a.knowable.yaml teamB/b.knowable.yaml
+    run ba-text check -- teamB/b.knowable.yaml teamA/a.knowable.yaml
+    sort ab-text.out >ab-sorted.txt
+    sort ba-text.out >ba-sorted.txt
+    cmp -s ab-sorted.txt ba-sorted.txt || fail "the two orders give different text reports"
+    expect ab-text.out "in 2 schemas (rulebooks teamB/.knowable-rules.yaml for 1, the built-in for 1)$"
     # teamA's warning stays a warning; teamB's is an error.
     run a check -- teamA/a.knowable.yaml
     expect_rc 0
