@@ -67,6 +67,7 @@ typedef struct reader {
     const char *why; /* first problem, NULL while fine */
     kn_vec *fingerprints; /* uint64_t */
     bool has_version, has_findings;
+    bool has_diagnostics; /* a top-level "diagnostics": a check report */
 } reader;
 
 /* What the value being read means in a baseline. */
@@ -234,6 +235,7 @@ static bool read_object(reader *r, slot what, int depth)
         skip_ws(r);
         slot sub = member_slot(what, key, len);
         has_fingerprint |= sub == S_FINGERPRINT;
+        r->has_diagnostics |= what == S_TOP && len == 11 && memcmp(key, "diagnostics", 11) == 0;
         if (!read_value(r, sub, depth + 1)) {
             return false;
         }
@@ -298,7 +300,9 @@ static bool read_value(reader *r, slot what, int depth)
         if (what == S_TOP) {
             ok = read_object(r, what, depth);
             if (ok && !r->has_findings) {
-                return fail(r, "no 'findings' list");
+                return fail(r, r->has_diagnostics ? "this is a check report (--format json), not a baseline; "
+                                                    "write a baseline with --write-baseline FILE"
+                                                  : "no 'findings' list");
             }
             if (ok && !r->has_version) {
                 return fail(r, "no 'knowable_baseline: 2'; is this a knowable baseline?");
@@ -416,7 +420,7 @@ bool kn_baseline_read(kn_sink *s, const char *path, FILE *err)
     if (!text) {
         return false;
     }
-    reader r = {text, text + len, 1, NULL, kn_vec_new(a, sizeof(uint64_t)), false, false};
+    reader r = {text, text + len, 1, NULL, kn_vec_new(a, sizeof(uint64_t)), false, false, false};
     if (len >= 3 && memcmp(text, "\xef\xbb\xbf", 3) == 0) {
         r.p += 3;
     }

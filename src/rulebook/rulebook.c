@@ -179,6 +179,12 @@ static void load_severity(rb_ld *l, const kn_node *v)
         if (!word || !parse_severity(word, &sev)) {
             static const char *const words[] = {"error", "warning", "note", "off"};
             const char *near = word ? kn_suggest(word, words, N(words)) : NULL;
+            /* "warn", "err": a short form is a prefix of the word meant. */
+            for (size_t w = 0; !near && word && strlen(word) >= 3 && w < N(words); w++) {
+                if (strncmp(words[w], word, strlen(word)) == 0) {
+                    near = words[w];
+                }
+            }
             if (near) {
                 fail(l, KN_R_SCHEMA_SHAPE, s, "the severity of '%s' must be error, warning, note or off; did you mean '%s'?",
                      id, near);

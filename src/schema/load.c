@@ -1202,8 +1202,16 @@ static void load_file(ld *l, const char *real, const char *display, bool main_fi
     owner o = {main_file ? "the schema" : "the included file", NULL, -1, root};
     kn_node *vals[MAX_KEYS];
     if (root->kind != KN_NODE_MAP) {
-        err(l, KN_R_SCHEMA_SHAPE, root, "%s must be a mapping with keys such as knowable, dataset, events, columns; found %s",
-            main_file ? "a schema" : "an included file", kn_node_kind_name(root));
+        kn_diag *d = err(l, KN_R_SCHEMA_SHAPE, root,
+                         "%s must be a mapping with keys such as knowable, dataset, events, columns; found %s",
+                         main_file ? "a schema" : "an included file", kn_node_kind_name(root));
+        size_t dl = strlen(display);
+        if (main_file && dl >= 4 && strcmp(display + dl - 4, ".csv") == 0) {
+            kn_diag_note(l->sink, d, &root->pos,
+                         "this looks like a data file: a sample of the table goes with --data FILE beside its "
+                         "schema (`knowable check --data %s -- SCHEMA`), and `knowable init -- %s` drafts one",
+                         display, display);
+        }
         l->stack->len--;
         return;
     }

@@ -389,10 +389,16 @@ static void parser_error(loader *ld, yaml_parser_t *p)
         msg = kn_printf(ld->arena, "%s: %s", error_kind(p->error), problem);
     }
     kn_pos cpos = {0};
-    if (p->context) {
+    const char *context = p->context;
+    if (context) {
         cpos = mark_pos(ld, p->context_mark);
     }
-    ld->rep->problem(ld->rep->ctx, KN_YAML_SYNTAX, &pos, NULL, msg, p->context ? &cpos : NULL, p->context);
+    /* A tab where a token should start is, nearly always, indentation. */
+    if (p->error == YAML_SCANNER_ERROR && pos.offset < ld->len && ld->buf[pos.offset] == '\t') {
+        cpos = pos;
+        context = "a tab: YAML indents with spaces only";
+    }
+    ld->rep->problem(ld->rep->ctx, KN_YAML_SYNTAX, &pos, NULL, msg, context ? &cpos : NULL, context);
     ld->failed = true;
 }
 

@@ -333,6 +333,24 @@ case_stdin() {
 }
 
 case_messages() {
+    # Common first mistakes get a message that says what to do.
+    printf 'knowable: 1\ncolumns:\n\tx: {known: a}\n' >tab.knowable.yaml
+    run tab check -- tab.knowable.yaml
+    expect_rc 2
+    expect tab.out "tab.knowable.yaml:3:1: note: a tab: YAML indents with spaces only"
+    printf 'order_id,weight_kg\nA1,2.5\n' >orders.csv
+    run csv-as-schema check -- orders.csv
+    expect_rc 1
+    expect csv-as-schema.out "this looks like a data file: .*--data"
+    schema base.knowable.yaml
+    run report check --format json -o report.json -- base.knowable.yaml
+    run report-as-baseline check --baseline report.json -- base.knowable.yaml
+    expect_rc 2
+    expect report-as-baseline.err "this is a check report (--format json), not a baseline"
+    printf 'knowable_rulebook: 1\nseverity: {after-moment: warn}\n' >warn.yaml
+    run warn check --rulebook warn.yaml -- base.knowable.yaml
+    expect_rc 2
+    expect warn.out "did you mean 'warning'?"
     # A missing required key: no empty parentheses.
     printf 'knowable: 1\ndataset: x\nevents: {a: {}}\ncolumns: {y: {known: a}}\n' >np.knowable.yaml
     run no-prediction check -- np.knowable.yaml
