@@ -54,6 +54,7 @@ typedef struct colstat {
     uint64_t missing;
     uint64_t not_number, not_integer, not_boolean, not_timestamp, not_date;
     bool bool_words;  /* some value was true/false/yes/no, not only 1/0 */
+    bool not_split;   /* some value is not a word naming a part of a split */
     size_t max_len;
     uint64_t total_len;
 
@@ -62,8 +63,28 @@ typedef struct colstat {
 
     /* Results. */
     kn_value_type type;
-    bool identifier, identifier_by_name, timestamp, target;
+    bool identifier, identifier_by_name, timestamp, target, split;
 } colstat;
+
+/* Whether s (len bytes) names a part of a train/test split, in any case. */
+static bool split_word(const char *s, size_t len)
+{
+    static const char *const words[] = {"train", "training", "test", "testing", "valid", "validation",
+                                        "val", "holdout", "dev"};
+    for (size_t i = 0; i < sizeof words / sizeof *words; i++) {
+        size_t n = strlen(words[i]);
+        if (n == len) {
+            size_t k = 0;
+            while (k < n && (s[k] | 0x20) == words[i][k]) {
+                k++;
+            }
+            if (k == n) {
+                return true;
+            }
+        }
+    }
+    return false;
+}
 
 /* FNV-1a, 64 bits (Fowler, Noll and Vo); 0 is mapped away from the empty mark. */
 static uint64_t hash_bytes(const char *s, size_t len)
@@ -117,6 +138,12 @@ static void observe(kn_arena *a, const kn_missing *missing, colstat *c, const ch
         return;
     }
     c->values++;
+    {
+        const char *t = s;
+        size_t tl = len;
+        trim(&t, &tl);
+        c->not_split = c->not_split || !split_word(t, tl);
+    }
     double d;
     bool b;
     int64_t us;
@@ -178,6 +205,8 @@ static void infer(colstat *c, kn_regex *id_names)
         c->identifier_by_name = kn_regex_match(id_names, c->name, c->len, NULL) == KN_MATCH_FOUND;
     }
     c->identifier = c->identifier_by_name || (code_like && unique);
+    /* Every value a word such as train, test or validation: the split. */
+    c->split = c->values > 0 && !c->not_split && !c->identifier && !c->timestamp;
 }
 
 /* ---- YAML output ---------------------------------------------------------- */
@@ -304,6 +333,8 @@ static void write_column(FILE *out, const colstat *c, const char *placeholder)
                                       : "nearly every sampled value is different");
     } else if (c->timestamp) {
         fputs("    role: timestamp\n", out);
+    } else if (c->split) {
+        fputs("    role: split  # its values name the parts of a train/test split\n", out);
     }
     if (c->type != KN_TYPE_UNSET) {
         fprintf(out, "    type: %s%s\n", kn_type_name(c->type), type_note(c));
@@ -312,7 +343,7 @@ static void write_column(FILE *out, const colstat *c, const char *placeholder)
     }
     if (c->target) {
         fputs("    known: " LABEL_EVENT "\n", out);
-    } else if (!c->identifier) {
+    } else if (!c->identifier && !c->split) {
         fprintf(out, "    known: %s\n", placeholder);
     }
 }

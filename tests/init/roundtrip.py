@@ -60,6 +60,7 @@ EXPECTED = {
         "helmet": ("boolean", None),
         "rider_age": ("number", None),
         "returned_late": ("boolean", "target"),
+        "split": ("category", "split"),
     },
 }
 
