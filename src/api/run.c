@@ -100,6 +100,9 @@ static kn_rulebook *read_rulebook(kn_run *r, const char *const *paths, size_t n)
 kn_rulebook *kn_run_rulebook(kn_run *r, const char *schema)
 {
     const kn_options *o = r->opt;
+    if (r->given) {
+        return r->given;
+    }
     if (o->n_rulebooks) {
         if (!r->named && !r->failed) {
             r->named = read_rulebook(r, o->rulebooks, o->n_rulebooks);

@@ -41,6 +41,9 @@ typedef struct kn_run {
     kn_rulebook *named;       /* from --rulebook, shared by every schema */
     kn_name_map *discovered;  /* discovered rulebook path -> kn_rulebook * */
     kn_rulebook *builtin;     /* when nothing is named or discovered */
+    kn_rulebook *given;       /* resolved by the caller, who keeps it across
+                                 runs (the language server): every schema is
+                                 judged under it; NULL: resolved here */
     kn_vec *units;            /* kn_unit * */
     kn_vec *outputs;          /* kn_defer * of each kn_output opened */
     struct kn_file_cache *files; /* included files parsed once per run (yaml/cache.h) */
@@ -66,7 +69,7 @@ kn_format kn_run_format(kn_run *r, unsigned allowed, kn_format dflt);
 /* The rulebook a schema is judged under (SPEC §5): the built-in default,
  * then every --rulebook in order, or else the nearest .knowable-rules.yaml
  * of the schema's folder or a parent.  Each file is read once per run.
- * schema may be NULL (no discovery).  NULL when a rulebook is broken (its
+ * r->given, when set, is returned as it is.  schema may be NULL (no discovery).  NULL when a rulebook is broken (its
  * errors are in the sink, which is then fatal). */
 kn_rulebook *kn_run_rulebook(kn_run *r, const char *schema);
 

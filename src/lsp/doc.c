@@ -233,6 +233,17 @@ void kn_lsp_drop_analysis(kn_doc *d)
     d->n_view = 0;
 }
 
+void kn_lsp_drop_rulebook(kn_doc *d)
+{
+    if (d->rb_arena) {
+        kn_arena_free(d->rb_arena);
+    }
+    d->rb_arena = NULL;
+    d->rulebook = NULL;
+    d->rb_key = NULL;
+    d->rb_stamps = NULL;
+}
+
 void kn_doc_close(kn_server *s, kn_doc *d)
 {
     for (kn_doc **p = &s->docs; *p; p = &(*p)->next) {
@@ -242,6 +253,7 @@ void kn_doc_close(kn_server *s, kn_doc *d)
         }
     }
     kn_lsp_drop_analysis(d);
+    kn_lsp_drop_rulebook(d);
     free(d->uri);
     free(d->path);
     free(d->real);

@@ -32,6 +32,13 @@ typedef struct kn_doc {
     kn_options opt;
     const kn_view *view;
     size_t n_view;
+    /* The rulebook it was last judged under, kept from one change to the
+     * next in an arena of its own while its files stay as they were
+     * (NULL: none kept). */
+    kn_arena *rb_arena;
+    kn_rulebook *rulebook;
+    const char *rb_key;                  /* the discovered file's real path, "" for none */
+    const struct kn_rb_stamp *rb_stamps; /* of each of rulebook->files */
     struct kn_doc *next;
 } kn_doc;
 
@@ -59,6 +66,8 @@ void kn_doc_set_text(kn_doc *d, const char *text, size_t len);
 void kn_doc_close(kn_server *s, kn_doc *d);
 /* Frees the last analysis of d. */
 void kn_lsp_drop_analysis(kn_doc *d);
+/* Frees the rulebook kept for d. */
+void kn_lsp_drop_rulebook(kn_doc *d);
 /* The document whose real path is real, or NULL. */
 kn_doc *kn_doc_by_real(kn_server *s, const char *real);
 /* The document a display path of the model names (the schema's own path

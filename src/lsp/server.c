@@ -92,12 +92,137 @@ static bool is_schema(const kn_doc *d)
     return false;
 }
 
+/* --- The rulebook, kept across changes -------------------------------------
+ * Reading the rulebook (the built-in default's YAML, its patterns compiled,
+ * then any house file) is the same work on every change; each schema keeps
+ * the one it was judged under until the discovery finds another file or a
+ * file it was read from changes on disk. */
+
+/* What a rulebook file held when it was read: compared byte for byte on
+ * each change (a rulebook is a few KiB; a time stamp can miss a rewrite
+ * within its granularity). */
+typedef struct kn_rb_stamp {
+    char *text; /* malloc */
+    size_t len;
+} kn_rb_stamp;
+
+/* The bytes of path (malloc, in *out); false when it cannot be read. */
+static bool slurp(const char *path, kn_rb_stamp *out)
+{
+    out->text = NULL;
+    out->len = 0;
+    FILE *f = fopen(path, "rb");
+    if (!f) {
+        return false;
+    }
+    char *buf = NULL;
+    size_t len = 0;
+    FILE *m = open_memstream(&buf, &len);
+    char chunk[4096];
+    size_t got;
+    while (m && (got = fread(chunk, 1, sizeof chunk, f)) > 0) {
+        fwrite(chunk, 1, got, m);
+    }
+    bool ok = m && !ferror(f) && fclose(m) == 0 && buf;
+    fclose(f);
+    if (!ok) {
+        free(buf);
+        return false;
+    }
+    out->text = buf;
+    out->len = len;
+    return true;
+}
+
+static void free_stamp(void *p)
+{
+    free(((kn_rb_stamp *)p)->text);
+}
+
+static bool unchanged(const kn_doc *d)
+{
+    bool same = true;
+    for (size_t i = 0; same && i < d->rulebook->n_files; i++) {
+        kn_rb_stamp now;
+        const kn_rb_stamp *then = &d->rb_stamps[i];
+        same = slurp(d->rulebook->files[i], &now) && now.len == then->len &&
+               memcmp(now.text, then->text, now.len) == 0;
+        free(now.text);
+    }
+    return same;
+}
+
+/* Reads d's rulebook into an arena of its own as kn_run_rulebook does: the
+ * built-in default, then every --rulebook, or else the discovered file
+ * found.  False when it cannot be read (broken, out of memory): nothing is
+ * kept, and the run reads it itself and reports why. */
+static bool keep_rulebook(kn_server *s, kn_doc *d, const char *found, const char *key)
+{
+    kn_arena *a = kn_arena_new();
+    if (!a) {
+        return false;
+    }
+    jmp_buf oom;
+    if (setjmp(oom)) {
+        kn_arena_free(a);
+        return false;
+    }
+    kn_arena_set_oom(a, &oom);
+    kn_sink *sink = kn_sink_new(a);
+    kn_rulebook *rb = kn_rulebook_new(a);
+    bool ok = kn_rulebook_load_default(rb, a, sink);
+    for (size_t i = 0; ok && i < s->opt->n_rulebooks; i++) {
+        ok = kn_rulebook_load(rb, a, sink, s->opt->rulebooks[i]);
+    }
+    if (ok && !s->opt->n_rulebooks && found) {
+        ok = kn_rulebook_load(rb, a, sink, kn_strdup(a, found));
+    }
+    kn_rb_stamp *stamps = kn_alloc_array(a, rb->n_files + 1, sizeof *stamps);
+    for (size_t i = 0; ok && i < rb->n_files; i++) {
+        kn_arena_defer(a, free_stamp, &stamps[i]);
+        ok = slurp(rb->files[i], &stamps[i]);
+    }
+    const char *k = kn_strdup(a, key);
+    kn_arena_set_oom(a, NULL);
+    if (!ok) {
+        kn_arena_free(a);
+        return false;
+    }
+    d->rb_arena = a;
+    d->rulebook = rb;
+    d->rb_key = k;
+    d->rb_stamps = stamps;
+    return true;
+}
+
+/* The rulebook d is judged under, resolved as `check` resolves it, from
+ * the last change when it still holds; NULL when the run must read it
+ * (and report what is wrong with it).  ra is the run's arena. */
+static kn_rulebook *rulebook_for(kn_server *s, kn_doc *d, kn_arena *ra)
+{
+    const char *found = NULL, *key = "";
+    if (!s->opt->n_rulebooks) {
+        found = kn_rulebook_discover(ra, d->path, s->opt->root);
+        if (found) {
+            char *real = realpath(found, NULL);
+            key = real ? kn_strdup(ra, real) : found;
+            free(real);
+        }
+    }
+    if (d->rulebook && strcmp(d->rb_key, key) == 0 && unchanged(d)) {
+        return d->rulebook;
+    }
+    kn_lsp_drop_rulebook(d);
+    return keep_rulebook(s, d, found, key) ? d->rulebook : NULL;
+}
+
 /* Runs the pipeline of `check` on d with the buffers of every open
  * document; keeps the run (model, timeline, findings) until the next one. */
 static void analyse(kn_server *s, kn_doc *d)
 {
     kn_lsp_drop_analysis(d);
     if (!d->path || !is_schema(d)) {
+        kn_lsp_drop_rulebook(d);
         return;
     }
     kn_arena *a = kn_arena_new();
@@ -124,6 +249,7 @@ static void analyse(kn_server *s, kn_doc *d)
     kn_run_init(r, a, "lsp", &d->opt, NULL, s->err);
     r->overlay = overlay;
     r->overlay_ctx = s;
+    r->given = rulebook_for(s, d, a);
     s->loading = d;
     d->unit = kn_run_load(r, "-");
     s->loading = NULL;

@@ -635,6 +635,16 @@ bool kn_rulebook_load(kn_rulebook *rb, kn_arena *a, kn_sink *sink, const char *p
     l.compiled = kn_names_new(a);
     bool ok = load_file(&l, path, NULL) && !l.failed;
     rb->origin = path;
+    size_t n = kn_names_count(l.loaded);
+    const char **files = kn_alloc_array(a, rb->n_files + n + 1, sizeof *files);
+    for (size_t i = 0; i < rb->n_files; i++) {
+        files[i] = rb->files[i];
+    }
+    for (size_t i = 0; i < n; i++) {
+        files[rb->n_files + i] = kn_strdup(a, kn_names_at(l.loaded, i));
+    }
+    rb->files = files;
+    rb->n_files += n;
     return ok;
 }
 

@@ -47,6 +47,10 @@ typedef struct kn_rulebook {
     const char *const *missing_values; /* data cells counted as missing (SPEC §6) */
     size_t n_missing_values;
     const char *origin; /* display path of the last file read, or "(built-in)" */
+    const char *const *files; /* every rulebook file read into it, extends
+                                 included (real paths), for a caller that
+                                 keeps it while the files may change */
+    size_t n_files;
 } kn_rulebook;
 
 /* A rulebook with the rule table's default severities and nothing else;

@@ -19,7 +19,7 @@ for seq in sorted(glob.glob(os.path.join(HERE, "sequences", "*.seq"))):
         for line in f:
             cmd, _, arg = line.rstrip("\n").partition(" ")
             if cmd == "send":
-                for folder in ("${URI}/bakery-strict/", "${URI}/bakery/", "${URI}/"):
+                for folder in ("${URI}/bakery-strict/", "${URI}/bakery/", "${URI}/", "${SCRATCH_URI}/"):
                     arg = arg.replace(folder, "file:///tmp/")
                 out += replay.frame(replay.substitute(arg))
             elif cmd == "raw":

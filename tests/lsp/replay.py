@@ -16,21 +16,30 @@ A sequence has one step a line ('#' starts a comment):
                      given as "<absent>"
   close              closes the server's standard input
   exit N             the server must end with status N, having sent nothing more
+  write NAME JSON    writes the JSON string's text to NAME in a scratch folder of
+                     this replay (files the server reads from disk: rulebooks)
+  remove NAME        removes NAME from the scratch folder
 In JSON, ${ROOT} is this folder, ${URI} its file: URI and ${TEXT:PATH} the
-text of PATH (under this folder) as the inside of a JSON string.
+text of PATH (under this folder) as the inside of a JSON string; ${SCRATCH}
+and ${SCRATCH_URI} are the scratch folder and its URI.
 """
 import json
 import os
 import queue
+import shutil
 import subprocess
 import sys
+import tempfile
 import threading
 
 ROOT = os.path.dirname(os.path.abspath(__file__))
+SCRATCH = None
 
 
 def substitute(s):
     out = s.replace("${ROOT}", ROOT).replace("${URI}", "file://" + ROOT)
+    if SCRATCH:
+        out = out.replace("${SCRATCH_URI}", "file://" + SCRATCH).replace("${SCRATCH}", SCRATCH)
     while "${TEXT:" in out:
         a = out.index("${TEXT:")
         b = out.index("}", a)
@@ -123,7 +132,16 @@ def match(want, got, path="$"):
 
 
 def main():
+    global SCRATCH
     knowable, seq = os.path.abspath(sys.argv[1]), sys.argv[2]
+    SCRATCH = os.path.realpath(tempfile.mkdtemp(prefix="knowable-lsp-"))
+    try:
+        return replay(knowable, seq)
+    finally:
+        shutil.rmtree(SCRATCH, ignore_errors=True)
+
+
+def replay(knowable, seq):
     srv = Server(knowable)
     n = 0
     try:
@@ -169,6 +187,12 @@ def main():
                         print(f"{where}: exit status {rc}, expected {arg}; stderr: {srv.p.stderr.read()[:500]!r}")
                         return 1
                     n += 1
+                elif cmd == "write":
+                    name, _, text = arg.partition(" ")
+                    with open(os.path.join(SCRATCH, name), "w", encoding="utf-8") as out:
+                        out.write(json.loads(substitute(text)))
+                elif cmd == "remove":
+                    os.remove(os.path.join(SCRATCH, arg))
                 else:
                     print(f"{where}: unknown step {cmd}")
                     return 1
