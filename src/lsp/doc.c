@@ -231,6 +231,7 @@ void kn_lsp_drop_analysis(kn_doc *d)
     d->unit = NULL;
     d->view = NULL;
     d->n_view = 0;
+    d->deps = NULL;
 }
 
 void kn_lsp_drop_rulebook(kn_doc *d)

@@ -32,6 +32,9 @@ typedef struct kn_doc {
     kn_options opt;
     const kn_view *view;
     size_t n_view;
+    /* The real paths of the other files the loader asked for (its
+     * includes, also those it could not read), in the run's arena. */
+    struct kn_dep *deps;
     /* The rulebook it was last judged under, kept from one change to the
      * next in an arena of its own while its files stay as they were
      * (NULL: none kept). */
@@ -48,6 +51,7 @@ typedef struct kn_server {
     kn_doc *docs;
     bool initialized, shut_down;
     kn_doc *loading;  /* the schema whose main file the loader reads next */
+    kn_doc *checking; /* the schema being analysed */
     char **published; /* URIs given diagnostics last time (malloc) */
     size_t n_published;
 } kn_server;

@@ -1,7 +1,9 @@
 /* server.c - `knowable lsp` (SPEC §5.2): the protocol loop, the documents'
- * life cycle and the diagnostics.  Every change re-runs the pipeline of
- * `check` (kn_run_load, kn_run_analyse, kn_run_finish) on each open schema,
- * with the editor's buffers standing for the files they show, and publishes
+ * life cycle and the diagnostics.  A change re-runs the pipeline of `check`
+ * (kn_run_load, kn_run_analyse, kn_run_finish) on the schema changed and on
+ * each open schema that read the file changed (opening, saving or closing
+ * a document, on every open schema), with the editor's buffers standing
+ * for the files they show, and publishes
  * the findings per file: a finding in an included register goes to that
  * register's URI, notes become relatedInformation. */
 #include "lsp.h"
@@ -57,6 +59,11 @@ static void reply_error(kn_server *s, json_t *id, int code, const char *message)
  * file is a symbolic link or does not exist yet): that first call is
  * always answered with its buffer, so the loader never falls back to
  * reading standard input, which carries the protocol. */
+typedef struct kn_dep {
+    const char *real;
+    struct kn_dep *next;
+} kn_dep;
+
 static const char *overlay(void *ctx, const char *real, size_t *len)
 {
     kn_server *s = ctx;
@@ -65,6 +72,13 @@ static const char *overlay(void *ctx, const char *real, size_t *len)
         s->loading = NULL;
         *len = main->len;
         return main->text;
+    }
+    kn_doc *c = s->checking;
+    if (c && c->arena) {
+        kn_dep *dep = kn_alloc(c->arena, sizeof *dep);
+        dep->real = kn_strdup(c->arena, real);
+        dep->next = c->deps;
+        c->deps = dep;
     }
     kn_doc *d = kn_doc_by_real(s, real);
     if (!d) {
@@ -232,12 +246,14 @@ static void analyse(kn_server *s, kn_doc *d)
     jmp_buf oom;
     if (setjmp(oom)) {
         s->loading = NULL;
+        s->checking = NULL;
         kn_arena_free(a);
         d->arena = NULL;
         d->run = NULL;
         d->unit = NULL;
         d->view = NULL;
         d->n_view = 0;
+        d->deps = NULL;
         fputs("knowable lsp: out of memory while checking a schema\n", s->err);
         return;
     }
@@ -251,8 +267,10 @@ static void analyse(kn_server *s, kn_doc *d)
     r->overlay_ctx = s;
     r->given = rulebook_for(s, d, a);
     s->loading = d;
+    s->checking = d;
     d->unit = kn_run_load(r, "-");
     s->loading = NULL;
+    s->checking = NULL;
     kn_run_analyse(r, d->unit);
     kn_run_finish(r);
     d->view = kn_sink_view(r->sink, a, &d->n_view);
@@ -478,6 +496,31 @@ static void analyse_all(kn_server *s)
     publish(s);
 }
 
+/* Whether the last analysis of d read the file whose real path is real. */
+static bool reads(const kn_doc *d, const char *real)
+{
+    for (const kn_dep *dep = d->deps; dep && real; dep = dep->next) {
+        if (strcmp(dep->real, real) == 0) {
+            return true;
+        }
+    }
+    return false;
+}
+
+/* After a change of one document: it is analysed again, and so is every
+ * schema that read it and every document without an analysis (a register
+ * returns at once); the other schemas' findings still hold.  Then every
+ * URI is published as usual. */
+static void analyse_changed(kn_server *s, kn_doc *changed)
+{
+    for (kn_doc *d = s->docs; d; d = d->next) {
+        if (d == changed || !d->run || reads(d, changed->real)) {
+            analyse(s, d);
+        }
+    }
+    publish(s);
+}
+
 /* --- Requests and notifications ------------------------------------------ */
 
 static json_t *capabilities(void)
@@ -647,7 +690,7 @@ static int handle(kn_server *s, json_t *msg)
     } else if (strcmp(method, "textDocument/didChange") == 0) {
         kn_doc *d = doc_of(s, params);
         if (d && apply_changes(d, json_object_get(params, "contentChanges"))) {
-            analyse_all(s);
+            analyse_changed(s, d);
         }
     } else if (strcmp(method, "textDocument/didSave") == 0) {
         kn_doc *d = doc_of(s, params);
