@@ -14,6 +14,7 @@ A sequence has one step a line ('#' starts a comment):
                      other arrays match item by item, same length
   expect-absent JSON the next message must match JSON and must not hold the keys
                      given as "<absent>"
+  fill N             N bytes of filler (spaces): a body too large to keep
   close              closes the server's standard input
   exit N             the server must end with status N, having sent nothing more
   write NAME JSON    writes the JSON string's text to NAME in a scratch folder of
@@ -156,6 +157,11 @@ def replay(knowable, seq):
                     srv.send(frame(substitute(arg)))
                 elif cmd == "raw":
                     srv.send(unescape(arg))
+                elif cmd == "fill":
+                    left = int(arg)
+                    while left > 0:
+                        srv.send(b" " * min(left, 1 << 20))
+                        left -= 1 << 20
                 elif cmd in ("expect", "expect-absent"):
                     want = json.loads(substitute(arg))
                     try:
