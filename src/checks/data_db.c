@@ -50,6 +50,7 @@ typedef struct db_run {
     bool rank_ok;
     char *raw[2];           /* the two raw values as the engine sent them */
     uint64_t raw_rows[2];   /* and their rows */
+    kn_db_type target_kind; /* the target's SQL kind */
     bool raw_positive[2];
     FILE *err;
 } db_run;
@@ -250,6 +251,27 @@ static bool typed_by_engine(kn_value_type t, kn_db_type k)
     }
 }
 
+/* Whether no missing marker of the rulebook can be the text of a value of
+ * SQL kind k: then "missing" is SQL NULL alone.  Dates and timestamps
+ * print digits, booleans true/false or 1/0 (t/f): a marker holding a digit,
+ * or a boolean word, keeps the text test; numbers keep it (NaN). */
+static bool null_only(const db_run *r, kn_db_type k)
+{
+    if (k != KN_DB_TIMESTAMP && k != KN_DB_DATE && k != KN_DB_BOOLEAN) {
+        return false;
+    }
+    const kn_rulebook *rb = r->x.ctx->rulebook;
+    for (size_t i = 0; i < rb->n_missing_values; i++) {
+        const char *m = rb->missing_values[i];
+        bool b;
+        if (strpbrk(m, "0123456789") || kn_value_boolean(m, strlen(m), &b) == KN_VALUE_OK ||
+            (strlen(m) == 1 && strchr("tfTF", m[0]))) {
+            return false;
+        }
+    }
+    return true;
+}
+
 /* A value of type t that parses, standing for "not missing". */
 static const char *present_value(kn_value_type t)
 {
@@ -303,40 +325,68 @@ static bool stream_values(db_run *r, size_t i)
 }
 
 /* The engine's rank sum of a wide numeric feature against a binary
- * target.  The two classes must account for every row counted (an engine
- * that compares the target's text otherwise than it sent it gives no
- * AUC, and the statistic is skipped). */
-static bool rank_sum(db_run *r, kn_tcol *c)
+ * target, and its missing rows per class as groups of cx's table (for
+ * missingness-predicts).  The two classes must account for the rows
+ * counted (an engine that compares the target's text otherwise than it
+ * sent it gives no AUC, and the statistic is skipped); *done says whether
+ * the missing rows were read. */
+static bool rank_sum(db_run *r, kn_dx *cx, kn_db_type kind, bool *done)
 {
+    kn_tcol *c = &cx->t.cols[0];
     int p = r->raw_positive[0] ? 0 : 1;
+    unsigned nulls = (null_only(r, kind) ? KN_SQL_COL_NULL_ONLY : 0) |
+                     (null_only(r, r->target_kind) ? KN_SQL_TARGET_NULL_ONLY : 0);
     kn_db_rows *q = query(r,
                           kn_sql_rank_sum_query(r->x.a, r->d, r->x.ctx->rulebook, r->table, r->query_sql, c->name,
-                                                r->x.t.target->name, r->raw[p], r->raw[1 - p]),
+                                                r->x.t.target->name, r->raw[p], r->raw[1 - p], nulls),
                           kn_printf(r->x.a, "cannot rank the values of '%s'", c->name));
+    *done = false;
     if (!q) {
         return false;
     }
-    uint64_t two_u = 0, n_pos = 0, n_neg = 0;
+    uint64_t v[5] = {0, 0, 0, 0, 0};
     bool got = kn_db_next(q);
-    bool ok = !got || (count_at(r, q, 0, &two_u) && count_at(r, q, 1, &n_pos) && count_at(r, q, 2, &n_neg));
+    bool ok = true;
+    for (size_t i = 0; got && ok && i < 5; i++) {
+        ok = count_at(r, q, i, &v[i]);
+    }
     kn_db_done(q);
     if (!ok || kn_db_failed(r->db)) {
         return false;
     }
-    if (got && n_pos <= r->raw_rows[p] && n_neg <= r->raw_rows[1 - p] && n_pos + n_neg > 0) {
-        c->has_auc = true;
-        kn_auc_finish(two_u, n_pos, n_neg, &c->auc);
+    uint64_t n_pos = v[1] + v[3], n_neg = v[2] + v[4];
+    if (!got || n_pos != r->raw_rows[p] || n_neg != r->raw_rows[1 - p]) {
+        return true; /* the classes do not add up: no statistic from here */
     }
+    if (v[1] + v[2] > 0) {
+        c->has_auc = true;
+        kn_auc_finish(v[0], v[1], v[2], &c->auc);
+    }
+    /* missing and present rows of each class, as for missing_groups */
+    const char *present = present_value(c->type);
+    for (int k = 0; k < 2; k++) {
+        int which = k == 0 ? p : 1 - p;
+        uint64_t missing = v[3 + k], with = v[1 + k];
+        kn_csv_field fields[2] = {{NULL, 0, false}, {r->raw[which], strlen(r->raw[which]), false}};
+        if (missing) {
+            kn_table_add_group(&cx->t, fields, 2, missing, true);
+        }
+        if (with) {
+            fields[0] = (kn_csv_field){present, strlen(present), false};
+            kn_table_add_group(&cx->t, fields, 2, with, true);
+        }
+    }
+    *done = true;
     return true;
 }
 
 /* A wide feature's missing rows per target value, as two groups per
  * class (missing, present) for missingness-predicts. */
-static bool missing_groups(db_run *r, kn_dx *cx, const kn_tcol *c)
+static bool missing_groups(db_run *r, kn_dx *cx, const kn_tcol *c, kn_db_type kind)
 {
     kn_db_rows *q = query(r,
                           kn_sql_missing_query(r->x.a, r->d, r->x.ctx->rulebook, r->table, r->query_sql, c->name,
-                                               r->x.t.target->name),
+                                               r->x.t.target->name, null_only(r, kind) ? KN_SQL_COL_NULL_ONLY : 0),
                           kn_printf(r->x.a, "cannot count the missing values of '%s'", c->name));
     if (!q) {
         return false;
@@ -436,10 +486,11 @@ static bool column(db_run *r, size_t i, kn_db_type kind)
             cx.t.cols[0].wide = true;
             bool numeric = c->type == KN_TYPE_NUMBER || c->type == KN_TYPE_TIMESTAMP || c->type == KN_TYPE_DATE;
             bool engine_ordered = kind == KN_DB_NUMBER || kind == KN_DB_TIMESTAMP || kind == KN_DB_DATE;
-            if (c->feature && numeric && engine_ordered && r->rank_ok && !rank_sum(r, &cx.t.cols[0])) {
+            bool counted = false;
+            if (c->feature && numeric && engine_ordered && r->rank_ok && !rank_sum(r, &cx, kind, &counted)) {
                 return false;
             }
-            if (c->feature && !missing_groups(r, &cx, c)) {
+            if (c->feature && !counted && !missing_groups(r, &cx, c, kind)) {
                 return false;
             }
             if (c->identifier) {
@@ -734,6 +785,7 @@ static bool run_checks(db_run *r, const char *data)
 
     if (x->t.target) {
         size_t ti = (size_t)(x->t.target - x->t.cols);
+        r->target_kind = kinds[x->t.target->field];
         if (!target(r, ti, kinds[x->t.target->field])) {
             return false;
         }

@@ -203,6 +203,18 @@ static void missing_test(sbuf *b, kn_sql_dialect d, const kn_rulebook *rb, const
     }
 }
 
+/* missing_test, or only "col IS NULL" when null_only (a column whose SQL
+ * type cannot hold the text of any marker: the caller knows). */
+static void missing_or_null(sbuf *b, kn_sql_dialect d, const kn_rulebook *rb, const char *col, bool null_only)
+{
+    if (null_only) {
+        ident(b, d, col);
+        puts_(b, " IS NULL");
+    } else {
+        missing_test(b, d, rb, col);
+    }
+}
+
 /* At most n rows of the result. */
 static void limit(sbuf *b, kn_sql_dialect d, unsigned long long n)
 {
@@ -330,16 +342,27 @@ char *kn_sql_groups_query(kn_arena *a, kn_sql_dialect d, const char *table, cons
  * engine: per distinct value v, its positive rows p and negative rows q;
  * ascending in v, twice U grows by p (2 q_below + q), where q_below is
  * the negatives of lower values (one window sum): kn_rank_step's sum
- * (src/data/stats.h).  One GROUP BY and one sort. */
+ * (src/data/stats.h).  The missing values of col form the group v = NULL,
+ * left out of the sums and counted apart (missingness-predicts), so one
+ * GROUP BY and one sort serve both. */
 char *kn_sql_rank_sum_query(kn_arena *a, kn_sql_dialect d, const kn_rulebook *rb, const char *table,
                             const char *query_sql, const char *col, const char *target, const char *positive,
-                            const char *negative)
+                            const char *negative, unsigned null_only)
 {
     sbuf b = {a, NULL, 0, 0};
-    puts_(&b, "SELECT SUM(p * (2 * COALESCE(q_below, 0) + q)) AS two_u, SUM(p) AS n_pos, SUM(q) AS n_neg\n"
-              "FROM (SELECT p, q, SUM(q) OVER (ORDER BY v ROWS BETWEEN UNBOUNDED PRECEDING AND 1 PRECEDING) AS q_below\n"
+    puts_(&b, "SELECT SUM(CASE WHEN v IS NOT NULL THEN p * (2 * COALESCE(q_below, 0) + q) END) AS two_u,\n"
+              "       SUM(CASE WHEN v IS NOT NULL THEN p END) AS n_pos, SUM(CASE WHEN v IS NOT NULL THEN q END) AS n_neg,\n"
+              "       SUM(CASE WHEN v IS NULL THEN p END) AS missing_pos, SUM(CASE WHEN v IS NULL THEN q END) AS missing_neg\n"
+              "FROM (SELECT v, p, q,\n"
+              "             SUM(CASE WHEN v IS NOT NULL THEN q END) OVER (ORDER BY v ROWS BETWEEN UNBOUNDED PRECEDING AND 1 PRECEDING) AS q_below\n"
               "      FROM (SELECT ");
-    ident(&b, d, col);
+    sbuf v = {a, NULL, 0, 0};
+    puts_(&v, "CASE WHEN ");
+    missing_or_null(&v, d, rb, col, null_only & KN_SQL_COL_NULL_ONLY);
+    puts_(&v, " THEN NULL ELSE ");
+    ident(&v, d, col);
+    puts_(&v, " END");
+    puts_(&b, v.p);
     puts_(&b, " AS v,\n                   SUM(CASE WHEN ");
     ident(&b, d, target);
     puts_(&b, " = ");
@@ -351,11 +374,9 @@ char *kn_sql_rank_sum_query(kn_arena *a, kn_sql_dialect d, const kn_rulebook *rb
     puts_(&b, " THEN 1 ELSE 0 END) AS q\n           ");
     from(&b, d, table, query_sql);
     puts_(&b, "\n            WHERE NOT (");
-    missing_test(&b, d, rb, col);
-    puts_(&b, ") AND NOT (");
-    missing_test(&b, d, rb, target);
+    missing_or_null(&b, d, rb, target, null_only & KN_SQL_TARGET_NULL_ONLY);
     puts_(&b, ")\n            GROUP BY ");
-    ident(&b, d, col);
+    puts_(&b, v.p);
     puts_(&b, ") AS ");
     ident(&b, d, "levels");
     puts_(&b, ") AS ");
@@ -364,7 +385,7 @@ char *kn_sql_rank_sum_query(kn_arena *a, kn_sql_dialect d, const kn_rulebook *rb
 }
 
 char *kn_sql_missing_query(kn_arena *a, kn_sql_dialect d, const kn_rulebook *rb, const char *table,
-                           const char *query_sql, const char *col, const char *target)
+                           const char *query_sql, const char *col, const char *target, unsigned null_only)
 {
     sbuf b = {a, NULL, 0, 0};
     puts_(&b, "SELECT ");
@@ -373,7 +394,7 @@ char *kn_sql_missing_query(kn_arena *a, kn_sql_dialect d, const kn_rulebook *rb,
         puts_(&b, " AS t, ");
     }
     puts_(&b, "SUM(CASE WHEN ");
-    missing_test(&b, d, rb, col);
+    missing_or_null(&b, d, rb, col, null_only & KN_SQL_COL_NULL_ONLY);
     puts_(&b, " THEN 1 ELSE 0 END) AS n_missing, COUNT(*) AS n");
     from(&b, d, table, query_sql);
     if (target) {
@@ -718,12 +739,12 @@ void kn_sql_make(kn_arena *a, const kn_schema *s, const kn_rulebook *rb, const c
                                  "rank sum, by the engine",
                               esc(a, k->name), max_groups),
                     kn_sql_rank_sum_query(a, d, rb, table, query_sql, k->name, target->name, ":positive",
-                                          ":negative"));
+                                          ":negative", 0));
             }
             add(&c, KN_SQLQ_MISSING, "missingness-predicts", k,
                 kn_printf(a, "when '%s' has more than %llu groups: its missing rows per target class", esc(a, k->name),
                           max_groups),
-                kn_sql_missing_query(a, d, rb, table, query_sql, k->name, target->name));
+                kn_sql_missing_query(a, d, rb, table, query_sql, k->name, target->name, 0));
         }
         if (typed) {
             add(&c, KN_SQLQ_VALUES, "value-mismatch", k,

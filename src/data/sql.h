@@ -49,6 +49,11 @@ typedef enum kn_sql_kind {
     KN_SQLQ_MISSING,    /* rows (t, missing, n): missing rows per target value */
 } kn_sql_kind;
 
+/* null_only flags of the queries below: the column (or the target) has an
+ * SQL type whose values' text is never one of the rulebook's missing
+ * markers, so "missing" is "IS NULL" (no cast to text on every row). */
+enum { KN_SQL_COL_NULL_ONLY = 1u, KN_SQL_TARGET_NULL_ONLY = 2u };
+
 /* Rows of one aggregate query the client reads by default (--max-rows in
  * a database): a column with more groups (distinct values, or values and
  * target classes) is finished by the engine, and an identifier of a
@@ -96,18 +101,19 @@ char *kn_sql_groups_query(kn_arena *a, kn_sql_dialect d, const char *table, cons
  * cannot. */
 char *kn_sql_seed_query(kn_arena *a, kn_sql_dialect d, uint64_t seed);
 
-/* One row (two_u, n_pos, n_neg): twice the Mann-Whitney U of col with
- * the target value positive (a string literal, as the engine sent it)
- * against negative, and the rows of each; rows where col or the target is
- * missing are left out.  A window sum (SQL:2003). */
+/* One row (two_u, n_pos, n_neg, missing_pos, missing_neg): twice the
+ * Mann-Whitney U of col with the target value positive (a string literal,
+ * as the engine sent it) against negative, and the rows of each with a
+ * value of col; then the rows of each where col is missing.  Rows whose
+ * target is missing are left out.  A window sum (SQL:2003). */
 char *kn_sql_rank_sum_query(kn_arena *a, kn_sql_dialect d, const kn_rulebook *rb, const char *table,
                             const char *query_sql, const char *col, const char *target, const char *positive,
-                            const char *negative);
+                            const char *negative, unsigned null_only);
 
 /* Rows ([t,] n_missing, n): rows where col is missing, per target value
  * (target NULL: one row). */
 char *kn_sql_missing_query(kn_arena *a, kn_sql_dialect d, const kn_rulebook *rb, const char *table,
-                           const char *query_sql, const char *col, const char *target);
+                           const char *query_sql, const char *col, const char *target, unsigned null_only);
 
 /* At most one row (n, v, m[, k]): how many rows have col later than the
  * moment (not earlier with strict_moment), and of them the one with the

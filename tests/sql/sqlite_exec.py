@@ -138,11 +138,15 @@ def is_missing(v):
 def rank_sum(i):
     """Twice the Mann-Whitney U of column i with the target 'yes' against
     'no', by comparing every pair (the definition; ties count one half,
-    common practice), rows with a missing value or target left out."""
+    common practice), rows with a missing value or target left out; then
+    the rows of each class whose value is missing (None: no such row, the
+    SQL sum of nothing)."""
     kept = [(r[i], r[0]) for r in rows if not is_missing(r[i]) and not is_missing(r[0])]
     pos = [v for v, y in kept if y == "yes"]
     neg = [v for v, y in kept if y == "no"]
-    return [(sum(2 if p > n else 1 if p == n else 0 for p in pos for n in neg), len(pos), len(neg))]
+    missing = [r[0] for r in rows if is_missing(r[i])]
+    return [(sum(2 if p > n else 1 if p == n else 0 for p in pos for n in neg), len(pos), len(neg),
+             missing.count("yes") or None, missing.count("no") or None)]
 
 
 def column_of(tag):
