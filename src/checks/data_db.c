@@ -234,9 +234,14 @@ static char *key_of(db_run *r, const char *col, const char *value)
 }
 
 /* Whether a column of SQL kind k can only hold values of type t (then no
- * value of it can fail its type). */
-static bool typed_by_engine(kn_value_type t, kn_db_type k)
+ * value of it can fail its type).  SQLite keeps any value in any column
+ * (its declared type is an affinity), so there only the types that take
+ * any value count. */
+static bool typed_by_engine(const db_run *r, kn_value_type t, kn_db_type k)
 {
+    if (r->d == KN_SQL_SQLITE) {
+        k = KN_DB_TEXT;
+    }
     switch (t) {
     case KN_TYPE_NUMBER:
         return k == KN_DB_NUMBER;
@@ -428,7 +433,7 @@ static bool column(db_run *r, size_t i, kn_db_type kind)
     const kn_column *k = x->decl[i];
     bool stats = x->t.target && !r->target_wide && (c->feature || c->identifier);
     bool typed = c->type != KN_TYPE_UNSET || c->format;
-    if (!stats && (!typed || (!c->format && typed_by_engine(c->type, kind)))) {
+    if (!stats && (!typed || (!c->format && typed_by_engine(r, c->type, kind)))) {
         return true; /* nothing to read: no statistic, and the engine's type keeps the values in type */
     }
     kn_dx cx;
@@ -476,7 +481,7 @@ static bool column(db_run *r, size_t i, kn_db_type kind)
             /* Too many groups to read: the values are checked by
              * streaming them when the engine's type does not already
              * guarantee them, the statistics finished by the engine. */
-            if (typed && (c->format || !typed_by_engine(c->type, kind)) && !stream_values(r, i)) {
+            if (typed && (c->format || !typed_by_engine(r, c->type, kind)) && !stream_values(r, i)) {
                 return false;
             }
             if (!stats) {
@@ -485,7 +490,10 @@ static bool column(db_run *r, size_t i, kn_db_type kind)
             column_table(r, &cx, c, k, true, false);
             cx.t.cols[0].wide = true;
             bool numeric = c->type == KN_TYPE_NUMBER || c->type == KN_TYPE_TIMESTAMP || c->type == KN_TYPE_DATE;
-            bool engine_ordered = kind == KN_DB_NUMBER || kind == KN_DB_TIMESTAMP || kind == KN_DB_DATE;
+            /* the engine orders the values as numbers or instants only when
+             * its type holds nothing else (not SQLite: see typed_by_engine) */
+            bool engine_ordered =
+                typed_by_engine(r, c->type, kind) && (kind == KN_DB_NUMBER || kind == KN_DB_TIMESTAMP || kind == KN_DB_DATE);
             bool counted = false;
             if (c->feature && numeric && engine_ordered && r->rank_ok && !rank_sum(r, &cx, kind, &counted)) {
                 return false;
@@ -573,7 +581,7 @@ static bool target(db_run *r, size_t i, kn_db_type kind)
         kn_sink_data_skip(x->sink, KN_R_IDENTIFIER_SEGMENT_PREDICTS, "", "all", why);
         x->target_said = true;
         bool typed = c->type != KN_TYPE_UNSET || c->format;
-        return !(typed && (c->format || !typed_by_engine(c->type, kind))) || stream_values(r, i);
+        return !(typed && (c->format || !typed_by_engine(r, c->type, kind))) || stream_values(r, i);
     }
     take_values(r, c, tc, &f);
     /* Two raw values that are two classes (as prepare() in data_stats.c

@@ -240,7 +240,8 @@ static void numeric_feature(kn_dx *x, labels *L, size_t col)
              kn_printf(x->a,
                        "more distinct values than the client reads from the database (--max-rows %lld)%s",
                        x->max_rows,
-                       L->binary ? "; the engine's rank sum needs a numeric, date or timestamp SQL type"
+                       L->binary ? "; the engine's rank sum needs a numeric, date or timestamp SQL type that holds "
+                                   "nothing else (SQLite's declared types do not keep values to them)"
                                  : "; quantile bins of such a column are not computed in the database"));
         return;
     } else {
