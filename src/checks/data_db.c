@@ -244,7 +244,7 @@ static bool typed_by_engine(const db_run *r, kn_value_type t, kn_db_type k)
     }
     switch (t) {
     case KN_TYPE_NUMBER:
-        return k == KN_DB_NUMBER;
+        return k == KN_DB_NUMBER || k == KN_DB_INTEGER;
     case KN_TYPE_TIMESTAMP:
         return k == KN_DB_TIMESTAMP || k == KN_DB_DATE;
     case KN_TYPE_DATE:
@@ -256,25 +256,48 @@ static bool typed_by_engine(const db_run *r, kn_value_type t, kn_db_type k)
     }
 }
 
-/* Whether no missing marker of the rulebook can be the text of a value of
- * SQL kind k: then "missing" is SQL NULL alone.  Dates and timestamps
- * print digits, booleans true/false or 1/0 (t/f): a marker holding a digit,
- * or a boolean word, keeps the text test; numbers keep it (NaN). */
-static bool null_only(const db_run *r, kn_db_type k)
+static bool equals_nocase(const char *s, const char *word)
 {
-    if (k != KN_DB_TIMESTAMP && k != KN_DB_DATE && k != KN_DB_BOOLEAN) {
-        return false;
+    for (; *s && *word; s++, word++) {
+        char c = *s >= 'A' && *s <= 'Z' ? (char)(*s - 'A' + 'a') : *s;
+        if (c != *word) {
+            return false;
+        }
+    }
+    return !*s && !*word;
+}
+
+/* How "missing" can be tested on a column of SQL kind k without casting
+ * every value to text: when no missing marker of the rulebook can be the
+ * text of such a value, it is SQL NULL alone (KN_SQL_COL_NULL_ONLY), on
+ * PostgreSQL's floats and numerics with NaN when a marker spells it (its
+ * text 'NaN'; also KN_SQL_COL_NAN); 0 when every value's text must be
+ * compared.  Dates, timestamps and numbers print digits (and Infinity),
+ * booleans true/false, 1/0 or t/f; SQLite's columns hold anything. */
+static unsigned null_only(const db_run *r, kn_db_type k)
+{
+    if (k == KN_DB_TEXT || r->d == KN_SQL_SQLITE || r->d == KN_SQL_ANSI) {
+        return 0;
     }
     const kn_rulebook *rb = r->x.ctx->rulebook;
+    bool nan = false;
     for (size_t i = 0; i < rb->n_missing_values; i++) {
         const char *m = rb->missing_values[i];
         bool b;
         if (strpbrk(m, "0123456789") || kn_value_boolean(m, strlen(m), &b) == KN_VALUE_OK ||
-            (strlen(m) == 1 && strchr("tfTF", m[0]))) {
-            return false;
+            (strlen(m) == 1 && strchr("tfTF", m[0])) || equals_nocase(m, "infinity") ||
+            equals_nocase(m, "-infinity") || equals_nocase(m, "inf")) {
+            return 0;
         }
+        nan = nan || equals_nocase(m, "nan");
     }
-    return true;
+    if (k == KN_DB_NUMBER && nan) {
+        if (r->d != KN_SQL_POSTGRESQL) {
+            return r->d == KN_SQL_MYSQL ? KN_SQL_COL_NULL_ONLY : 0; /* MySQL's numbers are never NaN */
+        }
+        return KN_SQL_COL_NULL_ONLY | KN_SQL_COL_NAN;
+    }
+    return KN_SQL_COL_NULL_ONLY;
 }
 
 /* A value of type t that parses, standing for "not missing". */
@@ -339,8 +362,9 @@ static bool rank_sum(db_run *r, kn_dx *cx, kn_db_type kind, bool *done)
 {
     kn_tcol *c = &cx->t.cols[0];
     int p = r->raw_positive[0] ? 0 : 1;
-    unsigned nulls = (null_only(r, kind) ? KN_SQL_COL_NULL_ONLY : 0) |
-                     (null_only(r, r->target_kind) ? KN_SQL_TARGET_NULL_ONLY : 0);
+    unsigned nulls = null_only(r, kind) | (null_only(r, r->target_kind) && r->target_kind != KN_DB_NUMBER
+                                               ? KN_SQL_TARGET_NULL_ONLY
+                                               : 0);
     kn_db_rows *q = query(r,
                           kn_sql_rank_sum_query(r->x.a, r->d, r->x.ctx->rulebook, r->table, r->query_sql, c->name,
                                                 r->x.t.target->name, r->raw[p], r->raw[1 - p], nulls),
@@ -391,7 +415,7 @@ static bool missing_groups(db_run *r, kn_dx *cx, const kn_tcol *c, kn_db_type ki
 {
     kn_db_rows *q = query(r,
                           kn_sql_missing_query(r->x.a, r->d, r->x.ctx->rulebook, r->table, r->query_sql, c->name,
-                                               r->x.t.target->name, null_only(r, kind) ? KN_SQL_COL_NULL_ONLY : 0),
+                                               r->x.t.target->name, null_only(r, kind)),
                           kn_printf(r->x.a, "cannot count the missing values of '%s'", c->name));
     if (!q) {
         return false;
@@ -493,7 +517,8 @@ static bool column(db_run *r, size_t i, kn_db_type kind)
             /* the engine orders the values as numbers or instants only when
              * its type holds nothing else (not SQLite: see typed_by_engine) */
             bool engine_ordered =
-                typed_by_engine(r, c->type, kind) && (kind == KN_DB_NUMBER || kind == KN_DB_TIMESTAMP || kind == KN_DB_DATE);
+                typed_by_engine(r, c->type, kind) && (kind == KN_DB_NUMBER || kind == KN_DB_INTEGER || kind == KN_DB_TIMESTAMP ||
+                                                   kind == KN_DB_DATE);
             bool counted = false;
             if (c->feature && numeric && engine_ordered && r->rank_ok && !rank_sum(r, &cx, kind, &counted)) {
                 return false;

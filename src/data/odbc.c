@@ -288,6 +288,7 @@ static kn_db_type kind_of(SQLSMALLINT t)
     case SQL_SMALLINT:
     case SQL_INTEGER:
     case SQL_BIGINT:
+        return KN_DB_INTEGER;
     case SQL_DECIMAL:
     case SQL_NUMERIC:
     case SQL_REAL:

@@ -39,7 +39,8 @@ typedef struct kn_db_rows kn_db_rows;
 /* What a result column holds, from its SQL type. */
 typedef enum kn_db_type {
     KN_DB_TEXT,      /* character types and anything not below */
-    KN_DB_NUMBER,    /* integer, decimal and floating types */
+    KN_DB_NUMBER,    /* decimal and floating types */
+    KN_DB_INTEGER,   /* integer types */
     KN_DB_TIMESTAMP, /* timestamp types */
     KN_DB_DATE,      /* date */
     KN_DB_BOOLEAN,   /* bit / boolean */

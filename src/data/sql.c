@@ -204,12 +204,20 @@ static void missing_test(sbuf *b, kn_sql_dialect d, const kn_rulebook *rb, const
 }
 
 /* missing_test, or only "col IS NULL" when null_only (a column whose SQL
- * type cannot hold the text of any marker: the caller knows). */
-static void missing_or_null(sbuf *b, kn_sql_dialect d, const kn_rulebook *rb, const char *col, bool null_only)
+ * type cannot hold the text of any marker: the caller knows), with nan
+ * "or col = 'NaN'" (a marker spells NaN). */
+static void missing_or_null(sbuf *b, kn_sql_dialect d, const kn_rulebook *rb, const char *col, bool null_only,
+                            bool nan)
 {
     if (null_only) {
         ident(b, d, col);
         puts_(b, " IS NULL");
+        if (nan) {
+            /* PostgreSQL's floating and numeric NaN, whose text is 'NaN' */
+            puts_(b, " OR ");
+            ident(b, d, col);
+            puts_(b, " = 'NaN'");
+        }
     } else {
         missing_test(b, d, rb, col);
     }
@@ -358,7 +366,7 @@ char *kn_sql_rank_sum_query(kn_arena *a, kn_sql_dialect d, const kn_rulebook *rb
               "      FROM (SELECT ");
     sbuf v = {a, NULL, 0, 0};
     puts_(&v, "CASE WHEN ");
-    missing_or_null(&v, d, rb, col, null_only & KN_SQL_COL_NULL_ONLY);
+    missing_or_null(&v, d, rb, col, null_only & KN_SQL_COL_NULL_ONLY, null_only & KN_SQL_COL_NAN);
     puts_(&v, " THEN NULL ELSE ");
     ident(&v, d, col);
     puts_(&v, " END");
@@ -374,7 +382,7 @@ char *kn_sql_rank_sum_query(kn_arena *a, kn_sql_dialect d, const kn_rulebook *rb
     puts_(&b, " THEN 1 ELSE 0 END) AS q\n           ");
     from(&b, d, table, query_sql);
     puts_(&b, "\n            WHERE NOT (");
-    missing_or_null(&b, d, rb, target, null_only & KN_SQL_TARGET_NULL_ONLY);
+    missing_or_null(&b, d, rb, target, null_only & KN_SQL_TARGET_NULL_ONLY, false);
     puts_(&b, ")\n            GROUP BY ");
     puts_(&b, v.p);
     puts_(&b, ") AS ");
@@ -394,7 +402,7 @@ char *kn_sql_missing_query(kn_arena *a, kn_sql_dialect d, const kn_rulebook *rb,
         puts_(&b, " AS t, ");
     }
     puts_(&b, "SUM(CASE WHEN ");
-    missing_or_null(&b, d, rb, col, null_only & KN_SQL_COL_NULL_ONLY);
+    missing_or_null(&b, d, rb, col, null_only & KN_SQL_COL_NULL_ONLY, null_only & KN_SQL_COL_NAN);
     puts_(&b, " THEN 1 ELSE 0 END) AS n_missing, COUNT(*) AS n");
     from(&b, d, table, query_sql);
     if (target) {

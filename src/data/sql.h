@@ -52,7 +52,11 @@ typedef enum kn_sql_kind {
 /* null_only flags of the queries below: the column (or the target) has an
  * SQL type whose values' text is never one of the rulebook's missing
  * markers, so "missing" is "IS NULL" (no cast to text on every row). */
-enum { KN_SQL_COL_NULL_ONLY = 1u, KN_SQL_TARGET_NULL_ONLY = 2u };
+enum {
+    KN_SQL_COL_NULL_ONLY = 1u,
+    KN_SQL_TARGET_NULL_ONLY = 2u,
+    KN_SQL_COL_NAN = 4u, /* with KN_SQL_COL_NULL_ONLY: NaN too (PostgreSQL's floats) */
+};
 
 /* Rows of one aggregate query the client reads by default (--max-rows in
  * a database): a column with more groups (distinct values, or values and
