@@ -120,30 +120,30 @@ static kn_db_rows *query(db_run *r, const char *sql, const char *what)
 
 /* A table of groups for column src (a copy of the whole table's column,
  * its format only when with_format) and, with_target, the target. */
-static void column_table(db_run *r, kn_dx *cx, const kn_tcol *src, const kn_column *decl, bool with_target,
-                         bool with_format)
+static void column_table(db_run *r, kn_dx *cx, kn_arena *a, const kn_tcol *src, const kn_column *decl,
+                         bool with_target, bool with_format)
 {
     const kn_dx *x = &r->x;
     memset(cx, 0, sizeof *cx);
     cx->ctx = x->ctx;
     cx->s = x->s;
     cx->path = x->path;
-    cx->a = x->a;
+    cx->a = a;
     cx->sink = x->sink;
     cx->max_rows = x->max_rows;
     cx->seed = x->seed;
     cx->database = true;
     cx->key_name = r->key;
     kn_table *t = &cx->t;
-    t->a = x->a;
+    t->a = a;
     t->max_rows = 1;
     t->seed = x->seed;
     t->strict_moment = x->t.strict_moment;
     t->missing = x->t.missing;
     t->match_context = x->t.match_context;
-    t->cols = kn_alloc_array(x->a, 2, sizeof *t->cols);
-    cx->decl = kn_alloc_array(x->a, 2, sizeof *cx->decl);
-    cx->hcol = kn_alloc_array(x->a, 2, sizeof *cx->hcol);
+    t->cols = kn_alloc_array(a, 2, sizeof *t->cols);
+    cx->decl = kn_alloc_array(a, 2, sizeof *cx->decl);
+    cx->hcol = kn_alloc_array(a, 2, sizeof *cx->hcol);
     kn_tcol *c = &t->cols[t->n_cols];
     c->name = src->name;
     c->field = 0;
@@ -317,15 +317,23 @@ static const char *present_value(kn_value_type t)
 }
 
 /* Copies what a column's table counted into the whole table's column. */
+static char *keep(db_run *r, const char *s)
+{
+    return s ? kn_strdup(r->x.a, s) : NULL;
+}
+
 static void take_values(db_run *r, kn_tcol *dst, const kn_tcol *src, const firsts *f)
 {
+    /* the column's table lives in an arena of its own, freed next */
     dst->bad_type = src->bad_type;
+    dst->bad_type.value = keep(r, src->bad_type.value);
     dst->bad_format = src->bad_format;
+    dst->bad_format.value = keep(r, src->bad_format.value);
     dst->missing = src->missing;
     if (src->format_off) {
         dst->format_off = true;
         dst->limit_line = 0;
-        dst->limit_problem = src->limit_problem;
+        dst->limit_problem = keep(r, src->limit_problem);
     }
     if (dst->bad_type.count) {
         dst->bad_type.key = key_of(r, dst->name, f->type);
@@ -340,16 +348,19 @@ static bool stream_values(db_run *r, size_t i)
 {
     kn_dx vx;
     kn_tcol *dst = &r->x.t.cols[i];
-    column_table(r, &vx, dst, r->x.decl[i], false, true);
-    kn_db_rows *q = query(r, kn_sql_groups_query(r->x.a, r->d, r->table, r->query_sql, dst->name, NULL, 0, 0, 0),
-                          kn_printf(r->x.a, "cannot read the values of '%s'", dst->name));
+    kn_defer *rel;
+    kn_arena *ca = kn_arena_child(r->x.a, &rel);
+    column_table(r, &vx, ca, dst, r->x.decl[i], false, true);
+    kn_db_rows *q = query(r, kn_sql_groups_query(ca, r->d, r->table, r->query_sql, dst->name, NULL, 0, 0, 0),
+                          kn_printf(ca, "cannot read the values of '%s'", dst->name));
     firsts f = {0};
     bool wide;
-    if (!q || !feed(r, &vx, q, false, false, 0, &wide, &f)) {
-        return false;
+    bool ok = q && feed(r, &vx, q, false, false, 0, &wide, &f);
+    if (ok) {
+        take_values(r, dst, &vx.t.cols[0], &f);
     }
-    take_values(r, dst, &vx.t.cols[0], &f);
-    return true;
+    kn_defer_run(r->x.a, rel);
+    return ok;
 }
 
 /* The engine's rank sum of a wide numeric feature against a binary
@@ -362,13 +373,13 @@ static bool rank_sum(db_run *r, kn_dx *cx, kn_db_type kind, bool *done)
 {
     kn_tcol *c = &cx->t.cols[0];
     int p = r->raw_positive[0] ? 0 : 1;
-    unsigned nulls = null_only(r, kind) | (null_only(r, r->target_kind) && r->target_kind != KN_DB_NUMBER
-                                               ? KN_SQL_TARGET_NULL_ONLY
-                                               : 0);
+    unsigned nulls = null_only(r, kind) |
+                     (null_only(r, r->target_kind) && r->target_kind != KN_DB_NUMBER ? KN_SQL_TARGET_NULL_ONLY : 0) |
+                     (c->type == KN_TYPE_NUMBER ? KN_SQL_COL_FLOAT : 0);
     kn_db_rows *q = query(r,
-                          kn_sql_rank_sum_query(r->x.a, r->d, r->x.ctx->rulebook, r->table, r->query_sql, c->name,
+                          kn_sql_rank_sum_query(cx->a, r->d, r->x.ctx->rulebook, r->table, r->query_sql, c->name,
                                                 r->x.t.target->name, r->raw[p], r->raw[1 - p], nulls),
-                          kn_printf(r->x.a, "cannot rank the values of '%s'", c->name));
+                          kn_printf(cx->a, "cannot rank the values of '%s'", c->name));
     *done = false;
     if (!q) {
         return false;
@@ -414,9 +425,9 @@ static bool rank_sum(db_run *r, kn_dx *cx, kn_db_type kind, bool *done)
 static bool missing_groups(db_run *r, kn_dx *cx, const kn_tcol *c, kn_db_type kind)
 {
     kn_db_rows *q = query(r,
-                          kn_sql_missing_query(r->x.a, r->d, r->x.ctx->rulebook, r->table, r->query_sql, c->name,
+                          kn_sql_missing_query(cx->a, r->d, r->x.ctx->rulebook, r->table, r->query_sql, c->name,
                                                r->x.t.target->name, null_only(r, kind)),
-                          kn_printf(r->x.a, "cannot count the missing values of '%s'", c->name));
+                          kn_printf(cx->a, "cannot count the missing values of '%s'", c->name));
     if (!q) {
         return false;
     }
@@ -450,7 +461,7 @@ static bool missing_groups(db_run *r, kn_dx *cx, const kn_tcol *c, kn_db_type ki
 
 /* One column: its groups, its value findings into the whole table, its
  * statistics. */
-static bool column(db_run *r, size_t i, kn_db_type kind)
+static bool column_in(db_run *r, size_t i, kn_db_type kind, kn_arena *ca)
 {
     kn_dx *x = &r->x;
     kn_tcol *c = &x->t.cols[i];
@@ -467,7 +478,7 @@ static bool column(db_run *r, size_t i, kn_db_type kind)
         /* An identifier of a large table: a random sample of about cap
          * rows (its segments are statistics); its values, when typed, are
          * streamed for value-mismatch. */
-        column_table(r, &cx, c, k, true, true);
+        column_table(r, &cx, ca, c, k, true, true);
         cx.sampled_of = x->t.rows;
         double p = (double)r->cap / (double)x->t.rows;
         const char *seed = kn_sql_seed_query(x->a, r->d, x->seed);
@@ -481,9 +492,9 @@ static bool column(db_run *r, size_t i, kn_db_type kind)
             kn_db_done(q);
         }
         q = query(r,
-                  kn_sql_groups_query(x->a, r->d, r->table, r->query_sql, c->name, x->t.target->name, 2 * r->cap, p,
+                  kn_sql_groups_query(ca, r->d, r->table, r->query_sql, c->name, x->t.target->name, 2 * r->cap, p,
                                       x->seed),
-                  kn_printf(x->a, "cannot read a sample of '%s'", c->name));
+                  kn_printf(ca, "cannot read a sample of '%s'", c->name));
         if (!q || !feed(r, &cx, q, true, true, 2 * r->cap, &wide, NULL)) {
             return false;
         }
@@ -491,11 +502,11 @@ static bool column(db_run *r, size_t i, kn_db_type kind)
             return false;
         }
     } else {
-        column_table(r, &cx, c, k, stats, true);
+        column_table(r, &cx, ca, c, k, stats, true);
         kn_db_rows *q = query(
-            r, kn_sql_groups_query(x->a, r->d, r->table, r->query_sql, c->name, stats ? x->t.target->name : NULL,
+            r, kn_sql_groups_query(ca, r->d, r->table, r->query_sql, c->name, stats ? x->t.target->name : NULL,
                                    r->cap + 1, 0, 0),
-            kn_printf(x->a, "cannot read the values of '%s'", c->name));
+            kn_printf(ca, "cannot read the values of '%s'", c->name));
         if (!q || !feed(r, &cx, q, stats, stats, r->cap, &wide, &f)) {
             return false;
         }
@@ -511,7 +522,7 @@ static bool column(db_run *r, size_t i, kn_db_type kind)
             if (!stats) {
                 return true;
             }
-            column_table(r, &cx, c, k, true, false);
+            column_table(r, &cx, ca, c, k, true, false);
             cx.t.cols[0].wide = true;
             bool numeric = c->type == KN_TYPE_NUMBER || c->type == KN_TYPE_TIMESTAMP || c->type == KN_TYPE_DATE;
             /* the engine orders the values as numbers or instants only when
@@ -539,6 +550,17 @@ static bool column(db_run *r, size_t i, kn_db_type kind)
     return true;
 }
 
+/* Each column's tables live in an arena of their own, freed once its
+ * findings are in the sink: memory does not grow with the columns. */
+static bool column(db_run *r, size_t i, kn_db_type kind)
+{
+    kn_defer *rel;
+    kn_arena *ca = kn_arena_child(r->x.a, &rel);
+    bool ok = column_in(r, i, kind, ca);
+    kn_defer_run(r->x.a, rel);
+    return ok;
+}
+
 /* ---- the target ----------------------------------------------------------------- */
 
 /* The target's values: value-mismatch of the target, and whether the
@@ -551,7 +573,7 @@ static bool target(db_run *r, size_t i, kn_db_type kind)
     kn_dx cx;
     firsts f = {0};
     bool wide;
-    column_table(r, &cx, c, x->decl[i], false, true);
+    column_table(r, &cx, x->a, c, x->decl[i], false, true);
     kn_db_rows *q = query(r, kn_sql_groups_query(x->a, r->d, r->table, r->query_sql, c->name, NULL, r->cap + 1, 0, 0),
                           kn_printf(x->a, "cannot read the values of the target '%s'", c->name));
     if (!q) {

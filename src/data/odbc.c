@@ -23,6 +23,7 @@ struct kn_db {
     bool connected, failed;
     kn_sql_dialect dialect;
     uint64_t rows, bytes;
+    SQLWCHAR *buf; /* one chunk of SQLGetData, shared by every result */
 };
 
 typedef struct value {
@@ -353,7 +354,10 @@ kn_db_rows *kn_db_query(kn_db *db, const char *sql, const char *what)
     r->names = kn_alloc_array(a, r->n + 1, sizeof *r->names);
     r->types = kn_alloc_array(a, r->n + 1, sizeof *r->types);
     r->v = kn_alloc_array(a, r->n + 1, sizeof *r->v);
-    r->buf = kn_alloc_array(a, 4096, sizeof *r->buf);
+    if (!db->buf) {
+        db->buf = kn_alloc_array(a, 4096, sizeof *db->buf);
+    }
+    r->buf = db->buf;
     for (size_t i = 0; i < r->n; i++) {
         SQLWCHAR name[1024];
         SQLSMALLINT len = 0, type = 0, digits, nullable;

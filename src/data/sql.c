@@ -368,7 +368,15 @@ char *kn_sql_rank_sum_query(kn_arena *a, kn_sql_dialect d, const kn_rulebook *rb
     puts_(&v, "CASE WHEN ");
     missing_or_null(&v, d, rb, col, null_only & KN_SQL_COL_NULL_ONLY, null_only & KN_SQL_COL_NAN);
     puts_(&v, " THEN NULL ELSE ");
-    ident(&v, d, col);
+    if (null_only & KN_SQL_COL_FLOAT) {
+        /* the CSV path keeps a number as a 4-byte float (read as a double,
+         * then rounded): the same rounding here, so the same values tie */
+        puts_(&v, "CAST(CAST(");
+        ident(&v, d, col);
+        puts_(&v, d == KN_SQL_MYSQL ? " AS DOUBLE) AS FLOAT)" : " AS DOUBLE PRECISION) AS REAL)");
+    } else {
+        ident(&v, d, col);
+    }
     puts_(&v, " END");
     puts_(&b, v.p);
     puts_(&b, " AS v,\n                   SUM(CASE WHEN ");
@@ -747,7 +755,7 @@ void kn_sql_make(kn_arena *a, const kn_schema *s, const kn_rulebook *rb, const c
                                  "rank sum, by the engine",
                               esc(a, k->name), max_groups),
                     kn_sql_rank_sum_query(a, d, rb, table, query_sql, k->name, target->name, ":positive",
-                                          ":negative", 0));
+                                          ":negative", k->type == KN_TYPE_NUMBER ? KN_SQL_COL_FLOAT : 0));
             }
             add(&c, KN_SQLQ_MISSING, "missingness-predicts", k,
                 kn_printf(a, "when '%s' has more than %llu groups: its missing rows per target class", esc(a, k->name),

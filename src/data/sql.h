@@ -56,6 +56,7 @@ enum {
     KN_SQL_COL_NULL_ONLY = 1u,
     KN_SQL_TARGET_NULL_ONLY = 2u,
     KN_SQL_COL_NAN = 4u, /* with KN_SQL_COL_NULL_ONLY: NaN too (PostgreSQL's floats) */
+    KN_SQL_COL_FLOAT = 8u, /* rank sum: the values rounded to 4-byte floats, as the CSV path keeps numbers */
 };
 
 /* Rows of one aggregate query the client reads by default (--max-rows in

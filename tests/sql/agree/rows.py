@@ -28,6 +28,7 @@ COLUMNS = [
     ("Brötchen_extra", "INTEGER", "INTEGER", "INTEGER"),
     ("postcode_area", "TEXT", "VARCHAR(20)", "TEXT"),
     ("birth_decade", "INTEGER", "INTEGER", "INTEGER"),
+    ("scale_reading", "DOUBLE PRECISION", "DOUBLE", "REAL"),
     ("staff_initials", "TEXT", "VARCHAR(20)", "TEXT"),
 ]
 NAMES = [c[0] for c in COLUMNS]
@@ -63,6 +64,12 @@ for i in range(600):
         "Brötchen_extra": rng.randrange(4),
         "postcode_area": "PA%02d" % rng.randrange(12),
         "birth_decade": rng.choice([1950, 1960, 1970, 1980, 1990, 2000]),
+        # a few readings, each with noise far below a 4-byte float's
+        # precision: many distinct doubles, few distinct floats (the CSV
+        # path keeps numbers as floats; the engine's rank sum must tie them
+        # the same way)
+        "scale_reading": rng.choice([2.5, 3.25, 4.0, 6.5]) + (1.0 if cancelled and rng.random() < 0.5 else 0.0)
+        + rng.randrange(1, 1000) * 1e-12,
         "staff_initials": rng.choice(["AB", "CD", "EF"]),
     }
     rows.append(row)
