@@ -1227,8 +1227,9 @@ static void load_file(ld *l, const char *real, const char *display, bool main_fi
                              "--rulebook FILE, or name it .knowable-rules.yaml beside the schemas",
                              esc(l, display), main_file ? "a schema" : "a register to include");
             kn_diag_note(l->sink, d, &k->pos,
-                         "put -- before the file names (knowable check -- FILE...) so that no file name is read as "
-                         "an option");
+                         "a file list from git ls-files can hold a rulebook: with -- before the file names "
+                         "(knowable check -- FILE...), one named like an option (--rulebook=...) is read as a "
+                         "file and refused here, never taken as an option");
             kn_sink_mark_fatal(l->sink);
             l->stack->len--;
             return;
