@@ -23,7 +23,11 @@ static const char *sev_color(kn_severity s)
 }
 
 /* What the renderer keeps between lines: the last file name, escaped once
- * (a report names a handful of files thousands of times). */
+ * (a report names a handful of files thousands of times), and a buffer the
+ * lines are put together in, written out in large blocks (a large report
+ * is hundreds of thousands of pieces; one stdio call each cost a tenth of
+ * the renderer's time). */
+#define TX_BUF 65536
 typedef struct tx {
     FILE *out;
     kn_arena *arena;
@@ -31,9 +35,56 @@ typedef struct tx {
     const char *file;     /* the last file name seen (by pointer) */
     const char *file_esc; /* ... escaped for the terminal */
     size_t file_len;
+    size_t n;             /* bytes in buf */
+    char buf[TX_BUF];
 } tx;
 
-static void put_uint(FILE *out, unsigned long v)
+static void flush(tx *x)
+{
+    if (x->n) {
+        fwrite(x->buf, 1, x->n, x->out);
+        x->n = 0;
+    }
+}
+
+static void put(tx *x, const char *s, size_t len)
+{
+    if (x->n + len > TX_BUF) {
+        flush(x);
+        if (len > TX_BUF) {
+            fwrite(s, 1, len, x->out);
+            return;
+        }
+    }
+    memcpy(x->buf + x->n, s, len);
+    x->n += len;
+}
+
+static void put_str(tx *x, const char *s)
+{
+    put(x, s, strlen(s));
+}
+
+static void put_char(tx *x, char c)
+{
+    if (x->n == TX_BUF) {
+        flush(x);
+    }
+    x->buf[x->n++] = c;
+}
+
+static void emit_tx(void *ctx, const char *s, size_t n)
+{
+    put(ctx, s, n);
+}
+
+/* Text from an input, escaped for the terminal. */
+static void put_term(tx *x, const char *s)
+{
+    kn_term_escape_to(s, strlen(s), emit_tx, x);
+}
+
+static void put_uint(tx *x, unsigned long v)
 {
     char b[24];
     size_t i = sizeof b;
@@ -41,73 +92,71 @@ static void put_uint(FILE *out, unsigned long v)
         b[--i] = (char)('0' + v % 10);
         v /= 10;
     } while (v);
-    fwrite(b + i, 1, sizeof b - i, out);
+    put(x, b + i, sizeof b - i);
 }
 
 static void put_pos(tx *x, const kn_pos *p)
 {
-    FILE *out = x->out;
     if (x->color) {
-        fputs(BOLD, out);
+        put_str(x, BOLD);
     }
     if (p->file != x->file) {
         x->file = p->file;
         x->file_esc = kn_escape_term(x->arena, p->file, strlen(p->file));
         x->file_len = strlen(x->file_esc);
     }
-    fwrite(x->file_esc, 1, x->file_len, out);
-    fputc(':', out);
+    put(x, x->file_esc, x->file_len);
+    put_char(x, ':');
     if (p->line) {
         /* A whole line (a CSV row) without a column: FILE:LINE: as in the
          * GNU format. */
-        put_uint(out, p->line);
-        fputc(':', out);
+        put_uint(x, p->line);
+        put_char(x, ':');
         if (p->col) {
-            put_uint(out, p->col);
-            fputc(':', out);
+            put_uint(x, p->col);
+            put_char(x, ':');
         }
     }
     if (x->color) {
-        fputs(RESET, out);
+        put_str(x, RESET);
     }
-    fputc(' ', out);
+    put_char(x, ' ');
 }
 
-static void put_sev(FILE *out, const char *word, kn_severity s, bool color)
+static void put_sev(tx *x, const char *word, kn_severity s)
 {
-    if (color) {
-        fputs(sev_color(s), out);
+    if (x->color) {
+        put_str(x, sev_color(s));
     }
-    fputs(word, out);
-    fputc(':', out);
-    if (color) {
-        fputs(RESET, out);
+    put_str(x, word);
+    put_char(x, ':');
+    if (x->color) {
+        put_str(x, RESET);
     }
-    fputc(' ', out);
+    put_char(x, ' ');
 }
 
 static void put_diag(tx *x, const kn_diag *d, const kn_render_opts *o)
 {
-    FILE *out = x->out;
     put_pos(x, &d->pos);
     if (d->waived) {
-        put_sev(out, "note", KN_SEV_NOTE, o->color);
-        fputs("(waived) ", out);
+        put_sev(x, "note", KN_SEV_NOTE);
+        put_str(x, "(waived) ");
     } else {
-        put_sev(out, kn_severity_name(d->severity), d->severity, o->color);
+        put_sev(x, kn_severity_name(d->severity), d->severity);
     }
-    kn_fput_term(out, d->message, strlen(d->message));
-    fputs(" [", out);
-    fputs(kn_rule_get(d->rule)->id, out);
-    fputs("]\n", out);
+    put_term(x, d->message);
+    put_str(x, " [");
+    put_str(x, kn_rule_get(d->rule)->id);
+    put_str(x, "]\n");
     if (o->quiet) {
         return;
     }
     for (size_t i = 0; i < d->n_notes; i++) {
         put_pos(x, &d->notes[i].pos);
-        put_sev(out, "note", KN_SEV_NOTE, o->color);
-        kn_fput_term(out, d->notes[i].message, strlen(d->notes[i].message));
-        fputc('\n', out);
+        put_sev(x, "note", KN_SEV_NOTE);
+        put_term(x, d->notes[i].message);
+        put_char(x, '\n');
     }
 }
 
@@ -147,14 +196,18 @@ void kn_render_text(FILE *out, const kn_sink *s, const kn_render_opts *o)
 {
     size_t n;
     kn_diag **all = kn_sink_diags(s, &n);
-    tx x = {out, kn_sink_arena(s), o->color, NULL, NULL, 0};
+    tx *x = kn_alloc(kn_sink_arena(s), sizeof *x);
+    x->out = out;
+    x->arena = kn_sink_arena(s);
+    x->color = o->color;
     for (size_t i = 0; i < n; i++) {
         const kn_diag *d = all[i];
         if (d->baselined || (d->waived && !o->show_waived)) {
             continue;
         }
-        put_diag(&x, d, o);
+        put_diag(x, d, o);
     }
+    flush(x);
     if (!o->quiet) {
         kn_render_summary(out, s, o);
     }

@@ -168,7 +168,7 @@ size_t kn_utf8_valid_seq(const unsigned char *s, size_t len)
 }
 
 /* Escapes for a terminal into a callback, so file and arena outputs share it. */
-typedef void (*emit_fn)(void *ctx, const char *s, size_t n);
+typedef kn_emit_fn emit_fn;
 
 static void term_escape(const char *s, size_t len, emit_fn emit, void *ctx)
 {
@@ -248,6 +248,11 @@ static void term_escape(const char *s, size_t len, emit_fn emit, void *ctx)
         emit(ctx, buf, strlen(buf));
         i++;
     }
+}
+
+void kn_term_escape_to(const char *s, size_t len, kn_emit_fn emit, void *ctx)
+{
+    term_escape(s, len, emit, ctx);
 }
 
 static void emit_file(void *ctx, const char *s, size_t n)

@@ -39,6 +39,9 @@ const char *kn_suggest_within(const char *word, const char *const *candidates, s
  * they are; control characters, DEL, C1 controls and invalid UTF-8 bytes as
  * \xNN (\n \t \r \e spelt so), a backslash as is. */
 void kn_fput_term(FILE *f, const char *s, size_t len);
+/* The same, handed piece by piece to emit (a renderer's own buffer). */
+typedef void (*kn_emit_fn)(void *ctx, const char *s, size_t n);
+void kn_term_escape_to(const char *s, size_t len, kn_emit_fn emit, void *ctx);
 /* The same into arena memory. */
 char *kn_escape_term(kn_arena *a, const char *s, size_t len);
 
