@@ -474,6 +474,31 @@ static bool column_in(db_run *r, size_t i, kn_db_type kind, kn_arena *ca)
     kn_dx cx;
     firsts f = {0};
     bool wide = false;
+    bool numeric = c->type == KN_TYPE_NUMBER || c->type == KN_TYPE_TIMESTAMP || c->type == KN_TYPE_DATE;
+    /* the engine orders the values as numbers or instants only when its
+     * type holds nothing else (not SQLite: see typed_by_engine) */
+    bool engine_ordered = typed_by_engine(r, c->type, kind) && (kind == KN_DB_NUMBER || kind == KN_DB_INTEGER ||
+                                                                 kind == KN_DB_TIMESTAMP || kind == KN_DB_DATE);
+    bool by_rank = stats && c->feature && numeric && engine_ordered && r->rank_ok;
+    if (by_rank && !c->format) {
+        /* A number or an instant the engine keeps in type, against a
+         * binary target: no value can fail its type, and one scan gives
+         * the rank sum (on 4-byte floats, as the CSV path keeps numbers)
+         * and the missing rows per class, however many distinct values
+         * the column has.  When the classes do not add up, the groups are
+         * read as below. */
+        column_table(r, &cx, ca, c, k, true, false);
+        bool counted = false;
+        if (!rank_sum(r, &cx, kind, &counted)) {
+            return false;
+        }
+        if (counted && cx.t.cols[0].has_auc) {
+            cx.target_said = x->target_said;
+            kn_data_statistics(&cx);
+            x->target_said = cx.target_said;
+            return true;
+        }
+    }
     if (stats && c->identifier && x->t.rows > r->cap) {
         /* An identifier of a large table: a random sample of about cap
          * rows (its segments are statistics); its values, when typed, are
@@ -524,14 +549,8 @@ static bool column_in(db_run *r, size_t i, kn_db_type kind, kn_arena *ca)
             }
             column_table(r, &cx, ca, c, k, true, false);
             cx.t.cols[0].wide = true;
-            bool numeric = c->type == KN_TYPE_NUMBER || c->type == KN_TYPE_TIMESTAMP || c->type == KN_TYPE_DATE;
-            /* the engine orders the values as numbers or instants only when
-             * its type holds nothing else (not SQLite: see typed_by_engine) */
-            bool engine_ordered =
-                typed_by_engine(r, c->type, kind) && (kind == KN_DB_NUMBER || kind == KN_DB_INTEGER || kind == KN_DB_TIMESTAMP ||
-                                                   kind == KN_DB_DATE);
             bool counted = false;
-            if (c->feature && numeric && engine_ordered && r->rank_ok && !rank_sum(r, &cx, kind, &counted)) {
+            if (by_rank && !rank_sum(r, &cx, kind, &counted)) {
                 return false;
             }
             if (c->feature && !counted && !missing_groups(r, &cx, c, kind)) {

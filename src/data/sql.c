@@ -750,16 +750,16 @@ void kn_sql_make(kn_arena *a, const kn_schema *s, const kn_rulebook *rb, const c
         if (feature && target) {
             if (is_temporal_or_number(k->type)) {
                 add(&c, KN_SQLQ_RANK_SUM, "lone-feature-separates", k,
-                    kn_printf(a, "when '%s' has more than %llu groups and a numeric or temporal SQL type, and the "
-                                 "target two values (in place of ':positive' and ':negative'): the Mann-Whitney "
-                                 "rank sum, by the engine",
-                              esc(a, k->name), max_groups),
+                    kn_printf(a, "when '%s' has a numeric or temporal SQL type (not SQLite's) and the target two "
+                                 "values (in place of ':positive' and ':negative'): the Mann-Whitney rank sum and "
+                                 "the missing rows per class, by the engine, instead of the groups above",
+                              esc(a, k->name)),
                     kn_sql_rank_sum_query(a, d, rb, table, query_sql, k->name, target->name, ":positive",
                                           ":negative", k->type == KN_TYPE_NUMBER ? KN_SQL_COL_FLOAT : 0));
             }
             add(&c, KN_SQLQ_MISSING, "missingness-predicts", k,
-                kn_printf(a, "when '%s' has more than %llu groups: its missing rows per target class", esc(a, k->name),
-                          max_groups),
+                kn_printf(a, "when '%s' has more than %llu groups and no rank sum: its missing rows per target class",
+                          esc(a, k->name), max_groups),
                 kn_sql_missing_query(a, d, rb, table, query_sql, k->name, target->name, 0));
         }
         if (typed) {
