@@ -143,7 +143,18 @@ int kn_rpc_skip(FILE *in, size_t n)
 
 void kn_rpc_write(FILE *out, const char *body, size_t len)
 {
+    kn_rpc_write_parts(out, &body, &len, 1);
+}
+
+void kn_rpc_write_parts(FILE *out, const char *const *parts, const size_t *lens, size_t n)
+{
+    size_t len = 0;
+    for (size_t i = 0; i < n; i++) {
+        len += lens[i];
+    }
     fprintf(out, "Content-Length: %zu\r\n\r\n", len);
-    fwrite(body, 1, len, out);
+    for (size_t i = 0; i < n; i++) {
+        fwrite(parts[i], 1, lens[i], out);
+    }
     fflush(out);
 }

@@ -31,4 +31,8 @@ int kn_rpc_skip(FILE *in, size_t n);
 /* Writes one message with its Content-Length header and flushes. */
 void kn_rpc_write(FILE *out, const char *body, size_t len);
 
+/* The same for a body given in n parts, written one after the other (a
+ * large body need not be copied into one buffer first). */
+void kn_rpc_write_parts(FILE *out, const char *const *parts, const size_t *lens, size_t n);
+
 #endif

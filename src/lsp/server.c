@@ -459,20 +459,21 @@ static void publish(kn_server *s)
     s->n_published = 0;
     for (size_t i = 0; i < n_lists; i++) {
         out_list *l = lists[i];
-        char *msg = NULL;
+        /* The envelope around the list, which is written as it is. */
+        char *head = NULL;
         size_t len = 0;
-        FILE *m = open_memstream(&msg, &len);
+        FILE *m = open_memstream(&head, &len);
         bool ok = fclose(l->f) == 0 && l->buf && m;
         if (ok) {
             fputs("{\"jsonrpc\":\"2.0\",\"method\":\"textDocument/publishDiagnostics\",\"params\":{\"uri\":",
                   m);
             put_str(m, l->uri);
             fputs(",\"diagnostics\":[", m);
-            fwrite(l->buf, 1, l->len, m);
-            fputs("]}}", m);
         }
-        if (m && fclose(m) == 0 && ok && msg) {
-            kn_rpc_write(s->out, msg, len);
+        if (m && fclose(m) == 0 && ok && head) {
+            const char *parts[] = {head, l->buf, "]}}"};
+            const size_t lens[] = {len, l->len, 3};
+            kn_rpc_write_parts(s->out, parts, lens, 3);
         } else {
             fputs("knowable lsp: out of memory while writing diagnostics\n", s->err);
         }
@@ -481,7 +482,7 @@ static void publish(kn_server *s)
         } else {
             free(l->uri);
         }
-        free(msg);
+        free(head);
         free(l->buf);
         free(l);
     }
