@@ -179,7 +179,11 @@ void kn_render_summary(FILE *out, const kn_sink *s, const kn_render_opts *o)
     if (b) {
         fprintf(out, " (%zu matched the baseline)", b);
     }
-    fprintf(out, " in %zu schema%s", o->n_schemas, o->n_schemas == 1 ? "" : "s");
+    if (o->n_schemas) {
+        fprintf(out, " in %zu schema%s", o->n_schemas, o->n_schemas == 1 ? "" : "s");
+    } else {
+        fputs("; no schema was checked", out); /* a rulebook or an option failed first */
+    }
     if (o->rulebooks && *o->rulebooks) {
         fputs(" (", out);
         kn_fput_term(out, o->rulebooks, strlen(o->rulebooks));
