@@ -39,7 +39,7 @@
 #include "data_rules.h"
 
 typedef struct db_run {
-    kn_dx x;            /* the whole table: header, roles, counted rules */
+    kn_dx x; /* the whole table: header, roles, counted rules */
     kn_db *db;
     kn_sql_dialect d;
     const char *table, *query_sql, *shown;
@@ -373,13 +373,15 @@ static bool rank_sum(db_run *r, kn_dx *cx, kn_db_type kind, bool *done)
 {
     kn_tcol *c = &cx->t.cols[0];
     int p = r->raw_positive[0] ? 0 : 1;
-    unsigned nulls = null_only(r, kind) |
-                     (null_only(r, r->target_kind) && r->target_kind != KN_DB_NUMBER ? KN_SQL_TARGET_NULL_ONLY : 0) |
-                     (c->type == KN_TYPE_NUMBER ? KN_SQL_COL_FLOAT : 0);
-    kn_db_rows *q = query(r,
-                          kn_sql_rank_sum_query(cx->a, r->d, r->x.ctx->rulebook, r->table, r->query_sql, c->name,
-                                                r->x.t.target->name, r->raw[p], r->raw[1 - p], nulls),
-                          kn_printf(cx->a, "cannot rank the values of '%s'", c->name));
+    unsigned nulls =
+        null_only(r, kind) |
+        (null_only(r, r->target_kind) && r->target_kind != KN_DB_NUMBER ? KN_SQL_TARGET_NULL_ONLY : 0) |
+        (c->type == KN_TYPE_NUMBER ? KN_SQL_COL_FLOAT : 0);
+    kn_db_rows *q =
+        query(r,
+              kn_sql_rank_sum_query(cx->a, r->d, r->x.ctx->rulebook, r->table, r->query_sql, c->name,
+                                    r->x.t.target->name, r->raw[p], r->raw[1 - p], nulls),
+              kn_printf(cx->a, "cannot rank the values of '%s'", c->name));
     *done = false;
     if (!q) {
         return false;
@@ -425,8 +427,8 @@ static bool rank_sum(db_run *r, kn_dx *cx, kn_db_type kind, bool *done)
 static bool missing_groups(db_run *r, kn_dx *cx, const kn_tcol *c, kn_db_type kind)
 {
     kn_db_rows *q = query(r,
-                          kn_sql_missing_query(cx->a, r->d, r->x.ctx->rulebook, r->table, r->query_sql, c->name,
-                                               r->x.t.target->name, null_only(r, kind)),
+                          kn_sql_missing_query(cx->a, r->d, r->x.ctx->rulebook, r->table, r->query_sql,
+                                               c->name, r->x.t.target->name, null_only(r, kind)),
                           kn_printf(cx->a, "cannot count the missing values of '%s'", c->name));
     if (!q) {
         return false;
@@ -477,8 +479,9 @@ static bool column_in(db_run *r, size_t i, kn_db_type kind, kn_arena *ca)
     bool numeric = c->type == KN_TYPE_NUMBER || c->type == KN_TYPE_TIMESTAMP || c->type == KN_TYPE_DATE;
     /* the engine orders the values as numbers or instants only when its
      * type holds nothing else (not SQLite: see typed_by_engine) */
-    bool engine_ordered = typed_by_engine(r, c->type, kind) && (kind == KN_DB_NUMBER || kind == KN_DB_INTEGER ||
-                                                                 kind == KN_DB_TIMESTAMP || kind == KN_DB_DATE);
+    bool engine_ordered =
+        typed_by_engine(r, c->type, kind) &&
+        (kind == KN_DB_NUMBER || kind == KN_DB_INTEGER || kind == KN_DB_TIMESTAMP || kind == KN_DB_DATE);
     bool by_rank = stats && c->feature && numeric && engine_ordered && r->rank_ok;
     if (by_rank && !c->format) {
         /* A number or an instant the engine keeps in type, against a
@@ -517,8 +520,8 @@ static bool column_in(db_run *r, size_t i, kn_db_type kind, kn_arena *ca)
             kn_db_done(q);
         }
         q = query(r,
-                  kn_sql_groups_query(ca, r->d, r->table, r->query_sql, c->name, x->t.target->name, 2 * r->cap, p,
-                                      x->seed),
+                  kn_sql_groups_query(ca, r->d, r->table, r->query_sql, c->name, x->t.target->name,
+                                      2 * r->cap, p, x->seed),
                   kn_printf(ca, "cannot read a sample of '%s'", c->name));
         if (!q || !feed(r, &cx, q, true, true, 2 * r->cap, &wide, NULL)) {
             return false;
@@ -528,10 +531,10 @@ static bool column_in(db_run *r, size_t i, kn_db_type kind, kn_arena *ca)
         }
     } else {
         column_table(r, &cx, ca, c, k, stats, true);
-        kn_db_rows *q = query(
-            r, kn_sql_groups_query(ca, r->d, r->table, r->query_sql, c->name, stats ? x->t.target->name : NULL,
-                                   r->cap + 1, 0, 0),
-            kn_printf(ca, "cannot read the values of '%s'", c->name));
+        kn_db_rows *q = query(r,
+                              kn_sql_groups_query(ca, r->d, r->table, r->query_sql, c->name,
+                                                  stats ? x->t.target->name : NULL, r->cap + 1, 0, 0),
+                              kn_printf(ca, "cannot read the values of '%s'", c->name));
         if (!q || !feed(r, &cx, q, stats, stats, r->cap, &wide, &f)) {
             return false;
         }
@@ -593,8 +596,9 @@ static bool target(db_run *r, size_t i, kn_db_type kind)
     firsts f = {0};
     bool wide;
     column_table(r, &cx, x->a, c, x->decl[i], false, true);
-    kn_db_rows *q = query(r, kn_sql_groups_query(x->a, r->d, r->table, r->query_sql, c->name, NULL, r->cap + 1, 0, 0),
-                          kn_printf(x->a, "cannot read the values of the target '%s'", c->name));
+    kn_db_rows *q =
+        query(r, kn_sql_groups_query(x->a, r->d, r->table, r->query_sql, c->name, NULL, r->cap + 1, 0, 0),
+              kn_printf(x->a, "cannot read the values of the target '%s'", c->name));
     if (!q) {
         return false;
     }
@@ -639,8 +643,9 @@ static bool target(db_run *r, size_t i, kn_db_type kind)
     }
     if (wide) {
         r->target_wide = true;
-        const char *why = kn_printf(x->a, "the target '%s' has more values than the client reads from the database "
-                                          "(--max-rows %lld)",
+        const char *why = kn_printf(x->a,
+                                    "the target '%s' has more values than the client reads from the database "
+                                    "(--max-rows %lld)",
                                     c->name, x->max_rows);
         kn_sink_data_skip(x->sink, KN_R_LONE_FEATURE_SEPARATES, "", "all", why);
         kn_sink_data_skip(x->sink, KN_R_MISSINGNESS_PREDICTS, "", "all", why);
@@ -658,14 +663,16 @@ static bool target(db_run *r, size_t i, kn_db_type kind)
         for (int k = 0; k < 2; k++) {
             bool b;
             norm[k] = r->raw[k];
-            if (c->type == KN_TYPE_BOOLEAN && kn_value_boolean(r->raw[k], strlen(r->raw[k]), &b) == KN_VALUE_OK) {
+            if (c->type == KN_TYPE_BOOLEAN &&
+                kn_value_boolean(r->raw[k], strlen(r->raw[k]), &b) == KN_VALUE_OK) {
                 norm[k] = b ? "true" : "false";
             }
         }
         if (strcmp(norm[0], norm[1]) != 0) {
             r->rank_ok = true;
             bool first_positive = strcmp(norm[0], norm[1]) > 0;
-            if (c->type == KN_TYPE_BOOLEAN && (strcmp(norm[0], "true") == 0 || strcmp(norm[1], "true") == 0)) {
+            if (c->type == KN_TYPE_BOOLEAN &&
+                (strcmp(norm[0], "true") == 0 || strcmp(norm[1], "true") == 0)) {
                 first_positive = strcmp(norm[0], "true") == 0;
             }
             r->raw_positive[0] = first_positive;
@@ -717,8 +724,8 @@ static bool overlap(db_run *r, kn_overlap *o, const char *const *cols, size_t n,
 {
     kn_dx *x = &r->x;
     kn_db_rows *q = query(r,
-                          kn_sql_overlap_query(x->a, r->d, x->ctx->rulebook, r->table, r->query_sql, x->t.split->name,
-                                               cols, n, entity),
+                          kn_sql_overlap_query(x->a, r->d, x->ctx->rulebook, r->table, r->query_sql,
+                                               x->t.split->name, cols, n, entity),
                           entity ? "cannot count the entities on each side of the split"
                                  : "cannot count the feature rows on each side of the split");
     if (!q) {
@@ -822,8 +829,8 @@ static bool run_checks(db_run *r, const char *data)
     r->d = kn_db_dialect(r->db);
 
     /* The header: the result's column names and SQL kinds. */
-    kn_db_rows *q = query(r, kn_sql_columns_query(x->a, r->d, r->table, r->query_sql),
-                          "cannot read the columns");
+    kn_db_rows *q =
+        query(r, kn_sql_columns_query(x->a, r->d, r->table, r->query_sql), "cannot read the columns");
     if (!q) {
         return false;
     }
@@ -872,8 +879,9 @@ static bool run_checks(db_run *r, const char *data)
     return counted(r);
 }
 
-void kn_check_database(kn_ctx *c, const kn_schema *s, const char *data, const char *table, const char *query_label,
-                       const char *query_sql, long long max_rows, uint64_t seed, FILE *err)
+void kn_check_database(kn_ctx *c, const kn_schema *s, const char *data, const char *table,
+                       const char *query_label, const char *query_sql, long long max_rows, uint64_t seed,
+                       FILE *err)
 {
     db_run r;
     memset(&r, 0, sizeof r);

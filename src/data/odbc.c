@@ -239,8 +239,8 @@ kn_db *kn_db_open(kn_arena *a, const char *data, FILE *err)
      * (AddressSanitizer, in SQLDriverConnectW). */
     SQLCHAR out[16];
     SQLSMALLINT out_len;
-    SQLRETURN rc = SQLDriverConnect(h->dbc, NULL, (SQLCHAR *)kn_strdup(a, conn), SQL_NTS, out, sizeof out, &out_len,
-                                    SQL_DRIVER_NOPROMPT);
+    SQLRETURN rc = SQLDriverConnect(h->dbc, NULL, (SQLCHAR *)kn_strdup(a, conn), SQL_NTS, out, sizeof out,
+                                    &out_len, SQL_DRIVER_NOPROMPT);
     if (!SQL_SUCCEEDED(rc)) {
         const char *shown = kn_odbc_display(a, data);
         driver_error(a, err, kn_printf(a, "cannot connect to %s", shown), SQL_HANDLE_DBC, h->dbc);
@@ -362,8 +362,8 @@ kn_db_rows *kn_db_query(kn_db *db, const char *sql, const char *what)
         SQLWCHAR name[1024];
         SQLSMALLINT len = 0, type = 0, digits, nullable;
         SQLULEN size;
-        if (!SQL_SUCCEEDED(SQLDescribeColW(r->st, (SQLUSMALLINT)(i + 1), name, 1024, &len, &type, &size, &digits,
-                                           &nullable))) {
+        if (!SQL_SUCCEEDED(SQLDescribeColW(r->st, (SQLUSMALLINT)(i + 1), name, 1024, &len, &type, &size,
+                                           &digits, &nullable))) {
             driver_error(a, db->err, what, SQL_HANDLE_STMT, r->st);
             free_stmt(r);
             db->failed = true;
