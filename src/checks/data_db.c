@@ -725,7 +725,7 @@ static bool overlap(db_run *r, kn_overlap *o, const char *const *cols, size_t n,
     kn_dx *x = &r->x;
     kn_db_rows *q = query(r,
                           kn_sql_overlap_query(x->a, r->d, x->ctx->rulebook, r->table, r->query_sql,
-                                               x->t.split->name, cols, n, entity),
+                                               x->t.split->name, cols, n, entity, r->key),
                           entity ? "cannot count the entities on each side of the split"
                                  : "cannot count the feature rows on each side of the split");
     if (!q) {
@@ -747,7 +747,7 @@ static bool overlap(db_run *r, kn_overlap *o, const char *const *cols, size_t n,
         res.train_rows_shared = (size_t)v[3];
         res.test_rows_shared = (size_t)v[4];
         size_t len;
-        const char *k = entity ? kn_db_get(q, 5, &len) : NULL;
+        const char *k = entity || r->key ? kn_db_get(q, 5, &len) : NULL;
         res.first_key = k ? kn_strndup(x->a, k, len) : NULL;
     }
     kn_db_done(q);

@@ -30,6 +30,10 @@ static void shared(kn_dx *x)
                                       "distinct rows over %zu features); the first is here",
                                       o.test_rows_shared, o.test_rows, o.shared_keys, t->n_features);
             kn_diag_key(x->sink, d, "shared rows %s", sc->name);
+            if (o.first_key && x->key_name) {
+                kn_diag_note(x->sink, d, NULL, "the repeated test row with the least key: '%s' = '%.60s'", x->key_name,
+                             o.first_key);
+            }
             kn_diag_note(x->sink, d, kn_column_pos(sc, s->split.column.node),
                          "the split column '%s' is named here; drop duplicates before splitting, or split by group",
                          sc->name);

@@ -157,15 +157,15 @@ static void as_text(sbuf *b, kn_sql_dialect d, const char *col)
     }
 }
 
-/* 1 when the split column says side (the words of kn_split_side, any case,
- * spaces around ignored), else 0. */
-static void side_sum(sbuf *b, kn_sql_dialect d, const char *split, bool test)
+/* Whether the split column says side (the words of kn_split_side, any
+ * case, spaces around ignored). */
+static void side_test(sbuf *b, kn_sql_dialect d, const char *split, bool test)
 {
     static const char *const train[] = {"train", "training"};
     static const char *const tests[] = {"test", "testing", "holdout", "validation", "valid", "val", "eval"};
     const char *const *w = test ? tests : train;
     size_t n = test ? sizeof tests / sizeof *tests : sizeof train / sizeof *train;
-    puts_(b, "SUM(CASE WHEN LOWER(TRIM(");
+    puts_(b, "LOWER(TRIM(");
     as_text(b, d, split);
     puts_(b, ")) IN (");
     for (size_t i = 0; i < n; i++) {
@@ -174,7 +174,15 @@ static void side_sum(sbuf *b, kn_sql_dialect d, const char *split, bool test)
         }
         literal(b, d, w[i]);
     }
-    puts_(b, ") THEN 1 ELSE 0 END)");
+    puts_(b, ")");
+}
+
+/* 1 when the split column says side, else 0, summed. */
+static void side_sum(sbuf *b, kn_sql_dialect d, const char *split, bool test)
+{
+    puts_(b, "SUM(CASE WHEN ");
+    side_test(b, d, split, test);
+    puts_(b, " THEN 1 ELSE 0 END)");
 }
 
 /* The CSV path's "missing": NULL, or one of the rulebook's markers,
@@ -528,20 +536,27 @@ static char *esc(kn_arena *a, const char *s)
  * key is on both sides.  skip_missing leaves out rows whose (single) key
  * is missing. */
 static char *overlap_sql(plan_ctx *c, const kn_rulebook *rb, const char *split, const char *const *cols, size_t n,
-                         bool skip_missing)
+                         bool skip_missing, const char *key)
 {
     sbuf b = {c->a, NULL, 0, 0};
     puts_(&b, "SELECT SUM(n_train) AS train_rows, SUM(n_test) AS test_rows,\n"
               "       SUM(CASE WHEN n_train > 0 AND n_test > 0 THEN 1 ELSE 0 END) AS shared_keys,\n"
               "       SUM(CASE WHEN n_train > 0 AND n_test > 0 THEN n_train ELSE 0 END) AS train_rows_shared,\n"
               "       SUM(CASE WHEN n_train > 0 AND n_test > 0 THEN n_test ELSE 0 END) AS test_rows_shared");
-    if (skip_missing) {
+    if (skip_missing || key) {
         puts_(&b, ",\n       MIN(CASE WHEN n_train > 0 AND n_test > 0 THEN k END) AS first_key");
     }
     puts_(&b, "\nFROM (SELECT ");
     if (skip_missing) {
         ident(&b, c->d, cols[0]);
         puts_(&b, " AS k, ");
+    } else if (key) {
+        /* the least key of the group's test rows */
+        puts_(&b, "MIN(CASE WHEN ");
+        side_test(&b, c->d, split, true);
+        puts_(&b, " THEN ");
+        ident(&b, c->d, key);
+        puts_(&b, " END) AS k,\n             ");
     }
     side_sum(&b, c->d, split, false);
     puts_(&b, " AS n_train,\n             ");
@@ -615,10 +630,11 @@ void kn_sql_session(kn_arena *a, kn_sql_dialect d, kn_sql_plan *out)
 }
 
 char *kn_sql_overlap_query(kn_arena *a, kn_sql_dialect d, const kn_rulebook *rb, const char *table,
-                           const char *query_sql, const char *split, const char *const *cols, size_t n, bool entity)
+                           const char *query_sql, const char *split, const char *const *cols, size_t n, bool entity,
+                           const char *key)
 {
     plan_ctx c = {a, d, table, query_sql, NULL};
-    return overlap_sql(&c, rb, split, cols, n, entity);
+    return overlap_sql(&c, rb, split, cols, n, entity, entity ? NULL : key);
 }
 
 char *kn_sql_qi_query(kn_arena *a, kn_sql_dialect d, const char *table, const char *query_sql,
@@ -800,13 +816,14 @@ void kn_sql_make(kn_arena *a, const kn_schema *s, const kn_rulebook *rb, const c
             add(&c, KN_SQLQ_OVERLAP, "rows-shared-across-split", split,
                 kn_printf(a, "identical feature rows (%zu feature%s) on both sides of the split '%s'", nf,
                           nf == 1 ? "" : "s", esc(a, split->name)),
-                kn_sql_overlap_query(a, d, rb, table, query_sql, split->name, feats, nf, false));
+                kn_sql_overlap_query(a, d, rb, table, query_sql, split->name, feats, nf, false,
+                                     key ? key->name : NULL));
         }
         if (entity) {
             add(&c, KN_SQLQ_OVERLAP, "entity-in-both-splits", entity,
                 kn_printf(a, "entities '%s' with rows on both sides of the split '%s'", esc(a, entity->name),
                           esc(a, split->name)),
-                kn_sql_overlap_query(a, d, rb, table, query_sql, split->name, &entity->name, 1, true));
+                kn_sql_overlap_query(a, d, rb, table, query_sql, split->name, &entity->name, 1, true, NULL));
         }
     }
 

@@ -133,9 +133,11 @@ char *kn_sql_key_of_value(kn_arena *a, kn_sql_dialect d, const char *table, cons
 /* One row (train_rows, test_rows, shared_keys, train_rows_shared,
  * test_rows_shared[, first_key]): rows grouped by cols[0..n) on the two
  * sides of the split; with entity, cols[0] is the entity, rows where it is
- * missing are left out and the least shared entity comes back too. */
+ * missing are left out and the least shared entity comes back too;
+ * otherwise, with key, the least key of a test row in a shared group. */
 char *kn_sql_overlap_query(kn_arena *a, kn_sql_dialect d, const kn_rulebook *rb, const char *table,
-                           const char *query_sql, const char *split, const char *const *cols, size_t n, bool entity);
+                           const char *query_sql, const char *split, const char *const *cols, size_t n, bool entity,
+                           const char *key);
 
 /* Rows (group_size, n_groups): how many groups of each size cols[0..n)
  * form. */

@@ -164,7 +164,15 @@ for c, s, res in results:
     elif s.startswith("SELECT COUNT(*) AS n_rows"):
         check("rows", res, [(len(rows),)])
     elif "[rows-shared-across-split]" in tag:
-        check("rows-shared-across-split", tuple(res[0]), overlap(lambda r: (r[3], r[4])))
+        # and the least entity of a test row in a group with both sides
+        groups = collections.defaultdict(lambda: [set(), []])
+        for r in rows:
+            g = groups[(r[3], r[4])]
+            g[0].add(side(r[2]))
+            if side(r[2]) == 2 and r[1] is not None:
+                g[1].append(r[1])
+        first = min((min(g[1]) for g in groups.values() if {1, 2} <= g[0] and g[1]), default=None)
+        check("rows-shared-across-split", tuple(res[0]), overlap(lambda r: (r[3], r[4])) + (first,))
     elif "[entity-in-both-splits]" in tag:
         shared = collections.defaultdict(set)
         for r in rows:
