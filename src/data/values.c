@@ -160,13 +160,14 @@ kn_value_status kn_value_boolean(const char *s, size_t len, bool *out)
         return KN_VALUE_MISSING;
     }
     trim(&s, &len);
+    /* t and f are how PostgreSQL writes booleans (COPY ... TO, psql). */
     if (equals_nocase(s, len, "true") || equals_nocase(s, len, "yes") ||
-        equals_nocase(s, len, "1")) {
+        equals_nocase(s, len, "1") || equals_nocase(s, len, "t")) {
         *out = true;
         return KN_VALUE_OK;
     }
     if (equals_nocase(s, len, "false") || equals_nocase(s, len, "no") ||
-        equals_nocase(s, len, "0")) {
+        equals_nocase(s, len, "0") || equals_nocase(s, len, "f")) {
         *out = false;
         return KN_VALUE_OK;
     }

@@ -61,7 +61,7 @@ static inline bool kn_missing_test(const kn_missing *m, const char *s, size_t le
  * the C library's LC_NUMERIC must be "C", which knowable never changes). */
 kn_value_status kn_value_number(const char *s, size_t len, double *out);
 
-/* true/false, yes/no, 1/0, without regard to ASCII case. */
+/* true/false, yes/no, 1/0, t/f (PostgreSQL), without regard to ASCII case. */
 kn_value_status kn_value_boolean(const char *s, size_t len, bool *out);
 
 /* Flags describing what kn_value_timestamp found. */

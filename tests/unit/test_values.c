@@ -108,8 +108,8 @@ static void test_booleans(void **state)
 {
     (void)state;
     bool b = false;
-    const char *yes[] = {"true", "TRUE", "True", "yes", "YES", "1", " yes "};
-    const char *no[] = {"false", "False", "no", "NO", "0"};
+    const char *yes[] = {"true", "TRUE", "True", "yes", "YES", "1", " yes ", "t", "T"}; /* t, f: PostgreSQL */
+    const char *no[] = {"false", "False", "no", "NO", "0", "f", "F"};
     for (size_t i = 0; i < sizeof yes / sizeof *yes; i++) {
         b = false;
         assert_int_equal(kn_value_boolean(yes[i], strlen(yes[i]), &b), KN_VALUE_OK);
