@@ -50,10 +50,13 @@ typedef struct kn_server {
     FILE *out, *err;
     kn_doc *docs;
     bool initialized, shut_down;
-    kn_doc *loading;  /* the schema whose main file the loader reads next */
-    kn_doc *checking; /* the schema being analysed */
-    char **published; /* URIs given diagnostics last time (malloc) */
-    size_t n_published;
+    kn_doc *loading;      /* the schema whose main file the loader reads next */
+    kn_doc *checking;     /* the schema being analysed */
+    struct kn_sent *sent; /* each URI given diagnostics last time, with the
+                             list sent (malloc) */
+    size_t n_sent;
+    const char *trigger; /* the URI whose open, change or save is being
+                            answered: published even when unchanged */
 } kn_server;
 
 /* --- doc.c --------------------------------------------------------------- */

@@ -405,8 +405,28 @@ static out_list *list_for(out_list ***lists, size_t *n, const char *uri)
     return l;
 }
 
+/* A URI's last list of diagnostics, as sent. */
+typedef struct kn_sent {
+    char *uri;
+    char *buf;
+    size_t len;
+} kn_sent;
+
+static const kn_sent *sent_for(const kn_server *s, const char *uri)
+{
+    for (size_t i = 0; i < s->n_sent; i++) {
+        if (strcmp(s->sent[i].uri, uri) == 0) {
+            return &s->sent[i];
+        }
+    }
+    return NULL;
+}
+
 /* Publishes the findings of every open schema, grouped by the file they
- * point into; a URI that had findings and has none now gets an empty list. */
+ * point into; a URI that had findings and has none now gets an empty list.
+ * A list the client has already, byte for byte, is not sent again (a
+ * change to one schema leaves the others' findings as they were), except
+ * for the document whose change is being answered. */
 static void publish(kn_server *s)
 {
     out_list **lists = NULL;
@@ -450,43 +470,63 @@ static void publish(kn_server *s)
         }
     }
     /* Clear what was published before and is not covered now. */
-    for (size_t i = 0; i < s->n_published; i++) {
-        list_for(&lists, &n_lists, s->published[i]);
-        free(s->published[i]);
+    for (size_t i = 0; i < s->n_sent; i++) {
+        list_for(&lists, &n_lists, s->sent[i].uri);
     }
-    free(s->published);
-    s->published = kn_lsp_xmalloc((n_lists + 1) * sizeof *s->published);
-    s->n_published = 0;
+    kn_sent *sent = kn_lsp_xmalloc((n_lists + 1) * sizeof *sent);
+    size_t n_sent = 0;
     for (size_t i = 0; i < n_lists; i++) {
         out_list *l = lists[i];
+        if (fclose(l->f) != 0 || !l->buf) {
+            fputs("knowable lsp: out of memory while writing diagnostics\n", s->err);
+            free(l->uri);
+            free(l->buf);
+            free(l);
+            continue;
+        }
+        const kn_sent *before = sent_for(s, l->uri);
+        bool same = l->n && before && before->len == l->len && memcmp(before->buf, l->buf, l->len) == 0;
+        if (same && !(s->trigger && strcmp(s->trigger, l->uri) == 0)) {
+            sent[n_sent++] = (kn_sent){l->uri, l->buf, l->len};
+            free(l);
+            continue;
+        }
         /* The envelope around the list, which is written as it is. */
         char *head = NULL;
         size_t len = 0;
         FILE *m = open_memstream(&head, &len);
-        bool ok = fclose(l->f) == 0 && l->buf && m;
+        bool ok = m != NULL;
         if (ok) {
             fputs("{\"jsonrpc\":\"2.0\",\"method\":\"textDocument/publishDiagnostics\",\"params\":{\"uri\":",
                   m);
             put_str(m, l->uri);
             fputs(",\"diagnostics\":[", m);
         }
-        if (m && fclose(m) == 0 && ok && head) {
+        bool written = m && fclose(m) == 0 && ok && head;
+        if (written) {
             const char *parts[] = {head, l->buf, "]}}"};
             const size_t lens[] = {len, l->len, 3};
             kn_rpc_write_parts(s->out, parts, lens, 3);
         } else {
             fputs("knowable lsp: out of memory while writing diagnostics\n", s->err);
         }
-        if (l->n) {
-            s->published[s->n_published++] = l->uri;
+        if (l->n && written) {
+            sent[n_sent++] = (kn_sent){l->uri, l->buf, l->len};
         } else {
             free(l->uri);
+            free(l->buf);
         }
         free(head);
-        free(l->buf);
         free(l);
     }
     free(lists);
+    for (size_t i = 0; i < s->n_sent; i++) {
+        free(s->sent[i].uri);
+        free(s->sent[i].buf);
+    }
+    free(s->sent);
+    s->sent = sent;
+    s->n_sent = n_sent;
 }
 
 static void analyse_all(kn_server *s)
@@ -685,12 +725,13 @@ static int handle(kn_server *s, json_t *msg)
         const char *uri = json_string_value(json_object_get(td, "uri"));
         json_t *text = json_object_get(td, "text");
         if (uri && json_is_string(text)) {
-            kn_doc_open(s, uri, json_string_value(text), json_string_length(text));
+            s->trigger = kn_doc_open(s, uri, json_string_value(text), json_string_length(text))->uri;
             analyse_all(s);
         }
     } else if (strcmp(method, "textDocument/didChange") == 0) {
         kn_doc *d = doc_of(s, params);
         if (d && apply_changes(d, json_object_get(params, "contentChanges"))) {
+            s->trigger = d->uri;
             analyse_changed(s, d);
         }
     } else if (strcmp(method, "textDocument/didSave") == 0) {
@@ -699,6 +740,7 @@ static int handle(kn_server *s, json_t *msg)
         if (d && json_is_string(text)) {
             kn_doc_set_text(d, json_string_value(text), json_string_length(text));
         }
+        s->trigger = d ? d->uri : NULL;
         analyse_all(s);
     } else if (strcmp(method, "textDocument/didClose") == 0) {
         kn_doc *d = doc_of(s, params);
@@ -707,6 +749,7 @@ static int handle(kn_server *s, json_t *msg)
             analyse_all(s);
         }
     }
+    s->trigger = NULL;
     return -1;
 }
 
@@ -756,9 +799,10 @@ kn_status kn_lsp(const kn_options *o, FILE *in, FILE *out, FILE *err)
     while (s.docs) {
         kn_doc_close(&s, s.docs);
     }
-    for (size_t i = 0; i < s.n_published; i++) {
-        free(s.published[i]);
+    for (size_t i = 0; i < s.n_sent; i++) {
+        free(s.sent[i].uri);
+        free(s.sent[i].buf);
     }
-    free(s.published);
+    free(s.sent);
     return (kn_status)status;
 }
