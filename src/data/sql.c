@@ -293,6 +293,18 @@ char *kn_sql_seed_query(kn_arena *a, kn_sql_dialect d, uint64_t seed)
     return kn_printf(a, "SELECT setseed(%.6f)", (double)(seed % 1000000u) / 1000000.0);
 }
 
+/* "COL AS v" and, with a target, ", TARGET AS t". */
+static void value_and_target(sbuf *b, kn_sql_dialect d, const char *col, const char *target)
+{
+    ident(b, d, col);
+    puts_(b, " AS v");
+    if (target) {
+        puts_(b, ", ");
+        ident(b, d, target);
+        puts_(b, " AS t");
+    }
+}
+
 char *kn_sql_groups_query(kn_arena *a, kn_sql_dialect d, const char *table, const char *query_sql, const char *col,
                           const char *target, unsigned long long max_rows, double sample, uint64_t seed)
 {
@@ -301,21 +313,9 @@ char *kn_sql_groups_query(kn_arena *a, kn_sql_dialect d, const char *table, cons
         char p[40];
         snprintf(p, sizeof p, "%.17g", sample);
         puts_(&b, "SELECT ");
-        ident(&b, d, "v");
-        puts_(&b, " AS v");
-        if (target) {
-            puts_(&b, ", ");
-            ident(&b, d, "t");
-            puts_(&b, " AS t");
-        }
+        value_and_target(&b, d, "v", target ? "t" : NULL);
         puts_(&b, ", COUNT(*) AS n\nFROM (SELECT ");
-        ident(&b, d, col);
-        puts_(&b, " AS v");
-        if (target) {
-            puts_(&b, ", ");
-            ident(&b, d, target);
-            puts_(&b, " AS t");
-        }
+        value_and_target(&b, d, col, target);
         puts_(&b, "\n     ");
         from(&b, d, table, query_sql);
         puts_(&b, "\n      WHERE ");
@@ -332,13 +332,7 @@ char *kn_sql_groups_query(kn_arena *a, kn_sql_dialect d, const char *table, cons
         }
     } else {
         puts_(&b, "SELECT ");
-        ident(&b, d, col);
-        puts_(&b, " AS v");
-        if (target) {
-            puts_(&b, ", ");
-            ident(&b, d, target);
-            puts_(&b, " AS t");
-        }
+        value_and_target(&b, d, col, target);
         puts_(&b, ", COUNT(*) AS n");
         from(&b, d, table, query_sql);
         puts_(&b, " GROUP BY ");
