@@ -11,9 +11,6 @@
 #include <string.h>
 #include <sys/stat.h>
 
-#define PCRE2_CODE_UNIT_WIDTH 8
-#include <pcre2.h>
-
 #include "../util/names.h"
 #include "../util/regex.h"
 #include "../util/text.h"
@@ -83,11 +80,6 @@ void kn_dx_note_sample(kn_dx *x, kn_diag *d)
 static void close_file(void *p)
 {
     fclose(p);
-}
-
-static void free_mctx(void *p)
-{
-    pcre2_match_context_free(p);
 }
 
 /* The `columns:` key of the schema's main file. */
@@ -266,18 +258,7 @@ void kn_check_data(kn_ctx *c, const kn_schema *s, const char *csv_path, long lon
         return;
     }
 
-    kn_defer *md = kn_arena_defer(x.a, free_mctx, NULL);
-    pcre2_match_context *mctx = pcre2_match_context_create(NULL);
-    if (!mctx) {
-        kn_arena_oom(x.a);
-    }
-    md->ptr = mctx;
-    kn_regex_limits lim;
-    kn_regex_limits_default(&lim);
-    pcre2_set_match_limit(mctx, lim.match);
-    pcre2_set_depth_limit(mctx, lim.depth);
-    pcre2_set_heap_limit(mctx, lim.heap_kib);
-    x.t.match_context = mctx;
+    x.t.match_context = kn_regex_limited_context(x.a);
 
     kn_csv_reader *rd = kn_csv_open_file(x.a, f, NULL);
     kn_csv_row row;

@@ -30,9 +30,6 @@
 #include <stdlib.h>
 #include <string.h>
 
-#define PCRE2_CODE_UNIT_WIDTH 8
-#include <pcre2.h>
-
 #include "../data/odbc.h"
 #include "../data/sql.h"
 #include "../util/regex.h"
@@ -54,11 +51,6 @@ typedef struct db_run {
     bool raw_positive[2];
     FILE *err;
 } db_run;
-
-static void free_mctx(void *p)
-{
-    pcre2_match_context_free(p);
-}
 
 /* The count in a result's text ("123", "123.000" from a DECIMAL sum). */
 static bool parse_count(const char *s, size_t len, uint64_t *out)
@@ -905,18 +897,7 @@ void kn_check_database(kn_ctx *c, const kn_schema *s, const char *data, const ch
     x->t.strict_moment = c->rulebook->strict_moment;
     kn_missing_init(&x->t.missing, c->rulebook->missing_values, c->rulebook->n_missing_values);
 
-    kn_defer *md = kn_arena_defer(x->a, free_mctx, NULL);
-    pcre2_match_context *mctx = pcre2_match_context_create(NULL);
-    if (!mctx) {
-        kn_arena_oom(x->a);
-    }
-    md->ptr = mctx;
-    kn_regex_limits lim;
-    kn_regex_limits_default(&lim);
-    pcre2_set_match_limit(mctx, lim.match);
-    pcre2_set_depth_limit(mctx, lim.depth);
-    pcre2_set_heap_limit(mctx, lim.heap_kib);
-    x->t.match_context = mctx;
+    x->t.match_context = kn_regex_limited_context(x->a);
 
     if (!run_checks(&r, data)) {
         failed(&r);

@@ -58,6 +58,27 @@ static void free_code(void *p)
     pcre2_code_free(p);
 }
 
+static void free_match_context(void *p)
+{
+    pcre2_match_context_free(p);
+}
+
+void *kn_regex_limited_context(kn_arena *a)
+{
+    kn_defer *d = kn_arena_defer(a, free_match_context, NULL);
+    pcre2_match_context *mctx = pcre2_match_context_create(NULL);
+    if (!mctx) {
+        kn_arena_oom(a);
+    }
+    d->ptr = mctx;
+    kn_regex_limits lim;
+    kn_regex_limits_default(&lim);
+    pcre2_set_match_limit(mctx, lim.match);
+    pcre2_set_depth_limit(mctx, lim.depth);
+    pcre2_set_heap_limit(mctx, lim.heap_kib);
+    return mctx;
+}
+
 static void free_md(void *p)
 {
     pcre2_match_data_free(p);

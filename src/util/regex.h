@@ -35,6 +35,10 @@ typedef struct kn_regex_limits {
  * a few kilobytes that needs more than that is refused within milliseconds. */
 void kn_regex_limits_default(kn_regex_limits *l);
 
+/* A PCRE2 match context (pcre2_match_context *) with the default limits,
+ * freed with the arena, for code that matches compiled patterns itself. */
+void *kn_regex_limited_context(kn_arena *a);
+
 /* Why a pattern failed to compile: PCRE2's message and the byte offset in
  * the pattern where it stopped. */
 typedef struct kn_regex_error {
