@@ -562,6 +562,11 @@ static kn_status run_json_schema(args *ar, FILE *out)
  * three letters), for "did you mean". */
 static const char *near_command(const char *word)
 {
+    if (word[0] == '-') {
+        /* Before a command only --version and --help are options. */
+        const char *near = near_option(word);
+        return near && (strcmp(near, "--version") == 0 || strcmp(near, "--help") == 0) ? near : NULL;
+    }
     static const char *const cmds[] = {"check",       "explain", "rules", "sources", "timeline", "init",
                                        "json-schema", "lsp",     "help",  "sql"};
     for (size_t i = 0; i < sizeof cmds / sizeof *cmds; i++) {

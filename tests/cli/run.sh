@@ -240,6 +240,12 @@ case_options() {
     run help-typo help chek
     expect_rc 2
     expect help-typo.err "did you mean 'check'?"
+    run version-typo --versoin
+    expect_rc 2
+    expect version-typo.err "did you mean '--version'?"
+    run verbose --verbose
+    expect_rc 2
+    expect_not verbose.err "did you mean"
     run typo-eq check --rulebok=x.yaml -- s.knowable.yaml
     expect_rc 2
     expect typo-eq.err "did you mean '--rulebook'?"
