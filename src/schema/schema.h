@@ -174,8 +174,8 @@ struct kn_column {
     size_t index;
 
     kn_role role;
-    kn_node *role_node;
     kn_value_type type;
+    kn_node *role_node;
     kn_node *type_node;
 
     kn_ref known;   /* -> kn_event */
@@ -188,11 +188,11 @@ struct kn_column {
 
     struct {
         bool present;
+        bool has_offset;   /* as_of: {event, offset} */
         kn_node *node;
         kn_ref *keys; /* -> kn_column */
         size_t n_keys;
         kn_ref as_of;  /* -> kn_event */
-        bool has_offset;   /* as_of: {event, offset} */
         kn_interval offset;
         kn_node *offset_node;
         kn_ref source; /* -> kn_source; absent: the column's source */
@@ -218,14 +218,13 @@ struct kn_column {
 
     struct {
         bool present;
-        kn_node *node;
         kn_anon_method method;
-        kn_node *method_node;
         int salted; /* -1 unset */
+        kn_node *node;
+        kn_node *method_node;
         kn_node *salted_node;
     } anonymized;
 
-    int quasi_identifier; /* -1 unset, 0, 1 */
     kn_node *qi_node;
 
     const char *description;
@@ -234,6 +233,7 @@ struct kn_column {
     kn_waiver *waivers;
     size_t n_waivers;
 
+    int quasi_identifier; /* -1 unset, 0, 1 (beside the flags: no padding) */
     /* Set aside with its own error (SPEC §4, independence of findings): a
      * value of its own is malformed, a reference names nothing, or it lies
      * on a derivation cycle.  Analyses skip it; what is derived from it is
