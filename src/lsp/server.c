@@ -247,13 +247,7 @@ static void analyse(kn_server *s, kn_doc *d)
     if (setjmp(oom)) {
         s->loading = NULL;
         s->checking = NULL;
-        kn_arena_free(a);
-        d->arena = NULL;
-        d->run = NULL;
-        d->unit = NULL;
-        d->view = NULL;
-        d->n_view = 0;
-        d->deps = NULL;
+        kn_lsp_drop_analysis(d); /* d->arena is a: set before anything can fail */
         fputs("knowable lsp: out of memory while checking a schema\n", s->err);
         return;
     }
