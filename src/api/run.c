@@ -12,6 +12,7 @@
 #include "../checks/checks.h"
 #include "../report/render.h"
 #include "../util/names.h"
+#include "../util/path.h"
 #include "../util/text.h"
 #include "../yaml/cache.h"
 
@@ -44,10 +45,9 @@ void kn_run_init(kn_run *r, kn_arena *a, const char *command, const kn_options *
     r->units = kn_vec_new(a, sizeof(kn_unit *));
     r->outputs = kn_vec_new(a, sizeof(kn_defer *));
     if (o->root) {
-        char *real = realpath(o->root, NULL);
+        char *real = kn_path_real(a, o->root);
         if (real) {
-            kn_sink_set_root(r->sink, kn_strdup(a, real));
-            free(real);
+            kn_sink_set_root(r->sink, real);
         }
     }
 }
@@ -122,12 +122,8 @@ kn_rulebook *kn_run_rulebook(kn_run *r, const char *schema)
         return r->builtin;
     }
     /* Each discovered file is read once, whatever path reaches it. */
-    char *real = realpath(found, NULL);
-    const char *key = found;
-    if (real) {
-        key = kn_strdup(r->arena, real);
-        free(real);
-    }
+    const char *real = kn_path_real(r->arena, found);
+    const char *key = real ? real : found;
     kn_rulebook **cached = kn_names_get(r->discovered, key);
     if (cached) {
         return *cached;

@@ -13,6 +13,7 @@
 #include <string.h>
 
 #include "../util/arena.h"
+#include "../util/path.h"
 #include "../util/text.h"
 #include "rpc.h"
 #include "xalloc.h"
@@ -218,9 +219,8 @@ static kn_rulebook *rulebook_for(kn_server *s, kn_doc *d, kn_arena *ra)
     if (!s->opt->n_rulebooks) {
         found = kn_rulebook_discover(ra, d->path, s->opt->root);
         if (found) {
-            char *real = realpath(found, NULL);
-            key = real ? kn_strdup(ra, real) : found;
-            free(real);
+            const char *real = kn_path_real(ra, found);
+            key = real ? real : found;
         }
     }
     if (d->rulebook && strcmp(d->rb_key, key) == 0 && unchanged(d)) {

@@ -501,10 +501,8 @@ static const char *print_path(kn_sink *s, const char *file)
         return known;
     }
     const char *out = kn_path_tidy(s->arena, file);
-    char *real = *file ? realpath(file, NULL) : NULL;
-    if (real) {
-        const char *r = kn_strdup(s->arena, real);
-        free(real);
+    const char *r = *file ? kn_path_real(s->arena, file) : NULL;
+    if (r) {
         const char *root = s->root;
         if (!root) {
             /* the repository; without one the path stays as given, tidied */

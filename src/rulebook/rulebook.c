@@ -414,14 +414,7 @@ static size_t pushed(const kn_sink *sink)
 
 static char *real_path(rb_ld *l, const char *path)
 {
-    char r[PATH_MAX];
-    if (!realpath(path, r)) {
-        if (errno == ENOMEM) {
-            kn_arena_oom(l->a);
-        }
-        return NULL;
-    }
-    return kn_strdup(l->a, r);
+    return kn_path_real(l->a, path);
 }
 
 static bool inside_root(const rb_ld *l, const char *real)
@@ -675,11 +668,7 @@ char *kn_rulebook_discover(kn_arena *a, const char *schema_path, const char *roo
         root = kn_path_default_root(a, schema_path); /* the repository, else the schema's folder */
     }
     if (root) {
-        char *r = realpath(root, NULL);
-        if (r) {
-            root_real = kn_strdup(a, r);
-            free(r);
-        }
+        root_real = kn_path_real(a, root);
     }
     if (root_real) {
         size_t n = strlen(root_real);
@@ -696,10 +685,8 @@ char *kn_rulebook_discover(kn_arena *a, const char *schema_path, const char *roo
             char *path = strcmp(shown, ".") == 0 ? kn_strdup(a, ".knowable-rules.yaml")
                                                  : kn_printf(a, "%s/.knowable-rules.yaml", shown);
             char *tidy = kn_path_tidy(a, path);
-            char *r1 = realpath(tidy, NULL), *r2 = realpath(cand, NULL);
+            const char *r1 = kn_path_real(a, tidy), *r2 = kn_path_real(a, cand);
             bool same = r1 && r2 && strcmp(r1, r2) == 0;
-            free(r1);
-            free(r2);
             return same ? tidy : path;
         }
         if (kn_path_is_project(a, dir) || !root_real || strcmp(dir, root_real) == 0) {

@@ -1052,16 +1052,7 @@ static char *join_path(ld *l, const char *dir, const char *rel)
 
 static char *real_path(ld *l, const char *path)
 {
-    /* A buffer of our own: a heap result would leak if the copy below
-     * ran out of memory and jumped. */
-    char r[PATH_MAX];
-    if (!realpath(path, r)) {
-        if (errno == ENOMEM) {
-            kn_arena_oom(l->a);
-        }
-        return NULL;
-    }
-    return kn_strdup(l->a, r);
+    return kn_path_real(l->a, path);
 }
 
 static bool inside_root(ld *l, const char *real)

@@ -17,7 +17,7 @@ bool kn_path_is_project(kn_arena *a, const char *dir)
     return stat(git, &st) == 0 && (S_ISDIR(st.st_mode) || S_ISREG(st.st_mode));
 }
 
-static char *real_or_null(kn_arena *a, const char *path)
+char *kn_path_real(kn_arena *a, const char *path)
 {
     /* A buffer of our own: a heap result would leak if a later arena
      * allocation ran out of memory and jumped. */
@@ -42,16 +42,16 @@ static void cut_last(char *p)
 
 char *kn_path_real_dir(kn_arena *a, const char *path)
 {
-    char *real = real_or_null(a, path);
+    char *real = kn_path_real(a, path);
     if (real) {
         cut_last(real);
         return real;
     }
     const char *slash = strrchr(path, '/');
     if (!slash) {
-        return real_or_null(a, ".");
+        return kn_path_real(a, ".");
     }
-    return real_or_null(a, slash == path ? "/" : kn_strndup(a, path, (size_t)(slash - path)));
+    return kn_path_real(a, slash == path ? "/" : kn_strndup(a, path, (size_t)(slash - path)));
 }
 
 char *kn_path_default_root(kn_arena *a, const char *schema_path)

@@ -8,6 +8,11 @@
 
 #include "arena.h"
 
+/* The resolved path (realpath) in arena memory, NULL when it does not
+ * resolve.  Never heap memory: an arena allocation that runs out of memory
+ * jumps, and a heap result held across it would leak. */
+char *kn_path_real(kn_arena *a, const char *path);
+
 /* The real folder of the project a schema lies in: the nearest folder
  * upwards from the schema's own folder that holds .git (a folder or a
  * file, as in a worktree), else the schema's own folder.  NULL when the
