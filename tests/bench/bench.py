@@ -6,8 +6,10 @@ processes, side by side in one run.
 For each size, a schema of that many columns (300 events, 100 sources, a
 consistent timeline, a tenth of the columns known after the moment) is
 checked with the whole text report written to a file, and the same file is
-read by the bare libyaml parse (the floor) and by tree_only (knowable's tree
-alone, when built).  The commands take turns,
+read by the bare libyaml parse (the floor), by tree_only (knowable's tree
+alone) and by document_load (libyaml's own tree, yaml_parser_load: a peer,
+what a checker built on libyaml's document API would pay before checking
+anything), the last two when built.  The commands take turns,
 RUNS times each (BENCH_RUNS, default 11), after a warm-up of each, so a
 burst of load on the machine hits them all.  Reported: the median wall time
 (time.perf_counter), the median CPU time (user + system of the child,
@@ -73,7 +75,8 @@ def instructions(cmd, outdir):
 
 def main():
     knowable, bare, outdir, gen, timeline_bench = sys.argv[1:6]
-    tree = sys.argv[6] if len(sys.argv) > 6 and os.access(sys.argv[6], os.X_OK) else None
+    extra = lambda i: sys.argv[i] if len(sys.argv) > i and os.access(sys.argv[i], os.X_OK) else None
+    tree, document = extra(6), extra(7)
     sizes = [int(s) for s in os.environ.get("BENCH_SIZES", "1000 10000 100000").split()]
     runs = int(os.environ.get("BENCH_RUNS", "11"))
     rows = []
@@ -83,27 +86,32 @@ def main():
         subprocess.run(["/usr/bin/python3", gen, str(n), "300", "100", path, "10"], check=True)
         check_cmd = [knowable, "check", "--color", "never", "--fail-on", "never", "-o", report, "--", path]
         bare_cmd = [bare, path]
-        cmds = [check_cmd, bare_cmd] + ([[tree, path]] if tree else [])
-        times = side_by_side(cmds, runs if n <= 10000 else max(3, runs // 2))
+        peers = [p for p in (tree, document) if p]
+        times = side_by_side([check_cmd, bare_cmd] + [[p, path] for p in peers],
+                             runs if n <= 10000 else max(3, runs // 2))
         (kw, kc), (bw, bc) = times[0], times[1]
         tc = times[2][1] if tree else None
+        dc = times[-1][1] if document else None
         km, bm = peak_rss_kib(check_cmd), peak_rss_kib(bare_cmd)
         ki = instructions(check_cmd, outdir)
         bi = instructions(bare_cmd, outdir)
-        rows.append((n, os.path.getsize(path), os.path.getsize(report), kw, bw, kc, bc, km, bm, ki, bi, tc))
+        rows.append((n, os.path.getsize(path), os.path.getsize(report), kw, bw, kc, bc, km, bm, ki, bi, tc, dc))
         sys.stderr.write("%d columns done\n" % n)
     print("| columns | file | report | check wall | bare wall | ratio | check CPU | bare CPU | ratio |"
-          " tree CPU | ratio | check peak | bare peak | check instr. | bare instr. | ratio |")
-    print("|---:|---:|---:|---:|---:|---:|---:|---:|---:|---:|---:|---:|---:|---:|---:|---:|")
-    for n, size, rep, kw, bw, kc, bc, km, bm, ki, bi, tc in rows:
+          " tree CPU | ratio | document CPU | check / document | check peak | bare peak |"
+          " check instr. | bare instr. | ratio |")
+    print("|---:|---:|---:|---:|---:|---:|---:|---:|---:|---:|---:|---:|---:|---:|---:|---:|---:|---:|")
+    for n, size, rep, kw, bw, kc, bc, km, bm, ki, bi, tc, dc in rows:
         ir = ("%.0fM | %.0fM | %.2f" % (ki / 1e6, bi / 1e6, ki / bi)) if ki and bi else "- | - | -"
         mem = ("%.1f MiB | %.1f MiB" % (km / 1024, bm / 1024)) if km and bm else "- | -"
         tree_cols = ("%.1f ms | %.2f" % (tc * 1e3, tc / bc if bc else 0)) if tc is not None else "- | -"
+        tree_cols += (" | %.1f ms | %.2f" % (dc * 1e3, kc / dc if dc else 0)) if dc is not None else " | - | -"
         print("| %d | %.1f MB | %.1f MB | %.1f ms | %.1f ms | **%.2f** | %.1f ms | %.1f ms | **%.2f** | %s | %s | %s |"
               % (n, size / 1e6, rep / 1e6, kw * 1e3, bw * 1e3, kw / bw, kc * 1e3, bc * 1e3,
                  kc / bc if bc else 0, tree_cols, mem, ir))
     print("\nmedians of %d runs each (half at 100,000 columns), the commands in turn; wall and CPU of whole"
-          " processes; 'tree' is tests/bench/tree_only.c, knowable's YAML tree and nothing after it" % runs)
+          " processes; 'tree' is tests/bench/tree_only.c, knowable's YAML tree and nothing after it;"
+          " 'document' is tests/bench/document_load.c, libyaml's yaml_parser_load (a peer, not the floor)" % runs)
     if os.access(timeline_bench, os.X_OK):
         print("\ntimeline solver (%s):\n" % timeline_bench)
         p = subprocess.run([timeline_bench], stdout=subprocess.PIPE, text=True, check=False)
