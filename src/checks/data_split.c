@@ -50,9 +50,33 @@ static void shared(kn_dx *x)
                                       "test rows); the first such test row is here",
                                       o.shared_keys, ec->name, o.test_rows_shared, o.test_rows);
             kn_diag_key(x->sink, d, "entity both %s", ec->name);
-            kn_diag_note(x->sink, d, kn_column_pos(ec, s->prediction.entity.node),
-                         "the entity is named here; assign the split by entity (split.method: group) so that each "
-                         "entity's rows stay on one side");
+            if (s->split.method == KN_SPLIT_GROUP || s->split.method == KN_SPLIT_GROUP_TIME) {
+                /* The schema says the split keeps groups whole: the data says
+                 * it did not keep this entity whole, so the groups were
+                 * another column, or the split column was filled otherwise. */
+                const kn_column *gc = KN_REF_COLUMN(s->split.group_column);
+                if (gc == ec) {
+                    kn_diag_note(x->sink, d, kn_column_pos(ec, s->prediction.entity.node),
+                                 "the entity is named here; the split is declared to keep its groups whole, yet "
+                                 "the data puts the same entity on both sides: '%s' was not filled by these groups",
+                                 sc->name);
+                } else {
+                    kn_diag_note(x->sink, d, kn_column_pos(ec, s->prediction.entity.node),
+                                 "the entity is named here; the split is declared by group, yet the data puts the "
+                                 "same entity on both sides: group the split by this entity (split.group_column)");
+                }
+                if (gc && s->split.group_column.node) {
+                    kn_diag_note(x->sink, d, &s->split.group_column.node->pos, "the split's groups are '%s'",
+                                 gc->name);
+                } else if (s->split.method_node) {
+                    kn_diag_note(x->sink, d, &s->split.method_node->pos, "split.method is declared '%s' here",
+                                 kn_split_method_name(s->split.method));
+                }
+            } else {
+                kn_diag_note(x->sink, d, kn_column_pos(ec, s->prediction.entity.node),
+                             "the entity is named here; assign the split by entity (split.method: group) so that "
+                             "each entity's rows stay on one side");
+            }
             kn_dx_line_note(x, d, o.first_test_line);
             if (o.first_key) {
                 kn_diag_note(x->sink, d, NULL, "the first such entity: '%s' = '%.60s'", ec->name, o.first_key);
