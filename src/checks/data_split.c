@@ -34,8 +34,12 @@ static void shared(kn_dx *x)
                 kn_diag_note(x->sink, d, NULL, "the repeated test row with the least key: '%s' = '%.60s'", x->key_name,
                              o.first_key);
             }
+            bool grouped = s->split.method == KN_SPLIT_GROUP || s->split.method == KN_SPLIT_GROUP_TIME;
             kn_diag_note(x->sink, d, kn_column_pos(sc, s->split.column.node),
-                         "the split column '%s' is named here; drop duplicates before splitting, or split by group",
+                         grouped ? "the split column '%s' is named here; drop duplicates before splitting: the split "
+                                   "keeps groups whole, and identical rows in different groups still cross it"
+                                 : "the split column '%s' is named here; drop duplicates before splitting, or split "
+                                   "by group",
                          sc->name);
             kn_dx_line_note(x, d, o.first_test_line);
         }
