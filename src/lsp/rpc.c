@@ -11,18 +11,20 @@
 #define MAX_LINES 32
 
 /* One header line without its line end; -1 at the end of the stream, -2
- * when it is longer than MAX_LINE (the rest of it is read and dropped). */
+ * when it is longer than MAX_LINE: then buf keeps its last bytes (at least
+ * half of MAX_LINE), where a header may follow the remainder of a body. */
 static int read_line(FILE *in, char *buf, size_t *n)
 {
     size_t k = 0;
     bool too_long = false;
     int c;
     while ((c = getc(in)) != EOF && c != '\n') {
-        if (k < MAX_LINE) {
-            buf[k++] = (char)c;
-        } else {
+        if (k == MAX_LINE) {
+            memmove(buf, buf + MAX_LINE / 2, MAX_LINE / 2);
+            k = MAX_LINE / 2;
             too_long = true;
         }
+        buf[k++] = (char)c;
     }
     if (c == EOF && k == 0 && !too_long) {
         return -1;
@@ -35,8 +37,39 @@ static int read_line(FILE *in, char *buf, size_t *n)
     return too_long ? -2 : (c == EOF ? -1 : 0);
 }
 
-/* The value of a Content-Length line: digits with optional blanks around;
- * false when it is not a number or overflows. */
+/* Where a "Content-Length:" header starts inside line after other bytes,
+ * or 0.  A body whose announced length was wrong or unusable leaves its
+ * bytes in front of the next message's header, on the same line (a JSON
+ * body rarely ends in a line end): that header is where the stream picks
+ * up again.  Bytes that may spell a header name before it (X-Content-...)
+ * are not such a remainder. */
+static size_t embedded_length(const char *line, size_t n)
+{
+    for (size_t i = n; i-- > 1;) {
+        if (n - i < 15 || strncasecmp(line + i, "Content-Length", 14) != 0) {
+            continue;
+        }
+        size_t j = i + 14;
+        while (j < n && (line[j] == ' ' || line[j] == '\t')) {
+            j++;
+        }
+        if (j == n || line[j] != ':') {
+            continue;
+        }
+        for (size_t k = 0; k < i; k++) {
+            if (!strchr("!#$%&'*+-.^_`|~", line[k]) && !(line[k] >= '0' && line[k] <= '9') &&
+                !((line[k] | 0x20) >= 'a' && (line[k] | 0x20) <= 'z')) {
+                return i;
+            }
+        }
+        return 0;
+    }
+    return 0;
+}
+
+/* The value of a Content-Length line: digits with optional blanks around
+ * (a stray carriage return after them too); false when it is not a number
+ * or overflows. */
 static bool parse_length(const char *v, size_t *out)
 {
     while (*v == ' ' || *v == '\t') {
@@ -53,7 +86,7 @@ static bool parse_length(const char *v, size_t *out)
         }
         n = n * 10 + d;
     }
-    while (*v == ' ' || *v == '\t') {
+    while (*v == ' ' || *v == '\t' || *v == '\r') {
         v++;
     }
     *out = n;
@@ -69,6 +102,15 @@ kn_rpc_result kn_rpc_read(FILE *in, size_t max, char **body, size_t *len)
         int r = read_line(in, line, &n);
         if (r == -1) {
             return KN_RPC_EOF;
+        }
+        size_t at = embedded_length(line, n);
+        if (at) {
+            /* Start afresh at the header; what came before is dropped. */
+            memmove(line, line + at, n - at + 1);
+            n -= at;
+            have = bad = length_ok = false;
+            lines = 0;
+            r = 0;
         }
         if (r == -2 || ++lines > MAX_LINES) {
             bad = true;
@@ -92,10 +134,14 @@ kn_rpc_result kn_rpc_read(FILE *in, size_t max, char **body, size_t *len)
             continue;
         }
         if ((size_t)(colon - line) == 14 && strncasecmp(line, "Content-Length", 14) == 0) {
-            if (have || !parse_length(colon + 1, &length)) {
+            /* The same length twice is one length (as HTTP allows);
+             * two different ones leave the body's end unknown. */
+            size_t again;
+            if (!parse_length(colon + 1, &again) || (have && (!length_ok || again != length))) {
                 bad = true;
                 length_ok = false;
             } else {
+                length = again;
                 length_ok = true;
             }
             have = true;
