@@ -185,6 +185,13 @@ char *kn_file_uri(kn_server *s, const char *file)
     return uri;
 }
 
+/* Whether a line ends at text[i]: LSP's line ends are "\n", "\r\n" and
+ * "\r" (a carriage return followed by a line feed ends its line there). */
+static bool line_end(const char *text, size_t len, size_t i)
+{
+    return text[i] == '\n' || (text[i] == '\r' && (i + 1 == len || text[i + 1] != '\n'));
+}
+
 void kn_doc_set_text(kn_doc *d, const char *text, size_t len)
 {
     free(d->text);
@@ -193,13 +200,13 @@ void kn_doc_set_text(kn_doc *d, const char *text, size_t len)
     d->len = len;
     size_t n = 1;
     for (size_t i = 0; i < len; i++) {
-        n += text[i] == '\n';
+        n += line_end(text, len, i);
     }
     d->lines = kn_lsp_xmalloc(n * sizeof *d->lines);
     d->lines[0] = 0;
     d->n_lines = 1;
     for (size_t i = 0; i < len; i++) {
-        if (text[i] == '\n') {
+        if (line_end(text, len, i)) {
             d->lines[d->n_lines++] = i + 1;
         }
     }
@@ -286,7 +293,7 @@ size_t kn_doc_offset(const kn_doc *d, long line, long character)
     }
     size_t i = d->lines[line];
     long units = 0;
-    while (i < d->len && d->text[i] != '\n' && units < character) {
+    while (i < d->len && d->text[i] != '\n' && d->text[i] != '\r' && units < character) {
         unsigned char b = (unsigned char)d->text[i];
         units += b >= 0xF0 ? 2 : 1;
         i++;

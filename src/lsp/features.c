@@ -307,10 +307,9 @@ json_t *kn_lsp_completion(kn_server *s, kn_doc *d, long line, long character)
     kn_doc *m = kn_model_for(s, d);
     const kn_schema *sc = m ? m->unit->schema : NULL;
     size_t off = kn_doc_offset(d, line, character);
-    size_t ls = off;
-    while (ls > 0 && d->text[ls - 1] != '\n') {
-        ls--;
-    }
+    long cur_line, cur_char;
+    kn_doc_position(d, off, &cur_line, &cur_char);
+    size_t ls = d->lines[cur_line];
     const char *lp = d->text + ls, *cur = d->text + off;
     size_t ind = indent_of(lp, cur);
     bool list_item = memchr(lp, '-', ind) != NULL;
@@ -321,13 +320,14 @@ json_t *kn_lsp_completion(kn_server *s, kn_doc *d, long line, long character)
     {
         char *rev[MAX_PATH];
         size_t nr = 0, want = ind;
-        size_t i = ls;
+        size_t i = (size_t)cur_line;
         while (i > 0 && want > 0 && nr < MAX_PATH) {
-            size_t e = i - 1, b = e;
-            while (b > 0 && d->text[b - 1] != '\n') {
-                b--;
+            i--;
+            /* The line without its line end ("\n", "\r\n" or "\r"). */
+            size_t b = d->lines[i], e = d->lines[i + 1] - 1;
+            if (e > b && d->text[e] == '\n' && d->text[e - 1] == '\r') {
+                e--;
             }
-            i = b;
             const char *p = d->text + b, *end = d->text + e;
             size_t li = indent_of(p, end);
             if (p + li >= end || p[li] == '#' || li >= want) {

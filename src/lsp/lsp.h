@@ -81,7 +81,8 @@ kn_doc *kn_doc_by_real(kn_server *s, const char *real);
  * or an include), or NULL. */
 kn_doc *kn_doc_by_file(kn_server *s, const char *file);
 
-/* Byte offset of an LSP position (UTF-16 units) in d's text, clamped. */
+/* Byte offset of an LSP position (UTF-16 units) in d's text, clamped to
+ * the end of its line (before the line end) and of the text. */
 size_t kn_doc_offset(const kn_doc *d, long line, long character);
 /* The LSP position of a byte offset: line and UTF-16 character. */
 void kn_doc_position(const kn_doc *d, size_t offset, long *line, long *character);
