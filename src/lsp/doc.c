@@ -252,14 +252,8 @@ void kn_lsp_drop_rulebook(kn_doc *d)
     d->rb_stamps = NULL;
 }
 
-void kn_doc_close(kn_server *s, kn_doc *d)
+static void free_doc(kn_doc *d)
 {
-    for (kn_doc **p = &s->docs; *p; p = &(*p)->next) {
-        if (*p == d) {
-            *p = d->next;
-            break;
-        }
-    }
     kn_lsp_drop_analysis(d);
     kn_lsp_drop_rulebook(d);
     free(d->uri);
@@ -268,6 +262,78 @@ void kn_doc_close(kn_server *s, kn_doc *d)
     free(d->text);
     free(d->lines);
     free(d);
+}
+
+void kn_doc_close(kn_server *s, kn_doc *d)
+{
+    for (kn_doc **p = &s->docs; *p; p = &(*p)->next) {
+        if (*p == d) {
+            *p = d->next;
+            break;
+        }
+    }
+    free_doc(d);
+}
+
+bool kn_lsp_read_file(const char *path, char **text, size_t *len)
+{
+    *text = NULL;
+    *len = 0;
+    FILE *f = fopen(path, "rb");
+    if (!f) {
+        return false;
+    }
+    char *buf = NULL;
+    size_t n = 0;
+    FILE *m = open_memstream(&buf, &n);
+    char chunk[4096];
+    size_t got;
+    while (m && (got = fread(chunk, 1, sizeof chunk, f)) > 0) {
+        fwrite(chunk, 1, got, m);
+    }
+    bool ok = m && !ferror(f) && fclose(m) == 0 && buf;
+    fclose(f);
+    if (!ok) {
+        free(buf);
+        return false;
+    }
+    *text = buf;
+    *len = n;
+    return true;
+}
+
+const kn_doc *kn_doc_text(kn_server *s, const char *file)
+{
+    kn_doc *d = kn_doc_by_file(s, file);
+    if (d || !file) {
+        return d;
+    }
+    for (d = s->disk; d; d = d->next) {
+        if (strcmp(d->path, file) == 0) {
+            return d->text ? d : NULL;
+        }
+    }
+    d = kn_lsp_xmalloc(sizeof *d);
+    memset(d, 0, sizeof *d);
+    d->path = kn_lsp_xstrndup(file, strlen(file));
+    char *text;
+    size_t len;
+    if (kn_lsp_read_file(file, &text, &len)) {
+        kn_doc_set_text(d, text, len);
+        free(text);
+    }
+    d->next = s->disk;
+    s->disk = d;
+    return d->text ? d : NULL;
+}
+
+void kn_lsp_forget_files(kn_server *s)
+{
+    while (s->disk) {
+        kn_doc *d = s->disk;
+        s->disk = d->next;
+        free_doc(d);
+    }
 }
 
 /* UTF-16 units of the UTF-8 bytes [from, to) of text. */
@@ -363,7 +429,7 @@ static json_t *position(long line, long character)
 void kn_range_of(kn_server *s, const kn_pos *p, long r[4])
 {
     r[0] = r[1] = r[2] = r[3] = 0;
-    kn_doc *d = p->line ? kn_doc_by_file(s, p->file) : NULL;
+    const kn_doc *d = p->line ? kn_doc_text(s, p->file) : NULL;
     if (d && p->offset <= d->len) {
         size_t n = kn_token_len(d->text, d->len, p->offset);
         kn_doc_position(d, p->offset, &r[0], &r[1]);

@@ -450,10 +450,11 @@ static json_t *point_range(long line, long character)
                      (json_int_t)character);
 }
 
-/* The LSP position of a model position (its file's open buffer, if any). */
+/* The LSP position of a model position (in its file's open buffer, or in
+ * the file as on disk). */
 static void lsp_pos(kn_server *s, const kn_pos *p, size_t extra, long *line, long *character)
 {
-    kn_doc *d = kn_doc_by_file(s, p->file);
+    const kn_doc *d = kn_doc_text(s, p->file);
     if (d && p->offset + extra <= d->len) {
         kn_doc_position(d, p->offset + extra, line, character);
     } else {

@@ -57,6 +57,8 @@ typedef struct kn_server {
     size_t n_sent;
     const char *trigger; /* the URI whose open, change or save is being
                             answered: published even when unchanged */
+    kn_doc *disk; /* files the model points into that are not open, as read
+                     from disk while one message is answered */
 } kn_server;
 
 /* --- doc.c --------------------------------------------------------------- */
@@ -80,6 +82,15 @@ kn_doc *kn_doc_by_real(kn_server *s, const char *real);
 /* The document a display path of the model names (the schema's own path
  * or an include), or NULL. */
 kn_doc *kn_doc_by_file(kn_server *s, const char *file);
+
+/* The bytes of path (malloc, NUL-terminated, in *text and *len); false
+ * when it cannot be read. */
+bool kn_lsp_read_file(const char *path, char **text, size_t *len);
+/* The text a display path of the model names: its open document, else the
+ * file as on disk (kept until kn_lsp_forget_files); NULL when unreadable. */
+const kn_doc *kn_doc_text(kn_server *s, const char *file);
+/* Drops the files kn_doc_text read from disk. */
+void kn_lsp_forget_files(kn_server *s);
 
 /* Byte offset of an LSP position (UTF-16 units) in d's text, clamped to
  * the end of its line (before the line end) and of the text. */

@@ -124,29 +124,7 @@ typedef struct kn_rb_stamp {
 /* The bytes of path (malloc, in *out); false when it cannot be read. */
 static bool slurp(const char *path, kn_rb_stamp *out)
 {
-    out->text = NULL;
-    out->len = 0;
-    FILE *f = fopen(path, "rb");
-    if (!f) {
-        return false;
-    }
-    char *buf = NULL;
-    size_t len = 0;
-    FILE *m = open_memstream(&buf, &len);
-    char chunk[4096];
-    size_t got;
-    while (m && (got = fread(chunk, 1, sizeof chunk, f)) > 0) {
-        fwrite(chunk, 1, got, m);
-    }
-    bool ok = m && !ferror(f) && fclose(m) == 0 && buf;
-    fclose(f);
-    if (!ok) {
-        free(buf);
-        return false;
-    }
-    out->text = buf;
-    out->len = len;
-    return true;
+    return kn_lsp_read_file(path, &out->text, &out->len);
 }
 
 static void free_stamp(void *p)
@@ -785,6 +763,7 @@ kn_status kn_lsp(const kn_options *o, FILE *in, FILE *out, FILE *err)
         }
         int rc = handle(&s, msg);
         json_decref(msg);
+        kn_lsp_forget_files(&s);
         if (rc >= 0) {
             status = rc;
             break;
