@@ -89,10 +89,20 @@ static const char *overlay(void *ctx, const char *real, size_t *len)
     return d->text;
 }
 
-/* A schema, as opposed to a register (SPEC §3.1): it has a top-level key
- * that only a schema may have. */
+/* A schema, as opposed to a register (SPEC §3.1): it bears the schema's
+ * conventional name (NAME.knowable.yaml: then also when it is empty, only
+ * comments or not YAML at all, which `check` reports), or it has a
+ * top-level key that only a schema may have. */
 static bool is_schema(const kn_doc *d)
 {
+    static const char *const names[] = {".knowable.yaml", ".knowable.yml"};
+    size_t pl = strlen(d->path);
+    for (size_t k = 0; k < sizeof names / sizeof *names; k++) {
+        size_t n = strlen(names[k]);
+        if (pl > n && strcmp(d->path + pl - n, names[k]) == 0 && d->path[pl - n - 1] != '/') {
+            return true;
+        }
+    }
     static const char *const keys[] = {"dataset:", "prediction:", "columns:", "pipeline:", "split:"};
     for (size_t i = 0; i < d->n_lines; i++) {
         const char *line = d->text + d->lines[i];
