@@ -645,11 +645,19 @@ static int handle(kn_server *s, json_t *msg)
     json_t *m = json_object_get(msg, "method");
     json_t *params = json_object_get(msg, "params");
     if (id && !json_is_integer(id) && !json_is_string(id)) {
-        reply_error(s, NULL, INVALID_REQUEST, "an id must be a number or a string");
+        reply_error(s, NULL, INVALID_REQUEST, "an id must be an integer or a string");
+        return -1;
+    }
+    bool response = !m && id && (json_object_get(msg, "result") || json_object_get(msg, "error"));
+    const char *version = json_string_value(json_object_get(msg, "jsonrpc"));
+    if (!response && !(version && strcmp(version, "2.0") == 0)) {
+        /* JSON-RPC 2.0: "jsonrpc" MUST be exactly "2.0"; a message without
+         * it is not a valid request or notification, and is not acted on. */
+        reply_error(s, id, INVALID_REQUEST, "a message needs \"jsonrpc\": \"2.0\"");
         return -1;
     }
     if (!json_is_string(m)) {
-        if (!id || !(json_object_get(msg, "result") || json_object_get(msg, "error"))) {
+        if (!response) {
             reply_error(s, id, INVALID_REQUEST, "a request needs a method");
         }
         return -1; /* a response to a request of ours: none is sent */
