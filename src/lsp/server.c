@@ -557,10 +557,24 @@ static json_t *capabilities(void)
                      KN_VERSION_STRING);
 }
 
-/* The text document's URI of params, and its open document. */
+/* A JSON string used as a name (a method, a URI, the version): NULL when
+ * v is not a string or holds a NUL (\u0000), which a C string would cut. */
+static const char *name_of(json_t *v)
+{
+    const char *str = json_string_value(v);
+    return str && strlen(str) == json_string_length(v) ? str : NULL;
+}
+
+/* The text document's URI of params. */
+static const char *uri_of(json_t *params)
+{
+    return name_of(json_object_get(json_object_get(params, "textDocument"), "uri"));
+}
+
+/* The open document params name. */
 static kn_doc *doc_of(kn_server *s, json_t *params)
 {
-    const char *uri = json_string_value(json_object_get(json_object_get(params, "textDocument"), "uri"));
+    const char *uri = uri_of(params);
     return uri ? kn_doc_find(s, uri) : NULL;
 }
 
@@ -627,8 +641,8 @@ static void at_position(kn_server *s, json_t *id, json_t *params, at_fn fn)
 {
     kn_doc *d = doc_of(s, params);
     long line, character;
-    if (!position_of(json_object_get(params, "position"), &line, &character)) {
-        reply_error(s, id, INVALID_PARAMS, "a position {line, character} is needed");
+    if (!uri_of(params) || !position_of(json_object_get(params, "position"), &line, &character)) {
+        reply_error(s, id, INVALID_PARAMS, "a textDocument {uri} and a position {line, character} are needed");
         return;
     }
     reply(s, id, d ? fn(s, d, line, character) : NULL);
@@ -649,7 +663,7 @@ static int handle(kn_server *s, json_t *msg)
         return -1;
     }
     bool response = !m && id && (json_object_get(msg, "result") || json_object_get(msg, "error"));
-    const char *version = json_string_value(json_object_get(msg, "jsonrpc"));
+    const char *version = name_of(json_object_get(msg, "jsonrpc"));
     if (!response && !(version && strcmp(version, "2.0") == 0)) {
         /* JSON-RPC 2.0: "jsonrpc" MUST be exactly "2.0"; a message without
          * it is not a valid request or notification, and is not acted on. */
@@ -662,7 +676,13 @@ static int handle(kn_server *s, json_t *msg)
         }
         return -1; /* a response to a request of ours: none is sent */
     }
-    const char *method = json_string_value(m);
+    const char *method = name_of(m);
+    if (!method) {
+        if (id) {
+            reply_error(s, id, METHOD_NOT_FOUND, "method not found");
+        }
+        return -1;
+    }
     if (strcmp(method, "exit") == 0) {
         return s->shut_down ? 0 : 1;
     }
@@ -698,9 +718,9 @@ static int handle(kn_server *s, json_t *msg)
             kn_doc *d = doc_of(s, params);
             json_t *range = json_object_get(params, "range");
             long l0, c0, l1, c1;
-            if (!position_of(json_object_get(range, "start"), &l0, &c0) ||
+            if (!uri_of(params) || !position_of(json_object_get(range, "start"), &l0, &c0) ||
                 !position_of(json_object_get(range, "end"), &l1, &c1)) {
-                reply_error(s, id, INVALID_PARAMS, "a range {start, end} is needed");
+                reply_error(s, id, INVALID_PARAMS, "a textDocument {uri} and a range {start, end} are needed");
             } else {
                 reply(s, id, d ? kn_lsp_code_actions(s, d, l0, c0, l1, c1) : json_array());
             }
@@ -712,7 +732,7 @@ static int handle(kn_server *s, json_t *msg)
     /* Notifications: unknown ones (and "$/" ones) are ignored, as LSP asks. */
     if (strcmp(method, "textDocument/didOpen") == 0) {
         json_t *td = json_object_get(params, "textDocument");
-        const char *uri = json_string_value(json_object_get(td, "uri"));
+        const char *uri = name_of(json_object_get(td, "uri"));
         json_t *text = json_object_get(td, "text");
         if (uri && json_is_string(text)) {
             s->trigger = kn_doc_open(s, uri, json_string_value(text), json_string_length(text))->uri;
@@ -772,8 +792,22 @@ kn_status kn_lsp(const kn_options *o, FILE *in, FILE *out, FILE *err)
             }
             continue;
         }
+        /* A UTF-8 byte order mark is passed over (RFC 8259 allows it);
+         * a string may hold \u0000 (a document's text is taken by length);
+         * an integer beyond 64 bits is valid JSON and is read as a real,
+         * which no field of ours accepts where it wants an integer. */
+        size_t skip = len >= 3 && memcmp(body, "\xEF\xBB\xBF", 3) == 0 ? 3 : 0;
         json_error_t jerr;
-        json_t *msg = json_loadb(body, len, 0, &jerr);
+        json_t *msg = json_loadb(body + skip, len - skip, JSON_ALLOW_NUL, &jerr);
+        if (!msg && json_error_code(&jerr) == json_error_numeric_overflow) {
+            msg = json_loadb(body + skip, len - skip, JSON_ALLOW_NUL | JSON_DECODE_INT_AS_REAL, &jerr);
+            /* The id read as a real is an integer again when it is one. */
+            json_t *id = json_object_get(msg, "id");
+            double v = json_real_value(id);
+            if (json_is_real(id) && v >= -9.0e15 && v <= 9.0e15 && v == (double)(json_int_t)v) {
+                json_object_set_new(msg, "id", json_integer((json_int_t)v));
+            }
+        }
         free(body);
         if (!msg) {
             reply_error(&s, NULL, PARSE_ERROR, "the message is not valid JSON");
