@@ -752,6 +752,13 @@ static int handle(kn_server *s, json_t *msg)
         }
         s->trigger = d ? d->uri : NULL;
         analyse_all(s);
+    } else if (strcmp(method, "workspace/didChangeWatchedFiles") == 0) {
+        /* A file changed on disk (a register, a rulebook an open schema
+         * reads): every open schema is judged again; only the lists that
+         * changed are sent. */
+        if (json_array_size(json_object_get(params, "changes"))) {
+            analyse_all(s);
+        }
     } else if (strcmp(method, "textDocument/didClose") == 0) {
         kn_doc *d = doc_of(s, params);
         if (d) {
