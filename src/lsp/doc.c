@@ -7,6 +7,7 @@
 #include <stdint.h>
 #include <stdlib.h>
 #include <string.h>
+#include <strings.h>
 #include <unistd.h>
 
 #include "xalloc.h"
@@ -45,15 +46,22 @@ static int hex(int c)
 
 char *kn_uri_to_path(const char *uri)
 {
-    if (strncmp(uri, "file://", 7) != 0) {
+    /* file:///path, file://localhost/path and file:/path (RFC 8089); the
+     * scheme and the host in any case. */
+    if (strncasecmp(uri, "file:", 5) != 0) {
         return NULL;
     }
-    const char *p = uri + 7;
-    if (strncmp(p, "localhost/", 10) == 0) {
-        p += 9;
-    }
-    if (*p != '/') {
-        return NULL; /* a host other than this one */
+    const char *p = uri + 5;
+    if (strncmp(p, "//", 2) == 0) {
+        p += 2;
+        if (strncasecmp(p, "localhost/", 10) == 0) {
+            p += 9;
+        }
+        if (*p != '/') {
+            return NULL; /* a host other than this one */
+        }
+    } else if (*p != '/') {
+        return NULL;
     }
     size_t n = strlen(p);
     char *out = kn_lsp_xmalloc(n + 1), *o = out;
@@ -133,6 +141,18 @@ kn_doc *kn_doc_find(kn_server *s, const char *uri)
         }
     }
     return NULL;
+}
+
+kn_doc *kn_doc_named(kn_server *s, const char *uri)
+{
+    kn_doc *d = kn_doc_find(s, uri);
+    char *path = d ? NULL : kn_uri_to_path(uri);
+    if (path) {
+        for (d = s->docs; d && !(d->path && strcmp(d->path, path) == 0); d = d->next) {
+        }
+        free(path);
+    }
+    return d;
 }
 
 kn_doc *kn_doc_by_real(kn_server *s, const char *real)

@@ -68,7 +68,11 @@ char *kn_uri_to_path(const char *uri);
 /* A file: URI for path (malloc). */
 char *kn_path_to_uri(const char *path);
 
+/* The document opened under uri, spelt as it was opened. */
 kn_doc *kn_doc_find(kn_server *s, const char *uri);
+/* The same, or else the open document whose file uri names in another
+ * spelling (file://localhost/, %-escapes where none are needed). */
+kn_doc *kn_doc_named(kn_server *s, const char *uri);
 /* Opens (or replaces) a document with text. */
 kn_doc *kn_doc_open(kn_server *s, const char *uri, const char *text, size_t len);
 void kn_doc_set_text(kn_doc *d, const char *text, size_t len);

@@ -575,7 +575,7 @@ static const char *uri_of(json_t *params)
 static kn_doc *doc_of(kn_server *s, json_t *params)
 {
     const char *uri = uri_of(params);
-    return uri ? kn_doc_find(s, uri) : NULL;
+    return uri ? kn_doc_named(s, uri) : NULL;
 }
 
 static bool position_of(json_t *pos, long *line, long *character)
