@@ -234,6 +234,8 @@ json_t *kn_lsp_definition(kn_server *s, kn_doc *d, long line, long character)
 
 /* --- Completion ---------------------------------------------------------- */
 
+#define MAX_PATH 16
+
 enum { ITEM_PROPERTY = 10, ITEM_VALUE = 12, ITEM_REFERENCE = 18, ITEM_EVENT = 23, ITEM_FIELD = 5 };
 
 static size_t indent_of(const char *p, const char *end)
@@ -245,21 +247,67 @@ static size_t indent_of(const char *p, const char *end)
     return n;
 }
 
-/* The "key:" words of [p, end) in order, appended to path (at most max). */
+/* The keys of [p, end) that lead to its end, appended to path (at most
+ * max): "key:" words and quoted keys ("🥐_sold":), outermost first.  In a
+ * flow mapping a key whose value ended (at a comma or a closing bracket)
+ * gives way to its sibling: {type: number, known: } leads to known.
+ * *after is where the value of the last key kept starts. */
 static size_t keys_in(const char *p, const char *end, char **path, size_t n, size_t max, const char **after)
 {
+    size_t first = n;
+    int depth = 0, depth_of[MAX_PATH + 8];
+    const char *after_of[MAX_PATH + 8];
+    const char *qs = NULL, *qe = NULL; /* the last quoted scalar */
     *after = p;
     for (const char *q = p; q < end; q++) {
-        if (*q == ':' && (q + 1 == end || q[1] == ' ' || q[1] == '\n' || q[1] == '\r')) {
-            const char *b = q;
+        if (*q == '"' || *q == '\'') {
+            const char *r = q + 1;
+            while (r < end && *r != *q) {
+                r += *q == '"' && *r == '\\' && r + 1 < end ? 2 : 1;
+            }
+            if (r >= end) {
+                break; /* the end is inside the quotes */
+            }
+            qs = q + 1;
+            qe = r;
+            q = r;
+            continue;
+        }
+        if (*q == '{' || *q == '[') {
+            depth++;
+            continue;
+        }
+        bool key = *q == ':' && (q + 1 == end || q[1] == ' ' || q[1] == '\n' || q[1] == '\r');
+        if (!key && *q != ',' && *q != '}' && *q != ']') {
+            continue;
+        }
+        if (*q == '}' || *q == ']') {
+            depth -= depth > 0;
+        }
+        /* The keys whose values end here (siblings, and deeper ones). */
+        int from = *q == '}' || *q == ']' ? depth + 1 : depth;
+        while (n > first && depth_of[n - 1 - first] >= from) {
+            free(path[--n]);
+        }
+        *after = n > first ? after_of[n - 1 - first] : p;
+        if (!key) {
+            continue;
+        }
+        const char *b = q, *e = q;
+        if (qe && q == qe + 1) {
+            b = qs;
+            e = qe;
+        } else {
             while (b > p && name_byte((unsigned char)b[-1])) {
                 b--;
             }
-            if (b < q && n < max) {
-                path[n++] = kn_lsp_xstrndup(b, (size_t)(q - b));
-            }
-            *after = q + 1;
         }
+        if (b < e && n < max && n - first < MAX_PATH + 8) {
+            depth_of[n - first] = depth;
+            after_of[n - first] = q + 1;
+            path[n++] = kn_lsp_xstrndup(b, (size_t)(e - b));
+        }
+        *after = q + 1;
     }
     return n;
 }
@@ -299,8 +347,6 @@ static void add_names(json_t *items, const kn_schema *sc, kn_ref_kind k)
         }
     }
 }
-
-#define MAX_PATH 16
 
 json_t *kn_lsp_completion(kn_server *s, kn_doc *d, long line, long character)
 {
