@@ -71,10 +71,69 @@ typedef struct loader {
     bool ascii; /* no byte >= 0x80: libyaml's mark index is the byte offset */
 } loader;
 
+/* The byte length of a line break at p that libyaml counts as one: "\r\n",
+ * "\n", a lone "\r", and NEL, LS and PS (U+0085, U+2028, U+2029); 0 when
+ * there is none. */
+static size_t break_at(const char *p, const char *end)
+{
+    if (*p == '\n') {
+        return 1;
+    }
+    if (*p == '\r') {
+        return p + 1 < end && p[1] == '\n' ? 2 : 1;
+    }
+    if (end - p >= 2 && memcmp(p, "\xC2\x85", 2) == 0) {
+        return 2;
+    }
+    if (end - p >= 3 && (memcmp(p, "\xE2\x80\xA8", 3) == 0 || memcmp(p, "\xE2\x80\xA9", 3) == 0)) {
+        return 3;
+    }
+    return 0;
+}
+
+/* Whether the n bytes of seq occur in buf (memchr on the first byte). */
+static bool holds(const char *buf, size_t len, const char *seq, size_t n)
+{
+    const char *end = buf + len;
+    for (const char *p = buf; (size_t)(end - p) >= n && (p = memchr(p, seq[0], (size_t)(end - p))) != NULL;
+         p++) {
+        if ((size_t)(end - p) >= n && memcmp(p, seq, n) == 0) {
+            return true;
+        }
+    }
+    return false;
+}
+
 static void index_lines(loader *ld)
 {
-    /* memchr rather than a loop over bytes: this reads the whole file twice. */
+    /* libyaml's line numbers (mark.line) count every break break_at knows;
+     * a file with breaks other than "\n" is indexed byte by byte (ld->ascii
+     * is known: an ASCII file has no NEL, LS or PS). */
     const char *end = ld->buf + ld->len;
+    bool unicode_breaks =
+        !ld->ascii && (holds(ld->buf, ld->len, "\xC2\x85", 2) || holds(ld->buf, ld->len, "\xE2\x80\xA8", 3) ||
+                       holds(ld->buf, ld->len, "\xE2\x80\xA9", 3));
+    if (unicode_breaks || memchr(ld->buf, '\r', ld->len)) {
+        size_t n = 1;
+        for (const char *p = ld->buf; p < end;) {
+            size_t b = break_at(p, end);
+            n += b > 0;
+            p += b ? b : 1;
+        }
+        ld->ln.start = kn_alloc_array(ld->arena, n, sizeof(size_t));
+        ld->ln.n = n;
+        size_t k = 0;
+        ld->ln.start[k++] = 0;
+        for (const char *p = ld->buf; p < end;) {
+            size_t b = break_at(p, end);
+            p += b ? b : 1;
+            if (b) {
+                ld->ln.start[k++] = (size_t)(p - ld->buf);
+            }
+        }
+        return;
+    }
+    /* memchr rather than a loop over bytes: this reads the whole file twice. */
     size_t n = 1;
     for (const char *p = ld->buf; p < end && (p = memchr(p, '\n', (size_t)(end - p))) != NULL; p++) {
         n++;
@@ -423,8 +482,8 @@ kn_node *kn_yaml_parse(kn_arena *a, const kn_yaml_reporter *rep, const char *dis
     ld.buf = buf;
     ld.len = len;
     ld.lim = lim;
-    index_lines(&ld);
     ld.ascii = all_ascii(buf, len);
+    index_lines(&ld);
     ld.frames = kn_vec_new(a, sizeof(frame));
     ld.children = kn_vec_new(a, sizeof(kn_node *));
     ld.weights = kn_vec_new(a, sizeof(uint64_t));
