@@ -9,6 +9,7 @@
 #include "lsp.h"
 
 #include <setjmp.h>
+#include <stdint.h>
 #include <stdlib.h>
 #include <string.h>
 
@@ -578,11 +579,14 @@ static kn_doc *doc_of(kn_server *s, json_t *params)
     return uri ? kn_doc_named(s, uri) : NULL;
 }
 
+/* A Position: line and character are LSP uintegers (0 to 2^31 - 1); one
+ * past the end of its line or of the text is valid and stands for that end
+ * (clients send 2^31 - 1 for "the end of the line"). */
 static bool position_of(json_t *pos, long *line, long *character)
 {
     json_t *l = json_object_get(pos, "line"), *c = json_object_get(pos, "character");
     if (!json_is_integer(l) || !json_is_integer(c) || json_integer_value(l) < 0 ||
-        json_integer_value(c) < 0 || json_integer_value(l) > 100000000 || json_integer_value(c) > 100000000) {
+        json_integer_value(c) < 0 || json_integer_value(l) > INT32_MAX || json_integer_value(c) > INT32_MAX) {
         return false;
     }
     *line = (long)json_integer_value(l);
@@ -642,7 +646,8 @@ static void at_position(kn_server *s, json_t *id, json_t *params, at_fn fn)
     kn_doc *d = doc_of(s, params);
     long line, character;
     if (!uri_of(params) || !position_of(json_object_get(params, "position"), &line, &character)) {
-        reply_error(s, id, INVALID_PARAMS, "a textDocument {uri} and a position {line, character} are needed");
+        reply_error(s, id, INVALID_PARAMS,
+                    "a textDocument {uri} and a position {line, character} of uintegers are needed");
         return;
     }
     reply(s, id, d ? fn(s, d, line, character) : NULL);
@@ -720,7 +725,8 @@ static int handle(kn_server *s, json_t *msg)
             long l0, c0, l1, c1;
             if (!uri_of(params) || !position_of(json_object_get(range, "start"), &l0, &c0) ||
                 !position_of(json_object_get(range, "end"), &l1, &c1)) {
-                reply_error(s, id, INVALID_PARAMS, "a textDocument {uri} and a range {start, end} are needed");
+                reply_error(s, id, INVALID_PARAMS,
+                            "a textDocument {uri} and a range {start, end} of positions are needed");
             } else {
                 reply(s, id, d ? kn_lsp_code_actions(s, d, l0, c0, l1, c1) : json_array());
             }
