@@ -16,6 +16,7 @@
 #include <sys/stat.h>
 #include <yaml.h>
 
+#include "../util/hash.h"
 #include "../util/names.h"
 #include "../util/text.h"
 
@@ -302,26 +303,47 @@ static void set_anchor(loader *ld, const char *name, kn_node *n, uint64_t weight
     an->weight = weight;
 }
 
+static bool same_key(const kn_node *a, const kn_node *b)
+{
+    return a->u.scalar.len == b->u.scalar.len && memcmp(a->u.scalar.text, b->u.scalar.text, a->u.scalar.len) == 0;
+}
+
 static void check_duplicates(loader *ld, kn_node *map)
 {
     size_t n = map->u.map.n;
-    kn_name_map *seen = n > 8 ? kn_names_new_sized(ld->arena, n) : NULL;
+    kn_pair *pairs = map->u.map.pairs;
+    /* A large mapping (the columns) gets an open-addressing set of pair
+     * numbers, at most half full: 16 to 32 bytes a key, where a name map
+     * took 40 to 72 and hashed each key again with strlen. */
+    size_t cap = 0;
+    size_t *set = NULL;
+    if (n > 8) {
+        cap = 16;
+        while (cap < 2 * n) {
+            cap *= 2;
+        }
+        set = kn_alloc_array(ld->arena, cap, sizeof *set);
+    }
     for (size_t i = 0; i < n; i++) {
-        kn_node *k = map->u.map.pairs[i].key;
+        kn_node *k = pairs[i].key;
         if (k->kind != KN_NODE_SCALAR) {
             continue;
         }
         kn_node *first = NULL;
-        if (seen) {
-            first = kn_names_get(seen, k->u.scalar.text);
-            if (!first) {
-                kn_names_put(seen, k->u.scalar.text, k);
+        if (set) {
+            size_t h = (size_t)kn_hash_bytes(KN_HASH_INIT, k->u.scalar.text, k->u.scalar.len) & (cap - 1);
+            while (set[h] && !same_key(pairs[set[h] - 1].key, k)) {
+                h = (h + 1) & (cap - 1);
+            }
+            if (set[h]) {
+                first = pairs[set[h] - 1].key;
+            } else {
+                set[h] = i + 1;
             }
         } else {
             for (size_t j = 0; j < i; j++) {
-                kn_node *o = map->u.map.pairs[j].key;
-                if (o->kind == KN_NODE_SCALAR && o->u.scalar.len == k->u.scalar.len &&
-                    memcmp(o->u.scalar.text, k->u.scalar.text, k->u.scalar.len) == 0) {
+                kn_node *o = pairs[j].key;
+                if (o->kind == KN_NODE_SCALAR && same_key(o, k)) {
                     first = o;
                     break;
                 }
