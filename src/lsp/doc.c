@@ -8,9 +8,14 @@
 #include <stdlib.h>
 #include <string.h>
 #include <strings.h>
+#include <sys/stat.h>
 #include <unistd.h>
 
 #include "xalloc.h"
+
+/* The most kn_doc_text reads of a file that is not open: more than any
+ * schema or register may hold. */
+#define KN_DOC_MAX_READ ((uintmax_t)64 << 20)
 
 void *kn_lsp_xmalloc(size_t n)
 {
@@ -336,9 +341,13 @@ const kn_doc *kn_doc_text(kn_server *s, const char *file)
     d = kn_lsp_xmalloc(sizeof *d);
     memset(d, 0, sizeof *d);
     d->path = kn_lsp_xstrndup(file, strlen(file));
+    /* Only a regular file of a schema's size at most is read (never a
+     * FIFO or a device, which could block or never end). */
+    struct stat st;
     char *text;
     size_t len;
-    if (kn_lsp_read_file(file, &text, &len)) {
+    if (stat(file, &st) == 0 && S_ISREG(st.st_mode) && (uintmax_t)st.st_size <= KN_DOC_MAX_READ &&
+        kn_lsp_read_file(file, &text, &len)) {
         kn_doc_set_text(d, text, len);
         free(text);
     }
