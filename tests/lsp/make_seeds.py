@@ -21,7 +21,10 @@ for seq in sorted(glob.glob(os.path.join(HERE, "sequences", "*.seq"))):
             if cmd == "send":
                 for folder in ("${URI}/bakery-strict/", "${URI}/bakery/", "${URI}/", "${SCRATCH_URI}/"):
                     arg = arg.replace(folder, "file:///tmp/")
-                out += replay.frame(replay.substitute(arg))
+                # Other spellings of this folder's URI (file://localhost/...,
+                # FILE:...) likewise: no seed holds the path of a checkout.
+                out += replay.frame(replay.substitute(arg).replace(replay.ROOT + "/bakery/", "/tmp/")
+                                    .replace(replay.ROOT + "/", "/tmp/"))
             elif cmd == "raw":
                 out += replay.unescape(arg)
     name = os.path.basename(seq)[:-len(".seq")]
