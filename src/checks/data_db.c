@@ -49,6 +49,11 @@ typedef struct db_run {
     uint64_t raw_rows[2];   /* and their rows */
     kn_db_type target_kind; /* the target's SQL kind */
     bool raw_positive[2];
+    kn_db_type *kinds; /* each field's SQL kind */
+    /* the split column's raw values on each side, when the client read
+     * them all (then no query tests the text of each row's split value) */
+    kn_sql_sides sides;
+    bool have_sides;
     FILE *err;
 } db_run;
 
@@ -685,8 +690,12 @@ static bool late(db_run *r)
         if (!c->timed) {
             continue;
         }
-        kn_db_rows *q = query(
-            r, kn_sql_late_query(x->a, r->d, rb, r->table, r->query_sql, c->name, x->t.moment->name, r->key),
+        unsigned nulls = (null_only(r, r->kinds[c->field]) == KN_SQL_COL_NULL_ONLY ? KN_SQL_COL_NULL_ONLY : 0) |
+                         (null_only(r, r->kinds[x->t.moment->field]) == KN_SQL_COL_NULL_ONLY ? KN_SQL_MOMENT_NULL_ONLY
+                                                                                               : 0);
+        kn_db_rows *q = query(r,
+                              kn_sql_late_query(x->a, r->d, rb, r->table, r->query_sql, c->name, x->t.moment->name,
+                                                r->key, nulls),
             kn_printf(x->a, "cannot compare '%s' with the moment", c->name));
         if (!q) {
             return false;
@@ -712,19 +721,22 @@ static bool late(db_run *r)
     return true;
 }
 
-static bool overlap(db_run *r, kn_overlap *o, const char *const *cols, size_t n, bool entity)
+/* One overlap query (kn_sql_overlap_query) into *res; with key (or an
+ * entity) its first_key too. */
+static bool overlap_query(db_run *r, const char *const *cols, size_t n, bool entity, const char *key,
+                          kn_overlap_result *res)
 {
     kn_dx *x = &r->x;
     kn_db_rows *q = query(r,
                           kn_sql_overlap_query(x->a, r->d, x->ctx->rulebook, r->table, r->query_sql,
-                                               x->t.split->name, cols, n, entity, r->key),
+                                               x->t.split->name, cols, n, entity, key,
+                                               r->have_sides ? &r->sides : NULL),
                           entity ? "cannot count the entities on each side of the split"
                                  : "cannot count the feature rows on each side of the split");
     if (!q) {
         return false;
     }
-    kn_overlap_result res;
-    memset(&res, 0, sizeof res);
+    memset(res, 0, sizeof *res);
     if (kn_db_next(q)) {
         uint64_t v[5];
         for (size_t i = 0; i < 5; i++) {
@@ -733,18 +745,38 @@ static bool overlap(db_run *r, kn_overlap *o, const char *const *cols, size_t n,
                 return false;
             }
         }
-        res.train_rows = (size_t)v[0];
-        res.test_rows = (size_t)v[1];
-        res.shared_keys = (size_t)v[2];
-        res.train_rows_shared = (size_t)v[3];
-        res.test_rows_shared = (size_t)v[4];
+        res->train_rows = (size_t)v[0];
+        res->test_rows = (size_t)v[1];
+        res->shared_keys = (size_t)v[2];
+        res->train_rows_shared = (size_t)v[3];
+        res->test_rows_shared = (size_t)v[4];
         size_t len;
-        const char *k = entity || r->key ? kn_db_get(q, 5, &len) : NULL;
-        res.first_key = k ? kn_strndup(x->a, k, len) : NULL;
+        const char *k = entity || key ? kn_db_get(q, 5, &len) : NULL;
+        res->first_key = k ? kn_strndup(x->a, k, len) : NULL;
     }
     kn_db_done(q);
-    kn_overlap_set(o, &res);
     return !kn_db_failed(r->db);
+}
+
+/* Feature rows (or entities) on both sides of the split.  The feature
+ * rows are counted without the least key of a shared row (a text kept
+ * for each of the groups, nearly one a row): only when some are shared
+ * is the grouping run again for it. */
+static bool overlap(db_run *r, kn_overlap *o, const char *const *cols, size_t n, bool entity)
+{
+    kn_overlap_result res;
+    if (!overlap_query(r, cols, n, entity, NULL, &res)) {
+        return false;
+    }
+    if (!entity && r->key && res.shared_keys) {
+        kn_overlap_result with_key;
+        if (!overlap_query(r, cols, n, false, r->key, &with_key)) {
+            return false;
+        }
+        res.first_key = with_key.first_key;
+    }
+    kn_overlap_set(o, &res);
+    return true;
 }
 
 static bool counted(db_run *r)
@@ -811,6 +843,58 @@ static bool present(void *ctx, const kn_column *k)
     return false;
 }
 
+/* The split column's values and their rows, at most cap of them: the
+ * table's rows and the values of each side (r->sides).  1 when read, 0
+ * when the column has more values (the rows are then counted apart and
+ * the queries test each row's text), -1 on an error. */
+static int split_values(db_run *r, uint64_t *rows)
+{
+    kn_dx *x = &r->x;
+    kn_db_rows *q = query(
+        r, kn_sql_groups_query(x->a, r->d, r->table, r->query_sql, x->t.split->name, NULL, r->cap + 1, 0, 0),
+        "cannot count the rows of each split value");
+    if (!q) {
+        return -1;
+    }
+    kn_vec *side[2] = {kn_vec_new(x->a, sizeof(const char *)), kn_vec_new(x->a, sizeof(const char *))};
+    uint64_t total = 0;
+    unsigned long long n = 0;
+    int got = 1;
+    while (kn_db_next(q)) {
+        uint64_t k;
+        if (++n > r->cap) {
+            got = 0;
+            break;
+        }
+        if (!count_at(r, q, 1, &k) || total > UINT64_MAX - k) {
+            got = -1;
+            break;
+        }
+        total += k;
+        size_t len;
+        const char *v = kn_db_get(q, 0, &len);
+        unsigned s = v ? kn_split_side(v, len) : 0;
+        if (s) {
+            const char *copy = kn_strndup(x->a, v, len);
+            kn_vec_push(side[s - 1], &copy);
+        }
+    }
+    kn_db_done(q);
+    if (kn_db_failed(r->db)) {
+        return -1;
+    }
+    if (got <= 0) {
+        return got;
+    }
+    for (int s = 0; s < 2; s++) {
+        r->sides.values[s] = side[s]->data;
+        r->sides.n[s] = side[s]->len;
+    }
+    r->have_sides = true;
+    *rows = total;
+    return 1;
+}
+
 static bool run_checks(db_run *r, const char *data)
 {
     kn_dx *x = &r->x;
@@ -841,13 +925,27 @@ static bool run_checks(db_run *r, const char *data)
     r->key = key ? key->name : NULL;
     x->key_name = r->key;
 
-    q = query(r, kn_sql_count_query(x->a, r->d, r->table, r->query_sql), "cannot count the rows");
-    if (!q) {
-        return false;
-    }
+    r->kinds = kinds;
     uint64_t rows = 0;
-    bool ok = kn_db_next(q) && count_at(r, q, 0, &rows);
-    kn_db_done(q);
+    bool ok = false;
+    if (x->t.split && (x->t.shared_rows || x->t.shared_ents)) {
+        /* The rows counted per split value: the values of each side,
+         * classified here as the CSV path does (kn_split_side), so that
+         * the overlap queries compare the column with them. */
+        int got = split_values(r, &rows);
+        if (got < 0) {
+            return false;
+        }
+        ok = got > 0;
+    }
+    if (!ok) {
+        q = query(r, kn_sql_count_query(x->a, r->d, r->table, r->query_sql), "cannot count the rows");
+        if (!q) {
+            return false;
+        }
+        ok = kn_db_next(q) && count_at(r, q, 0, &rows);
+        kn_db_done(q);
+    }
     if (!ok) {
         if (!kn_db_failed(r->db)) {
             fputs("knowable: the database sent no row count\n", r->err);

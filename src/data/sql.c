@@ -158,9 +158,28 @@ static void as_text(sbuf *b, kn_sql_dialect d, const char *col)
 }
 
 /* Whether the split column says side (the words of kn_split_side, any
- * case, spaces around ignored). */
-static void side_test(sbuf *b, kn_sql_dialect d, const char *split, bool test)
+ * case, spaces around ignored).  With sides (the column's raw values,
+ * classified in C), the column is compared with those of the side: no
+ * text function runs on each row. */
+static void side_test(sbuf *b, kn_sql_dialect d, const char *split, bool test, const kn_sql_sides *sides)
 {
+    if (sides) {
+        size_t k = test ? 1 : 0;
+        if (!sides->n[k]) {
+            puts_(b, "1 = 0");
+            return;
+        }
+        ident(b, d, split);
+        puts_(b, " IN (");
+        for (size_t i = 0; i < sides->n[k]; i++) {
+            if (i) {
+                puts_(b, ", ");
+            }
+            literal(b, d, sides->values[k][i]);
+        }
+        puts_(b, ")");
+        return;
+    }
     static const char *const train[] = {"train", "training"};
     static const char *const tests[] = {"test", "testing", "holdout", "validation", "valid", "val", "eval"};
     const char *const *w = test ? tests : train;
@@ -178,10 +197,10 @@ static void side_test(sbuf *b, kn_sql_dialect d, const char *split, bool test)
 }
 
 /* 1 when the split column says side, else 0, summed. */
-static void side_sum(sbuf *b, kn_sql_dialect d, const char *split, bool test)
+static void side_sum(sbuf *b, kn_sql_dialect d, const char *split, bool test, const kn_sql_sides *sides)
 {
     puts_(b, "SUM(CASE WHEN ");
-    side_test(b, d, split, test);
+    side_test(b, d, split, test, sides);
     puts_(b, " THEN 1 ELSE 0 END)");
 }
 
@@ -363,9 +382,18 @@ char *kn_sql_rank_sum_query(kn_arena *a, kn_sql_dialect d, const kn_rulebook *rb
     puts_(&b, "SELECT SUM(CASE WHEN v IS NOT NULL THEN p * (2 * COALESCE(q_below, 0) + q) END) AS two_u,\n"
               "       SUM(CASE WHEN v IS NOT NULL THEN p END) AS n_pos, SUM(CASE WHEN v IS NOT NULL THEN q END) AS n_neg,\n"
               "       SUM(CASE WHEN v IS NULL THEN p END) AS missing_pos, SUM(CASE WHEN v IS NULL THEN q END) AS missing_neg\n"
-              "FROM (SELECT v, p, q,\n"
-              "             SUM(CASE WHEN v IS NOT NULL THEN q END) OVER (ORDER BY v ROWS BETWEEN UNBOUNDED PRECEDING AND 1 PRECEDING) AS q_below\n"
-              "      FROM (SELECT ");
+              "FROM (SELECT v, p, q,\n             ");
+    if (d == KN_SQL_POSTGRESQL) {
+        /* PostgreSQL sums bigints into numerics, slow on every row: the
+         * running count in a double instead (exact below 2^53 rows), the
+         * products in bigints */
+        puts_(&b, "CAST(SUM(CASE WHEN v IS NOT NULL THEN CAST(q AS DOUBLE PRECISION) END) OVER (ORDER BY v ROWS BETWEEN "
+                  "UNBOUNDED PRECEDING AND 1 PRECEDING) AS BIGINT) AS q_below\n");
+    } else {
+        puts_(&b, "SUM(CASE WHEN v IS NOT NULL THEN q END) OVER (ORDER BY v ROWS BETWEEN UNBOUNDED PRECEDING AND 1 "
+                  "PRECEDING) AS q_below\n");
+    }
+    puts_(&b, "      FROM (SELECT ");
     sbuf v = {a, NULL, 0, 0};
     puts_(&v, "CASE WHEN ");
     missing_or_null(&v, d, rb, col, null_only & KN_SQL_COL_NULL_ONLY, null_only & KN_SQL_COL_NAN);
@@ -424,22 +452,24 @@ char *kn_sql_missing_query(kn_arena *a, kn_sql_dialect d, const kn_rulebook *rb,
 
 /* The condition of a late value: col later than the moment (or not
  * earlier, strict), neither missing. */
-static void late_test(sbuf *b, kn_sql_dialect d, const kn_rulebook *rb, const char *col, const char *moment)
+static void late_test(sbuf *b, kn_sql_dialect d, const kn_rulebook *rb, const char *col, const char *moment,
+                      unsigned null_only)
 {
     ident(b, d, col);
     puts_(b, rb->strict_moment ? " >= " : " > ");
     ident(b, d, moment);
     puts_(b, " AND NOT (");
-    missing_test(b, d, rb, col);
+    missing_or_null(b, d, rb, col, null_only & KN_SQL_COL_NULL_ONLY, false);
     puts_(b, ") AND NOT (");
-    missing_test(b, d, rb, moment);
+    missing_or_null(b, d, rb, moment, null_only & KN_SQL_MOMENT_NULL_ONLY, false);
     puts_(b, ")");
 }
 
 /* One scan: the late rows counted by a window over all of them, the one
  * with the least key (or value) kept. */
 char *kn_sql_late_query(kn_arena *a, kn_sql_dialect d, const kn_rulebook *rb, const char *table,
-                        const char *query_sql, const char *col, const char *moment, const char *key)
+                        const char *query_sql, const char *col, const char *moment, const char *key,
+                        unsigned null_only)
 {
     sbuf b = {a, NULL, 0, 0};
     puts_(&b, "SELECT COUNT(*) OVER () AS n, ");
@@ -454,9 +484,14 @@ char *kn_sql_late_query(kn_arena *a, kn_sql_dialect d, const kn_rulebook *rb, co
     }
     from(&b, d, table, query_sql);
     puts_(&b, " WHERE ");
-    late_test(&b, d, rb, col, moment);
+    late_test(&b, d, rb, col, moment, null_only);
     puts_(&b, " ORDER BY ");
     ident(&b, d, key ? key : col);
+    if (key) {
+        /* rows of one key in the same order every time */
+        puts_(&b, ", ");
+        ident(&b, d, col);
+    }
     limit(&b, d, 1);
     return b.p;
 }
@@ -528,11 +563,15 @@ static char *esc(kn_arena *a, const char *s)
 /* Rows of two split sides grouped by the columns cols[0..n): one row with
  * train rows, test rows, keys on both sides, training and test rows whose
  * key is on both sides.  skip_missing leaves out rows whose (single) key
- * is missing. */
+ * is missing: on PostgreSQL the groups whose key is missing (the test of
+ * the text runs once per group, not once per row), elsewhere the rows (a
+ * collation that ignores case or accents could put a missing marker and a
+ * value in one group). */
 static char *overlap_sql(plan_ctx *c, const kn_rulebook *rb, const char *split, const char *const *cols, size_t n,
-                         bool skip_missing, const char *key)
+                         bool skip_missing, const char *key, const kn_sql_sides *sides)
 {
     sbuf b = {c->a, NULL, 0, 0};
+    bool per_group = skip_missing && c->d == KN_SQL_POSTGRESQL;
     puts_(&b, "SELECT SUM(n_train) AS train_rows, SUM(n_test) AS test_rows,\n"
               "       SUM(CASE WHEN n_train > 0 AND n_test > 0 THEN 1 ELSE 0 END) AS shared_keys,\n"
               "       SUM(CASE WHEN n_train > 0 AND n_test > 0 THEN n_train ELSE 0 END) AS train_rows_shared,\n"
@@ -547,17 +586,17 @@ static char *overlap_sql(plan_ctx *c, const kn_rulebook *rb, const char *split, 
     } else if (key) {
         /* the least key of the group's test rows */
         puts_(&b, "MIN(CASE WHEN ");
-        side_test(&b, c->d, split, true);
+        side_test(&b, c->d, split, true, sides);
         puts_(&b, " THEN ");
         ident(&b, c->d, key);
         puts_(&b, " END) AS k,\n             ");
     }
-    side_sum(&b, c->d, split, false);
+    side_sum(&b, c->d, split, false, sides);
     puts_(&b, " AS n_train,\n             ");
-    side_sum(&b, c->d, split, true);
+    side_sum(&b, c->d, split, true, sides);
     puts_(&b, " AS n_test\n     ");
     from(&b, c->d, c->table, c->query_sql);
-    if (skip_missing) {
+    if (skip_missing && !per_group) {
         puts_(&b, "\n      WHERE NOT (");
         missing_test(&b, c->d, rb, cols[0]);
         puts_(&b, ")");
@@ -569,8 +608,17 @@ static char *overlap_sql(plan_ctx *c, const kn_rulebook *rb, const char *split, 
         }
         ident(&b, c->d, cols[i]);
     }
+    if (per_group) {
+        /* keeps the planner from moving the test below the grouping */
+        puts_(&b, " OFFSET 0");
+    }
     puts_(&b, ") AS ");
     ident(&b, c->d, "sides");
+    if (per_group) {
+        puts_(&b, "\nWHERE NOT (");
+        missing_test(&b, c->d, rb, "k");
+        puts_(&b, ")");
+    }
     return b.p;
 }
 
@@ -584,6 +632,12 @@ static void session(plan_ctx *cp)
             "SET SESSION CHARACTERISTICS AS TRANSACTION READ ONLY");
         add(&c, KN_SQLQ_SESSION, "", NULL, kn_printf(a, "a statement is cancelled after %d s", KN_SQL_TIMEOUT_SECONDS),
             kn_printf(a, "SET statement_timeout = %d", KN_SQL_TIMEOUT_SECONDS * 1000));
+        add(&c, KN_SQLQ_SESSION, "", NULL,
+            kn_printf(a, "a grouping or sort of this session may hold %d MB before it spills to disk (raised only: a "
+                         "larger work_mem of the role or database stays)",
+                      KN_SQL_WORK_MEM_MB),
+            kn_printf(a, "SELECT set_config('work_mem', '%dMB', false) WHERE pg_size_bytes(current_setting('work_mem')) < %lld",
+                      KN_SQL_WORK_MEM_MB, (long long)KN_SQL_WORK_MEM_MB * 1024 * 1024));
         break;
     case KN_SQL_MYSQL:
         add(&c, KN_SQLQ_SESSION, "", NULL, "the session reads only", "SET SESSION TRANSACTION READ ONLY");
@@ -625,10 +679,10 @@ void kn_sql_session(kn_arena *a, kn_sql_dialect d, kn_sql_plan *out)
 
 char *kn_sql_overlap_query(kn_arena *a, kn_sql_dialect d, const kn_rulebook *rb, const char *table,
                            const char *query_sql, const char *split, const char *const *cols, size_t n, bool entity,
-                           const char *key)
+                           const char *key, const kn_sql_sides *sides)
 {
     plan_ctx c = {a, d, table, query_sql, NULL};
-    return overlap_sql(&c, rb, split, cols, n, entity, entity ? NULL : key);
+    return overlap_sql(&c, rb, split, cols, n, entity, entity ? NULL : key, sides);
 }
 
 char *kn_sql_qi_query(kn_arena *a, kn_sql_dialect d, const char *table, const char *query_sql,
@@ -793,7 +847,7 @@ void kn_sql_make(kn_arena *a, const kn_schema *s, const kn_rulebook *rb, const c
                          "text in one zone): how many, and the one with the least %s",
                       esc(a, k->name), rb->strict_moment ? "at or after" : "after", esc(a, moment->name),
                       key ? kn_printf(a, "'%s'", esc(a, key->name)) : "value"),
-            kn_sql_late_query(a, d, rb, table, query_sql, k->name, moment->name, key ? key->name : NULL));
+            kn_sql_late_query(a, d, rb, table, query_sql, k->name, moment->name, key ? key->name : NULL, 0));
     }
 
     /* rows-shared-across-split and entity-in-both-splits. */
@@ -811,13 +865,13 @@ void kn_sql_make(kn_arena *a, const kn_schema *s, const kn_rulebook *rb, const c
                 kn_printf(a, "identical feature rows (%zu feature%s) on both sides of the split '%s'", nf,
                           nf == 1 ? "" : "s", esc(a, split->name)),
                 kn_sql_overlap_query(a, d, rb, table, query_sql, split->name, feats, nf, false,
-                                     key ? key->name : NULL));
+                                     key ? key->name : NULL, NULL));
         }
         if (entity) {
             add(&c, KN_SQLQ_OVERLAP, "entity-in-both-splits", entity,
                 kn_printf(a, "entities '%s' with rows on both sides of the split '%s'", esc(a, entity->name),
                           esc(a, split->name)),
-                kn_sql_overlap_query(a, d, rb, table, query_sql, split->name, &entity->name, 1, true, NULL));
+                kn_sql_overlap_query(a, d, rb, table, query_sql, split->name, &entity->name, 1, true, NULL, NULL));
         }
     }
 

@@ -34,6 +34,10 @@ const char *kn_sql_dialect_name(kn_sql_dialect d);
 
 /* Seconds a statement may run before the engine cancels it. */
 #define KN_SQL_TIMEOUT_SECONDS 300
+/* Megabytes one hash table or sort of a PostgreSQL session may hold
+ * before it spills to disk (work_mem; the server's default is 4): the
+ * groups of an entity or a column's values stay in memory. */
+#define KN_SQL_WORK_MEM_MB 64
 
 /* What a query's rows are, for the code that reads them back. */
 typedef enum kn_sql_kind {
@@ -57,6 +61,7 @@ enum {
     KN_SQL_TARGET_NULL_ONLY = 2u,
     KN_SQL_COL_NAN = 4u, /* with KN_SQL_COL_NULL_ONLY: NaN too (PostgreSQL's floats) */
     KN_SQL_COL_FLOAT = 8u, /* rank sum: the values rounded to 4-byte floats, as the CSV path keeps numbers */
+    KN_SQL_MOMENT_NULL_ONLY = 16u, /* late rows: the moment column's missing values are NULL alone */
 };
 
 /* Rows of one aggregate query the client reads by default (--max-rows in
@@ -122,22 +127,33 @@ char *kn_sql_missing_query(kn_arena *a, kn_sql_dialect d, const kn_rulebook *rb,
 
 /* At most one row (n, v, m[, k]): how many rows have col later than the
  * moment (not earlier with strict_moment), and of them the one with the
- * least key (NULL key: the least value); no row when there is none. */
+ * least key, then value (NULL key: the least value); no row when there is none.
+ * null_only: KN_SQL_COL_NULL_ONLY and KN_SQL_MOMENT_NULL_ONLY. */
 char *kn_sql_late_query(kn_arena *a, kn_sql_dialect d, const kn_rulebook *rb, const char *table,
-                        const char *query_sql, const char *col, const char *moment, const char *key);
+                        const char *query_sql, const char *col, const char *moment, const char *key,
+                        unsigned null_only);
 
 /* One row (k): the least key of the rows whose col, as text, is value. */
 char *kn_sql_key_of_value(kn_arena *a, kn_sql_dialect d, const char *table, const char *query_sql, const char *col,
                           const char *key, const char *value);
 
+/* The raw values of the split column on each side (values[0] training,
+ * values[1] test), as the engine sent them and kn_split_side classified
+ * them: the queries then compare the column with these values instead of
+ * testing the text of every row. */
+typedef struct kn_sql_sides {
+    const char **values[2];
+    size_t n[2];
+} kn_sql_sides;
 /* One row (train_rows, test_rows, shared_keys, train_rows_shared,
  * test_rows_shared[, first_key]): rows grouped by cols[0..n) on the two
  * sides of the split; with entity, cols[0] is the entity, rows where it is
  * missing are left out and the least shared entity comes back too;
- * otherwise, with key, the least key of a test row in a shared group. */
+ * otherwise, with key, the least key of a test row in a shared group.
+ * sides NULL: the split column's text is tested on every row. */
 char *kn_sql_overlap_query(kn_arena *a, kn_sql_dialect d, const kn_rulebook *rb, const char *table,
                            const char *query_sql, const char *split, const char *const *cols, size_t n, bool entity,
-                           const char *key);
+                           const char *key, const kn_sql_sides *sides);
 
 /* Rows (group_size, n_groups): how many groups of each size cols[0..n)
  * form. */

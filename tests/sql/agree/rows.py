@@ -53,7 +53,9 @@ for i in range(600):
         "order_ref": ref,
         "customer_id": "C%04d" % rng.randrange(150),
         "placed_at": stamp(day, minute),
-        "fold": rng.choice(["train", "train", "test", "holdout", "fold3"]),
+        # the split's words in any case, spaces around: the database
+        # classifies the column's values in C, as the CSV path does
+        "fold": rng.choice(["train", "Train", "test", " Test ", "holdout", "VALIDATION", "fold3"]),
         "cancelled": None if rng.random() < 0.02 else cancelled,
         'deposit "eur"': deposit,
         "tiers": rng.choice(["single", "double", "triple"]) if not cancelled else rng.choice(["single", "single", "double"]),
@@ -77,7 +79,7 @@ for i in range(600):
 for i in range(15):
     twin = dict(rows[i * 7])
     twin["order_ref"] = "NOR-9%04d" % i
-    twin["fold"] = "test"
+    twin["fold"] = "TEST" if i % 2 else "test"
     rows.append(twin)
 
 
