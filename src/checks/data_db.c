@@ -779,6 +779,18 @@ static bool overlap(db_run *r, kn_overlap *o, const char *const *cols, size_t n,
     return true;
 }
 
+/* Sets the engine to group by sorting (sorted) or back, where the dialect
+ * asks for it (kn_sql_sorted_grouping). */
+static bool grouping_by_sort(db_run *r, bool sorted)
+{
+    const char *sql = kn_sql_sorted_grouping(r->d, sorted);
+    kn_db_rows *q = sql ? query(r, sql, "cannot choose how the engine groups") : NULL;
+    if (q) {
+        kn_db_done(q);
+    }
+    return !sql || q;
+}
+
 static bool counted(db_run *r)
 {
     kn_dx *x = &r->x;
@@ -794,7 +806,8 @@ static bool counted(db_run *r)
                 feats[nf++] = t->cols[i].name;
             }
         }
-        if (!overlap(r, t->shared_rows, feats, nf, false)) {
+        if (!grouping_by_sort(r, true) || !overlap(r, t->shared_rows, feats, nf, false) ||
+            !grouping_by_sort(r, false)) {
             return false;
         }
     }

@@ -34,10 +34,6 @@ const char *kn_sql_dialect_name(kn_sql_dialect d);
 
 /* Seconds a statement may run before the engine cancels it. */
 #define KN_SQL_TIMEOUT_SECONDS 300
-/* Megabytes one hash table or sort of a PostgreSQL session may hold
- * before it spills to disk (work_mem; the server's default is 4): the
- * groups of an entity or a column's values stay in memory. */
-#define KN_SQL_WORK_MEM_MB 64
 
 /* What a query's rows are, for the code that reads them back. */
 typedef enum kn_sql_kind {
@@ -150,6 +146,9 @@ typedef struct kn_sql_sides {
  * sides of the split; with entity, cols[0] is the entity, rows where it is
  * missing are left out and the least shared entity comes back too;
  * otherwise, with key, the least key of a test row in a shared group.
+ * On PostgreSQL several columns are grouped by hash_record_extended of
+ * the row (64 bits, as the CSV path compares rows; PostgreSQL 14 or
+ * later).
  * sides NULL: the split column's text is tested on every row. */
 char *kn_sql_overlap_query(kn_arena *a, kn_sql_dialect d, const kn_rulebook *rb, const char *table,
                            const char *query_sql, const char *split, const char *const *cols, size_t n, bool entity,
@@ -164,6 +163,11 @@ char *kn_sql_qi_query(kn_arena *a, kn_sql_dialect d, const char *table, const ch
  * the first identifier, among the columns present (present NULL: all). */
 const kn_column *kn_sql_key_column(const kn_schema *s, bool (*present)(void *ctx, const kn_column *k), void *ctx);
 
+/* The statement that makes the engine group by sorting (sorted) or as it
+ * chooses again (!sorted) around the feature rows' overlap query, or NULL
+ * when the dialect needs none: PostgreSQL's hash table of nearly a group
+ * a row spills to disk and is slower than a sort of the rows' hashes. */
+const char *kn_sql_sorted_grouping(kn_sql_dialect d, bool sorted);
 /* The query of the table's column names (no rows). */
 char *kn_sql_columns_query(kn_arena *a, kn_sql_dialect d, const char *table, const char *query_sql);
 
