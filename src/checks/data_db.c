@@ -779,11 +779,11 @@ static bool overlap(db_run *r, kn_overlap *o, const char *const *cols, size_t n,
     return true;
 }
 
-/* Sets the engine to group by sorting (sorted) or back, where the dialect
- * asks for it (kn_sql_sorted_grouping). */
-static bool grouping_by_sort(db_run *r, bool sorted)
+/* Sets how the engine groups, where the dialect asks for it
+ * (kn_sql_grouping). */
+static bool grouping(db_run *r, kn_sql_grouping_mode m)
 {
-    const char *sql = kn_sql_sorted_grouping(r->d, sorted);
+    const char *sql = kn_sql_grouping(r->d, m);
     kn_db_rows *q = sql ? query(r, sql, "cannot choose how the engine groups") : NULL;
     if (q) {
         kn_db_done(q);
@@ -806,12 +806,14 @@ static bool counted(db_run *r)
                 feats[nf++] = t->cols[i].name;
             }
         }
-        if (!grouping_by_sort(r, true) || !overlap(r, t->shared_rows, feats, nf, false) ||
-            !grouping_by_sort(r, false)) {
+        if (!grouping(r, KN_SQL_GROUP_BY_SORT) || !overlap(r, t->shared_rows, feats, nf, false) ||
+            !grouping(r, KN_SQL_GROUP_BY_SORT_END)) {
             return false;
         }
     }
-    if (t->shared_ents && !overlap(r, t->shared_ents, &t->entity->name, 1, true)) {
+    if (t->shared_ents &&
+        (!grouping(r, KN_SQL_GROUP_IN_MEMORY) || !overlap(r, t->shared_ents, &t->entity->name, 1, true) ||
+         !grouping(r, KN_SQL_GROUP_IN_MEMORY_END))) {
         return false;
     }
     if (t->qi_groups) {

@@ -662,12 +662,23 @@ static void session(plan_ctx *cp)
     }
 }
 
-const char *kn_sql_sorted_grouping(kn_sql_dialect d, bool sorted)
+const char *kn_sql_grouping(kn_sql_dialect d, kn_sql_grouping_mode m)
 {
     if (d != KN_SQL_POSTGRESQL) {
         return NULL;
     }
-    return sorted ? "SET enable_hashagg = off" : "RESET enable_hashagg";
+    switch (m) {
+    case KN_SQL_GROUP_BY_SORT:
+        return "SET enable_hashagg = off";
+    case KN_SQL_GROUP_BY_SORT_END:
+        return "RESET enable_hashagg";
+    case KN_SQL_GROUP_IN_MEMORY:
+        return "SELECT set_config('work_mem', '" KN_SQL_GROUP_MEMORY "', false) WHERE pg_size_bytes(current_setting("
+               "'work_mem')) < pg_size_bytes('" KN_SQL_GROUP_MEMORY "')";
+    case KN_SQL_GROUP_IN_MEMORY_END:
+        return "RESET work_mem";
+    }
+    return NULL;
 }
 
 char *kn_sql_columns_query(kn_arena *a, kn_sql_dialect d, const char *table, const char *query_sql)
@@ -872,7 +883,7 @@ void kn_sql_make(kn_arena *a, const kn_schema *s, const kn_rulebook *rb, const c
                 feats[nf++] = k->name;
             }
         }
-        const char *by_sort = kn_sql_sorted_grouping(d, true);
+        const char *by_sort = kn_sql_grouping(d, KN_SQL_GROUP_BY_SORT);
         if (nf && by_sort) {
             add(&c, KN_SQLQ_SESSION, "", NULL, "the feature rows are grouped by sorting their hashes", by_sort);
         }
@@ -884,13 +895,24 @@ void kn_sql_make(kn_arena *a, const kn_schema *s, const kn_rulebook *rb, const c
                                      key ? key->name : NULL, NULL));
         }
         if (nf && by_sort) {
-            add(&c, KN_SQLQ_SESSION, "", NULL, "and the engine chooses again", kn_sql_sorted_grouping(d, false));
+            add(&c, KN_SQLQ_SESSION, "", NULL, "and the engine chooses again",
+                kn_sql_grouping(d, KN_SQL_GROUP_BY_SORT_END));
+        }
+        const char *in_memory = kn_sql_grouping(d, KN_SQL_GROUP_IN_MEMORY);
+        if (entity && in_memory) {
+            add(&c, KN_SQLQ_SESSION, "", NULL,
+                "the entities' groups are kept in memory up to " KN_SQL_GROUP_MEMORY
+                " (raised only: a larger work_mem of the role or database stays)",
+                in_memory);
         }
         if (entity) {
             add(&c, KN_SQLQ_OVERLAP, "entity-in-both-splits", entity,
                 kn_printf(a, "entities '%s' with rows on both sides of the split '%s'", esc(a, entity->name),
                           esc(a, split->name)),
                 kn_sql_overlap_query(a, d, rb, table, query_sql, split->name, &entity->name, 1, true, NULL, NULL));
+            if (in_memory) {
+                add(&c, KN_SQLQ_SESSION, "", NULL, "and back", kn_sql_grouping(d, KN_SQL_GROUP_IN_MEMORY_END));
+            }
         }
     }
 

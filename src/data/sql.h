@@ -163,11 +163,22 @@ char *kn_sql_qi_query(kn_arena *a, kn_sql_dialect d, const char *table, const ch
  * the first identifier, among the columns present (present NULL: all). */
 const kn_column *kn_sql_key_column(const kn_schema *s, bool (*present)(void *ctx, const kn_column *k), void *ctx);
 
-/* The statement that makes the engine group by sorting (sorted) or as it
- * chooses again (!sorted) around the feature rows' overlap query, or NULL
- * when the dialect needs none: PostgreSQL's hash table of nearly a group
- * a row spills to disk and is slower than a sort of the rows' hashes. */
-const char *kn_sql_sorted_grouping(kn_sql_dialect d, bool sorted);
+/* How the engine groups the rows of the overlap queries, each set before
+ * and undone after its query (PostgreSQL; the others need nothing): the
+ * feature rows, nearly a group a row, by sorting their hashes (a hash
+ * table of them spills to disk and is slower, and more memory made it
+ * slower still); the entities, far fewer, in a hash table of up to
+ * KN_SQL_GROUP_MEMORY (work_mem, raised only), which the default 4 MB
+ * makes spill. */
+typedef enum kn_sql_grouping_mode {
+    KN_SQL_GROUP_BY_SORT,
+    KN_SQL_GROUP_BY_SORT_END,
+    KN_SQL_GROUP_IN_MEMORY,
+    KN_SQL_GROUP_IN_MEMORY_END,
+} kn_sql_grouping_mode;
+#define KN_SQL_GROUP_MEMORY "64MB"
+/* The statement for m in dialect d, or NULL. */
+const char *kn_sql_grouping(kn_sql_dialect d, kn_sql_grouping_mode m);
 /* The query of the table's column names (no rows). */
 char *kn_sql_columns_query(kn_arena *a, kn_sql_dialect d, const char *table, const char *query_sql);
 
