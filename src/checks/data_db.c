@@ -690,13 +690,14 @@ static bool late(db_run *r)
         if (!c->timed) {
             continue;
         }
-        unsigned nulls = (null_only(r, r->kinds[c->field]) == KN_SQL_COL_NULL_ONLY ? KN_SQL_COL_NULL_ONLY : 0) |
-                         (null_only(r, r->kinds[x->t.moment->field]) == KN_SQL_COL_NULL_ONLY ? KN_SQL_MOMENT_NULL_ONLY
-                                                                                               : 0);
+        /* typed columns: "missing" is NULL alone (as for the rank sums) */
+        bool col_null = null_only(r, r->kinds[c->field]) == KN_SQL_COL_NULL_ONLY;
+        bool moment_null = null_only(r, r->kinds[x->t.moment->field]) == KN_SQL_COL_NULL_ONLY;
+        unsigned nulls = (col_null ? KN_SQL_COL_NULL_ONLY : 0) | (moment_null ? KN_SQL_MOMENT_NULL_ONLY : 0);
         kn_db_rows *q = query(r,
-                              kn_sql_late_query(x->a, r->d, rb, r->table, r->query_sql, c->name, x->t.moment->name,
-                                                r->key, nulls),
-            kn_printf(x->a, "cannot compare '%s' with the moment", c->name));
+                              kn_sql_late_query(x->a, r->d, rb, r->table, r->query_sql, c->name,
+                                                x->t.moment->name, r->key, nulls),
+                              kn_printf(x->a, "cannot compare '%s' with the moment", c->name));
         if (!q) {
             return false;
         }
