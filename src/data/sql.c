@@ -1,6 +1,7 @@
 /* sql.c - the data checks as aggregate SQL (sql.h). */
 #include "sql.h"
 
+#include <stdint.h>
 #include <string.h>
 
 #include "../util/text.h"
@@ -45,6 +46,9 @@ typedef struct sbuf {
 
 static void put(sbuf *b, const char *s, size_t n)
 {
+    if (n > SIZE_MAX / 4 - b->len) {
+        kn_arena_oom(b->a); /* the doubling below would overflow */
+    }
     if (b->len + n + 1 > b->cap) {
         size_t cap = b->cap ? b->cap : 128;
         while (b->len + n + 1 > cap) {
