@@ -594,7 +594,9 @@ static bool position_of(json_t *pos, long *line, long *character)
     return true;
 }
 
-/* didChange: full text (the sync we ask for), or ranges applied in order. */
+/* didChange: full text (the sync we ask for), or ranges applied in order.
+ * A list with a malformed change is refused whole, before any change of it
+ * is applied: the text stays the one the last analysis saw. */
 static bool apply_changes(kn_doc *d, json_t *changes)
 {
     if (!json_is_array(changes)) {
@@ -602,6 +604,16 @@ static bool apply_changes(kn_doc *d, json_t *changes)
     }
     size_t i;
     json_t *ch;
+    json_array_foreach(changes, i, ch)
+    {
+        json_t *range = json_object_get(ch, "range");
+        long l, c;
+        if (!json_is_string(json_object_get(ch, "text")) ||
+            (range && (!position_of(json_object_get(range, "start"), &l, &c) ||
+                       !position_of(json_object_get(range, "end"), &l, &c)))) {
+            return false;
+        }
+    }
     json_array_foreach(changes, i, ch)
     {
         json_t *text = json_object_get(ch, "text");
