@@ -169,7 +169,24 @@ static void driver_error(kn_arena *a, FILE *err, const char *what, SQLSMALLINT t
         }
         const char *m = kn_odbc_display(a, (const char *)msg);
         fputs(i == 1 ? ": " : "; ", err);
-        kn_fput_term(err, m, strlen(m));
+        /* A driver's message may span lines (PostgreSQL's does): its lines
+         * joined by "; ", not a "\n" escaped into one line. */
+        char last = 0; /* the last character written of this message */
+        while (*m) {
+            size_t n = strcspn(m, "\r\n"), end = n;
+            while (end && (m[end - 1] == ' ' || m[end - 1] == '\t')) {
+                end--;
+            }
+            if (end) {
+                if (last) {
+                    fputs(strchr(".;:", last) ? " " : "; ", err);
+                }
+                kn_fput_term(err, m, end);
+                last = m[end - 1];
+            }
+            m += n;
+            m += strspn(m, "\r\n");
+        }
         fprintf(err, " (SQLSTATE %s)", (const char *)state);
     }
     fputc('\n', err);

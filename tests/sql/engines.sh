@@ -116,6 +116,16 @@ if "$knowable" check --help >/dev/null && odbcinst -q -d -n "$driver" >/dev/null
         grep -q "^odbc:Driver={$driver};.*PWD=\*\*\*/bakery_days: note: the schema declares a column 'oven" "$tmp/c.out" ||
             fail "no report on the table through ODBC"
         sed 's/^/    /' "$tmp/c.out" | grep "bakery_days" | head -5
+        # A query the engine refuses: exit 2 and the driver's message on
+        # one line (PostgreSQL's spans two), never an escaped line break.
+        printf 'SELECT * FROM bakery_days; DELETE FROM ovens\n' >"$tmp/two.sql"
+        "$knowable" check --data "odbc:$conn" --query "$tmp/two.sql" -- hostile-names.knowable.yaml >/dev/null 2>"$tmp/q.err"
+        rc=$?
+        sed 's/^/    /' "$tmp/q.err"
+        [ "$rc" = 2 ] || fail "a query of two statements: exit $rc, expected 2"
+        [ "$(wc -l <"$tmp/q.err")" = 1 ] && grep -q "SQLSTATE" "$tmp/q.err" ||
+            fail "the driver's message is not one line with its SQLSTATE"
+        if grep -qF '\n' "$tmp/q.err"; then fail "an escaped line break in the driver's message"; fi
     fi
     if grep -q "$pw_reader" "$tmp/c.out" "$tmp/c.err"; then fail "the password was printed"; fi
 else
