@@ -2,6 +2,8 @@
 #include "names.h"
 
 #include <string.h>
+#include <sys/random.h>
+#include <time.h>
 
 #include "hash.h"
 
@@ -39,9 +41,25 @@ kn_name_map *kn_names_new(kn_arena *a)
     return kn_names_new_sized(a, 0);
 }
 
+uint64_t kn_hash_seed(void)
+{
+    static uint64_t seed;
+    static bool drawn;
+    if (!drawn) {
+        if (getrandom(&seed, sizeof seed, GRND_NONBLOCK) != (ssize_t)sizeof seed) {
+            struct timespec ts;
+            clock_gettime(CLOCK_MONOTONIC, &ts);
+            seed = (uint64_t)ts.tv_nsec ^ ((uint64_t)ts.tv_sec << 32) ^ (uint64_t)(uintptr_t)&ts;
+        }
+        seed ^= KN_HASH_INIT;
+        drawn = true;
+    }
+    return seed;
+}
+
 static uint64_t hash_name(const char *s)
 {
-    return kn_hash_bytes(KN_HASH_INIT, s, strlen(s));
+    return kn_hash_keyed(s, strlen(s));
 }
 
 static slot *find(slot *slots, size_t cap, const char *name, uint64_t h)

@@ -312,11 +312,15 @@ static void check_duplicates(loader *ld, kn_node *map)
 {
     size_t n = map->u.map.n;
     kn_pair *pairs = map->u.map.pairs;
-    /* A large mapping (the columns) gets an open-addressing set of pair
-     * numbers, at most half full: 16 to 32 bytes a key, where a name map
-     * took 40 to 72 and hashed each key again with strlen. */
+    /* A large mapping (the columns) gets an open-addressing set, at most
+     * half full, of each key's pair number and keyed hash (kn_hash_keyed:
+     * keys crafted to share a slot cannot be, so a lookup stays short). */
+    typedef struct {
+        uint64_t hash;
+        size_t pair; /* its number + 1; 0: empty */
+    } entry;
     size_t cap = 0;
-    size_t *set = NULL;
+    entry *set = NULL;
     if (n > 8) {
         cap = 16;
         while (cap < 2 * n) {
@@ -331,14 +335,16 @@ static void check_duplicates(loader *ld, kn_node *map)
         }
         kn_node *first = NULL;
         if (set) {
-            size_t h = (size_t)kn_hash_bytes(KN_HASH_INIT, k->u.scalar.text, k->u.scalar.len) & (cap - 1);
-            while (set[h] && !same_key(pairs[set[h] - 1].key, k)) {
+            uint64_t hash = kn_hash_keyed(k->u.scalar.text, k->u.scalar.len);
+            size_t h = (size_t)hash & (cap - 1);
+            while (set[h].pair && !(set[h].hash == hash && same_key(pairs[set[h].pair - 1].key, k))) {
                 h = (h + 1) & (cap - 1);
             }
-            if (set[h]) {
-                first = pairs[set[h] - 1].key;
+            if (set[h].pair) {
+                first = pairs[set[h].pair - 1].key;
             } else {
-                set[h] = i + 1;
+                set[h].hash = hash;
+                set[h].pair = i + 1;
             }
         } else {
             for (size_t j = 0; j < i; j++) {
