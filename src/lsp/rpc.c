@@ -97,6 +97,7 @@ kn_rpc_result kn_rpc_read(FILE *in, size_t max, char **body, size_t *len)
 {
     char line[MAX_LINE + 1];
     bool have = false, bad = false, length_ok = false;
+    bool junk = false; /* a line of this block is no header at all */
     size_t length = 0, lines = 0, n;
     for (;;) {
         int r = read_line(in, line, &n);
@@ -108,7 +109,7 @@ kn_rpc_result kn_rpc_read(FILE *in, size_t max, char **body, size_t *len)
             /* Start afresh at the header; what came before is dropped. */
             memmove(line, line + at, n - at + 1);
             n -= at;
-            have = bad = length_ok = false;
+            have = bad = length_ok = junk = false;
             lines = 0;
             r = 0;
         }
@@ -130,10 +131,16 @@ kn_rpc_result kn_rpc_read(FILE *in, size_t max, char **body, size_t *len)
         }
         const char *colon = memchr(line, ':', n);
         if (!colon) {
-            bad = true;
+            bad = junk = true;
             continue;
         }
         if ((size_t)(colon - line) == 14 && strncasecmp(line, "Content-Length", 14) == 0) {
+            if (junk) {
+                /* The remainder of a body ended in a line end: the stream
+                 * picks up again at this header, as on the same line. */
+                have = bad = length_ok = junk = false;
+                lines = 1;
+            }
             /* The same length twice is one length (as HTTP allows);
              * two different ones leave the body's end unknown. */
             size_t again;
