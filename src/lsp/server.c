@@ -614,22 +614,23 @@ static bool apply_changes(kn_doc *d, json_t *changes)
             return false;
         }
     }
+    /* A change can still fail below (the text would outgrow the bound):
+     * then the document goes back to its text before the list, so that it
+     * never holds part of an edit the client made whole. */
+    char *before = kn_lsp_xstrndup(d->text, d->len);
+    size_t before_len = d->len;
+    bool ok = true;
     json_array_foreach(changes, i, ch)
     {
         json_t *text = json_object_get(ch, "text");
-        if (!json_is_string(text)) {
-            return false;
-        }
         json_t *range = json_object_get(ch, "range");
         if (!range) {
             kn_doc_set_text(d, json_string_value(text), json_string_length(text));
             continue;
         }
         long l0, c0, l1, c1;
-        if (!position_of(json_object_get(range, "start"), &l0, &c0) ||
-            !position_of(json_object_get(range, "end"), &l1, &c1)) {
-            return false;
-        }
+        position_of(json_object_get(range, "start"), &l0, &c0);
+        position_of(json_object_get(range, "end"), &l1, &c1);
         size_t a = kn_doc_offset(d, l0, c0), b = kn_doc_offset(d, l1, c1);
         if (b < a) {
             size_t t = a;
@@ -638,7 +639,8 @@ static bool apply_changes(kn_doc *d, json_t *changes)
         }
         size_t tl = json_string_length(text), n = d->len - (b - a) + tl;
         if (n > KN_RPC_MAX_BODY) {
-            return false;
+            ok = false;
+            break;
         }
         char *buf = kn_lsp_xmalloc(n + 1);
         memcpy(buf, d->text, a);
@@ -647,7 +649,11 @@ static bool apply_changes(kn_doc *d, json_t *changes)
         kn_doc_set_text(d, buf, n);
         free(buf);
     }
-    return true;
+    if (!ok) {
+        kn_doc_set_text(d, before, before_len);
+    }
+    free(before);
+    return ok;
 }
 
 /* A request about a position in an open document. */
