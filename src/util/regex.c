@@ -18,6 +18,8 @@ struct kn_regex {
     pcre2_match_data *md;
     pcre2_match_context *mctx;
     bool jit;
+    bool may_jit;    /* the JIT is worth trying once the pattern has been used enough */
+    unsigned uses;   /* matches so far, counted up to LAZY_JIT_USES */
     kn_regex_budget budget;
     bool spent; /* the budget ran out: every later match answers KN_MATCH_LIMIT */
     kn_regex_limits limits;
@@ -30,6 +32,14 @@ struct kn_regex {
  * rulebook of many patterns does not reserve a megabyte for each: 50,000
  * patterns once reserved 50 GB of address space. */
 #define JIT_STACK_MAX (1024 * 1024)
+
+/* A pattern is compiled by the JIT on its this-many-th match, not when it
+ * is compiled: the JIT costs about 100 matches' worth of time and maps
+ * pages of its own, and most patterns of a rulebook match a handful of
+ * names on a small schema (the built-in rulebook's patterns took more than
+ * half of a 1-column check's instructions).  Until then the interpreter
+ * runs, under the same limits. */
+#define LAZY_JIT_USES 64
 
 static _Thread_local pcre2_jit_stack *shared_jit_stack;
 static _Thread_local bool shared_jit_tried;
@@ -114,17 +124,36 @@ static kn_regex *finish(kn_arena *a, kn_regex *re)
     }
     d->ptr = re->mctx;
 
-    size_t jit_size = 0;
-    if (pcre2_pattern_info(re->code, PCRE2_INFO_JITSIZE, &jit_size) == 0 && jit_size > 0) {
-        re->jit = true;
-        pcre2_jit_stack *st = jit_stack();
-        if (st) {
-            pcre2_jit_stack_assign(re->mctx, NULL, st);
-        }
-    }
     kn_regex_limits_default(&re->limits);
     apply_limits(re);
     return re;
+}
+
+/* Lets the matches use re's JIT code when it has some. */
+static void adopt_jit(kn_regex *re)
+{
+    size_t jit_size = 0;
+    if (pcre2_pattern_info(re->code, PCRE2_INFO_JITSIZE, &jit_size) != 0 || jit_size == 0) {
+        return;
+    }
+    re->jit = true;
+    pcre2_jit_stack *st = jit_stack();
+    if (st) {
+        pcre2_jit_stack_assign(re->mctx, NULL, st);
+    }
+}
+
+/* Compiles re by the JIT when the library has one.  A pattern the JIT
+ * cannot take (rare), or memory the JIT cannot get, leaves the interpreter
+ * to match, under the same limits. */
+static void use_jit(kn_regex *re)
+{
+    re->may_jit = false;
+    uint32_t have_jit = 0;
+    if (pcre2_config(PCRE2_CONFIG_JIT, &have_jit) >= 0 && have_jit &&
+        pcre2_jit_compile(re->code, PCRE2_JIT_COMPLETE) == 0) {
+        adopt_jit(re);
+    }
 }
 
 kn_regex *kn_regex_compile(kn_arena *a, const char *pattern, size_t len, kn_regex_error *err)
@@ -148,20 +177,18 @@ kn_regex *kn_regex_compile(kn_arena *a, const char *pattern, size_t len, kn_rege
         return NULL;
     }
     d->ptr = re->code;
-    uint32_t have_jit = 0;
-    if (pcre2_config(PCRE2_CONFIG_JIT, &have_jit) >= 0 && have_jit) {
-        /* A pattern the JIT cannot take (rare) is still matched by the
-         * interpreter, under the same limits. */
-        (void)pcre2_jit_compile(re->code, PCRE2_JIT_COMPLETE);
-    }
-    return finish(a, re);
+    finish(a, re);
+    re->may_jit = true;
+    return re;
 }
 
 kn_regex *kn_regex_wrap(kn_arena *a, void *code)
 {
     kn_regex *re = kn_alloc(a, sizeof *re);
     re->code = code;
-    return finish(a, re);
+    finish(a, re);
+    adopt_jit(re); /* the caller's JIT code, if it made some */
+    return re;
 }
 
 void kn_regex_set_limits(kn_regex *re, const kn_regex_limits *l)
@@ -239,6 +266,9 @@ kn_match kn_regex_match(kn_regex *re, const char *subject, size_t len, size_t sp
         return KN_MATCH_LIMIT;
     }
     re->problem[0] = '\0';
+    if (re->may_jit && ++re->uses >= LAZY_JIT_USES) {
+        use_jit(re);
+    }
     uint64_t start = kn_regex_clock();
     /* pcre2_jit_match skips pcre2_match's checks (a third of the cost of a
      * match on a short name), which is safe once the subject is known to be
