@@ -57,6 +57,10 @@ typedef struct loader {
     size_t len;
     const kn_yaml_limits *lim;
     lines ln;
+    /* The lines an editor counts ("\n", "\r\n", a lone "\r"), made only
+     * when the file holds NEL, LS or PS, which libyaml (YAML 1.1) counts
+     * as breaks and editors do not: positions are then given in these. */
+    lines eln;
     kn_vec *frames;   /* frame */
     kn_vec *children; /* kn_node * */
     kn_vec *weights;  /* uint64_t, parallel to children */
@@ -73,15 +77,18 @@ typedef struct loader {
 } loader;
 
 /* The byte length of a line break at p that libyaml counts as one: "\r\n",
- * "\n", a lone "\r", and NEL, LS and PS (U+0085, U+2028, U+2029); 0 when
- * there is none. */
-static size_t break_at(const char *p, const char *end)
+ * "\n", a lone "\r", and (when unicode) NEL, LS and PS (U+0085, U+2028,
+ * U+2029); 0 when there is none. */
+static size_t break_at(const char *p, const char *end, bool unicode)
 {
     if (*p == '\n') {
         return 1;
     }
     if (*p == '\r') {
         return p + 1 < end && p[1] == '\n' ? 2 : 1;
+    }
+    if (!unicode) {
+        return 0;
     }
     if (end - p >= 2 && memcmp(p, "\xC2\x85", 2) == 0) {
         return 2;
@@ -105,6 +112,29 @@ static bool holds(const char *buf, size_t len, const char *seq, size_t n)
     return false;
 }
 
+/* Indexes the line starts after every break break_at finds. */
+static void index_breaks(loader *ld, lines *ix, bool unicode)
+{
+    const char *end = ld->buf + ld->len;
+    size_t n = 1;
+    for (const char *p = ld->buf; p < end;) {
+        size_t b = break_at(p, end, unicode);
+        n += b > 0;
+        p += b ? b : 1;
+    }
+    ix->start = kn_alloc_array(ld->arena, n, sizeof(size_t));
+    ix->n = n;
+    size_t k = 0;
+    ix->start[k++] = 0;
+    for (const char *p = ld->buf; p < end;) {
+        size_t b = break_at(p, end, unicode);
+        p += b ? b : 1;
+        if (b) {
+            ix->start[k++] = (size_t)(p - ld->buf);
+        }
+    }
+}
+
 static void index_lines(loader *ld)
 {
     /* libyaml's line numbers (mark.line) count every break break_at knows;
@@ -114,24 +144,13 @@ static void index_lines(loader *ld)
     bool unicode_breaks =
         !ld->ascii && (holds(ld->buf, ld->len, "\xC2\x85", 2) || holds(ld->buf, ld->len, "\xE2\x80\xA8", 3) ||
                        holds(ld->buf, ld->len, "\xE2\x80\xA9", 3));
-    if (unicode_breaks || memchr(ld->buf, '\r', ld->len)) {
-        size_t n = 1;
-        for (const char *p = ld->buf; p < end;) {
-            size_t b = break_at(p, end);
-            n += b > 0;
-            p += b ? b : 1;
-        }
-        ld->ln.start = kn_alloc_array(ld->arena, n, sizeof(size_t));
-        ld->ln.n = n;
-        size_t k = 0;
-        ld->ln.start[k++] = 0;
-        for (const char *p = ld->buf; p < end;) {
-            size_t b = break_at(p, end);
-            p += b ? b : 1;
-            if (b) {
-                ld->ln.start[k++] = (size_t)(p - ld->buf);
-            }
-        }
+    if (unicode_breaks) {
+        index_breaks(ld, &ld->ln, true);
+        index_breaks(ld, &ld->eln, false);
+        return;
+    }
+    if (memchr(ld->buf, '\r', ld->len)) {
+        index_breaks(ld, &ld->ln, false);
         return;
     }
     /* memchr rather than a loop over bytes: this reads the whole file twice. */
@@ -167,6 +186,34 @@ static bool all_ascii(const char *buf, size_t len)
     return true;
 }
 
+/* Position of a byte offset (reader errors carry only an offset). */
+static kn_pos offset_pos(const loader *ld, size_t off)
+{
+    kn_pos p = {ld->display, 1, 1, off};
+    if (off > ld->len) {
+        off = ld->len;
+    }
+    const lines *ix = ld->eln.n ? &ld->eln : &ld->ln;
+    size_t lo = 0, hi = ix->n;
+    while (hi - lo > 1) {
+        size_t mid = (lo + hi) / 2;
+        if (ix->start[mid] <= off) {
+            lo = mid;
+        } else {
+            hi = mid;
+        }
+    }
+    p.line = (uint32_t)(lo + 1);
+    uint32_t col = 1;
+    for (size_t i = ix->start[lo]; i < off; i++) {
+        if (((unsigned char)ld->buf[i] & 0xc0) != 0x80) {
+            col++;
+        }
+    }
+    p.col = col;
+    return p;
+}
+
 /* The one place where libyaml's 0-based marks become 1-based positions. */
 static kn_pos mark_pos(loader *ld, yaml_mark_t m)
 {
@@ -193,37 +240,13 @@ static kn_pos mark_pos(loader *ld, yaml_mark_t m)
             }
         }
     }
-    p.offset = off;
     ld->last_line = m.line;
     ld->last_col = c;
     ld->last_off = off;
-    return p;
-}
-
-/* Position of a byte offset (reader errors carry only an offset). */
-static kn_pos offset_pos(const loader *ld, size_t off)
-{
-    kn_pos p = {ld->display, 1, 1, off};
-    if (off > ld->len) {
-        off = ld->len;
+    if (ld->eln.n) {
+        return offset_pos(ld, off); /* an editor's line and column */
     }
-    size_t lo = 0, hi = ld->ln.n;
-    while (hi - lo > 1) {
-        size_t mid = (lo + hi) / 2;
-        if (ld->ln.start[mid] <= off) {
-            lo = mid;
-        } else {
-            hi = mid;
-        }
-    }
-    p.line = (uint32_t)(lo + 1);
-    uint32_t col = 1;
-    for (size_t i = ld->ln.start[lo]; i < off; i++) {
-        if (((unsigned char)ld->buf[i] & 0xc0) != 0x80) {
-            col++;
-        }
-    }
-    p.col = col;
+    p.offset = off;
     return p;
 }
 
@@ -479,6 +502,28 @@ static void parser_error(loader *ld, yaml_parser_t *p)
     const char *context = p->context;
     if (context) {
         cpos = mark_pos(ld, p->context_mark);
+    }
+    /* A problem on a line that NEL, LS or PS began (a break to YAML 1.1,
+     * none to an editor) is shown that break. */
+    const char *which = NULL;
+    if (ld->eln.n && p->error != YAML_READER_ERROR && p->problem_mark.line > 0 &&
+        p->problem_mark.line < ld->ln.n) {
+        size_t at = ld->ln.start[p->problem_mark.line];
+        if (at >= 2 && memcmp(ld->buf + at - 2, "\xC2\x85", 2) == 0) {
+            which = "a next-line character (U+0085)";
+            at -= 2;
+        } else if (at >= 3 && memcmp(ld->buf + at - 3, "\xE2\x80\xA8", 3) == 0) {
+            which = "a line separator (U+2028)";
+            at -= 3;
+        } else if (at >= 3 && memcmp(ld->buf + at - 3, "\xE2\x80\xA9", 3) == 0) {
+            which = "a paragraph separator (U+2029)";
+            at -= 3;
+        }
+        if (which) {
+            cpos = offset_pos(ld, at);
+            context = kn_printf(ld->arena, "%s here ends a line for YAML 1.1, which knowable reads, though not "
+                                           "in most editors", which);
+        }
     }
     /* A tab where a token should start is, nearly always, indentation. */
     if (p->error == YAML_SCANNER_ERROR && pos.offset < ld->len && ld->buf[pos.offset] == '\t') {
