@@ -26,9 +26,11 @@ static void shared(kn_dx *x)
         if (o.shared_keys && o.train_rows && o.test_rows) {
             kn_pos p = kn_dx_pos(x, o.first_test_line, 0);
             kn_diag *d = kn_diag_push(x->sink, KN_R_ROWS_SHARED_ACROSS_SPLIT, &p, sc->name,
-                                      "%zu of %zu test rows repeat the feature values of a training row exactly (%zu "
-                                      "distinct rows over %zu features); the first is here",
-                                      o.test_rows_shared, o.test_rows, o.shared_keys, t->n_features);
+                                      "%zu of %zu test rows %s the feature values of a training row exactly (%zu "
+                                      "distinct row%s over %zu feature%s); the first is here",
+                                      o.test_rows_shared, o.test_rows, o.test_rows_shared == 1 ? "repeats" : "repeat",
+                                      o.shared_keys, o.shared_keys == 1 ? "" : "s", t->n_features,
+                                      t->n_features == 1 ? "" : "s");
             kn_diag_key(x->sink, d, "shared rows %s", sc->name);
             if (o.first_key && x->key_name) {
                 kn_diag_note(x->sink, d, NULL, "the repeated test row with the least key: '%s' = '%.60s'", x->key_name,
@@ -50,9 +52,10 @@ static void shared(kn_dx *x)
             const kn_column *ec = KN_REF_COLUMN(s->prediction.entity);
             kn_pos p = kn_dx_pos(x, o.first_test_line, 0);
             kn_diag *d = kn_diag_push(x->sink, KN_R_ENTITY_IN_BOTH_SPLITS, &p, ec->name,
-                                      "%zu values of the entity '%s' have rows in training and in test (%zu of %zu "
+                                      "%zu value%s of the entity '%s' %s rows in training and in test (%zu of %zu "
                                       "test rows); the first such test row is here",
-                                      o.shared_keys, ec->name, o.test_rows_shared, o.test_rows);
+                                      o.shared_keys, o.shared_keys == 1 ? "" : "s", ec->name,
+                                      o.shared_keys == 1 ? "has" : "have", o.test_rows_shared, o.test_rows);
             kn_diag_key(x->sink, d, "entity both %s", ec->name);
             if (s->split.method == KN_SPLIT_GROUP || s->split.method == KN_SPLIT_GROUP_TIME) {
                 /* The schema says the split keeps groups whole: the data says

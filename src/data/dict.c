@@ -61,7 +61,7 @@ uint32_t kn_dict_id(kn_dict *d, const char *s, size_t len)
     uint64_t w, h;
     if (len <= 8) {
         w = kn_short_word(s, len);
-        h = kn_mix64(w ^ ((uint64_t)len << 58) ^ UINT64_C(0x9e3779b97f4a7c15));
+        h = kn_mix64(w ^ ((uint64_t)len << 58) ^ kn_hash_seed()); /* seeded: the slots cannot be chosen */
     } else {
         memcpy(&w, s, 8);
         h = kn_hash_finish(kn_hash_field(KN_HASH_START, s, len));

@@ -3,7 +3,11 @@
  * quasi-identifier tuples).  Inline because it runs once per cell.
  *
  * A row or tuple is hashed by kn_hash_field over each field in order, from
- * KN_HASH_START, then kn_hash_finish.  The length goes in with each field,
+ * KN_HASH_START, then kn_hash_finish.  KN_HASH_START is the process's seed
+ * (kn_hash_seed): a file cannot be crafted to collide (a block equal to the
+ * chain's state would zero it, and the multiply is invertible) without
+ * knowing it, and no output depends on a hash's value or on a table's
+ * order (ties go to the lowest line).  The length goes in with each field,
  * so ("ab", "c") and ("a", "bc") differ.  Tuples are compared by these 64
  * bits alone: two distinct tuples collide with a chance of about
  * n^2 / 2^65 for n distinct tuples (3e-8 for a million). */
@@ -14,7 +18,9 @@
 #include <stdint.h>
 #include <string.h>
 
-#define KN_HASH_START UINT64_C(0)
+#include "../util/hash.h"
+
+#define KN_HASH_START kn_hash_seed()
 
 /* The splitmix64 finaliser (Steele, Lea and Flood, 2014): every output bit
  * depends on every input bit. */

@@ -138,7 +138,7 @@ def check_exact_counts(knowable, tmp, bad):
     test = pd.MultiIndex.from_frame(df.loc[df.split == "test", feats])
     shared = test.isin(train)
     want = (int(shared.sum()), len(test), len(set(test[shared])))
-    m = re.search(r"(\d+) of (\d+) test rows repeat .* \((\d+) distinct rows",
+    m = re.search(r"(\d+) of (\d+) test rows repeats? .* \((\d+) distinct rows?",
                   msgs.get("rows-shared-across-split", ""))
     got = tuple(int(g) for g in m.groups()) if m else None
     if got != want:
@@ -146,7 +146,7 @@ def check_exact_counts(knowable, tmp, bad):
     # reference: pandas, entities with rows on both sides
     both = set(df.owner[df.split == "train"]) & set(df.owner[df.split == "test"])
     want = (len(both), int(df[(df.split == "test") & df.owner.isin(both)].shape[0]), len(test))
-    m = re.search(r"(\d+) values of the entity 'owner' have rows in training and in test \((\d+) of (\d+)",
+    m = re.search(r"(\d+) values? of the entity 'owner' (?:has|have) rows in training and in test \((\d+) of (\d+)",
                   msgs.get("entity-in-both-splits", ""))
     got = tuple(int(g) for g in m.groups()) if m else None
     if got != want:
