@@ -57,6 +57,8 @@ typedef struct kn_options {
     size_t n_rulebooks;
     const char *data;           /* --data CSV, or NULL */
     long long max_rows;         /* --max-rows; 0: default (1,000,000) */
+    long long max_groups;       /* --max-groups: rows read per query from a
+                                   database; 0: default (20,000) */
     uint64_t seed;              /* reservoir sampling seed */
     const char *baseline;       /* --baseline */
     const char *write_baseline; /* --write-baseline */

@@ -283,7 +283,7 @@ kn_status kn_sql(const kn_options *o, const char *schema, FILE *out, FILE *err)
     }
     kn_sql_plan plan;
     kn_sql_make(a, u->schema, u->rulebook, o->table, query_sql, d,
-                o->max_rows > 0 ? (unsigned long long)o->max_rows : KN_SQL_MAX_GROUPS, &plan);
+                o->max_groups > 0 ? (unsigned long long)o->max_groups : KN_SQL_MAX_GROUPS, o->seed, &plan);
     FILE *doc = kn_run_open_output(&r, o->output, out, false);
     if (!doc) {
         return end(&r, KN_EXIT_FAILED);

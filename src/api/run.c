@@ -197,7 +197,7 @@ void kn_run_analyse(kn_run *r, kn_unit *u)
     kn_check_preparation(&ctx, s, u->timeline);
     if (r->opt->data && r->database) {
         kn_check_database(&ctx, s, r->opt->data, r->opt->table, r->opt->query, r->query_sql, r->opt->max_rows,
-                          r->opt->seed, r->err);
+                          r->opt->max_groups, r->opt->seed, r->err);
     } else if (r->opt->data) {
         kn_check_data(&ctx, s, r->opt->data, r->opt->max_rows, r->opt->seed);
     }

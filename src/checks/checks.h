@@ -58,12 +58,15 @@ void kn_check_data(kn_ctx *c, const kn_schema *s, const char *csv_path, long lon
  * the "odbc:..." connection, with table (a name, schema.table allowed) or
  * query_sql (the rows of a query, read from the file query_label).  The engine scans the rows and sends
  * back aggregates only (src/data/sql.c); the statistics are finished by
- * the code of the CSV path (src/data/stats.c, data_stats.c).  max_rows (0:
- * KN_SQL_MAX_GROUPS) bounds the rows the client reads per query.
+ * the code of the CSV path (src/data/stats.c, data_stats.c).  The
+ * counted rules count every row; the statistics read a sample of about
+ * max_rows rows (0: 1,000,000, as for a file) drawn by the engine from
+ * seed when the table has more.  max_groups (0: KN_SQL_MAX_GROUPS) bounds
+ * the rows the client reads per query.
  * Findings point at "odbc:<connection, password masked>/<table>".  A
  * connection or SQL error goes to err with the driver's message and marks
  * the sink fatal (exit 2). */
 void kn_check_database(kn_ctx *c, const kn_schema *s, const char *data, const char *table, const char *query_label,
-                       const char *query_sql, long long max_rows, uint64_t seed, FILE *err);
+                       const char *query_sql, long long max_rows, long long max_groups, uint64_t seed, FILE *err);
 
 #endif

@@ -16,8 +16,6 @@
 #include "../util/text.h"
 #include "data_rules.h"
 
-#define DEFAULT_MAX_ROWS 1000000LL
-
 /* Edit distances computed for "did you mean" over the whole header: past
  * this, undeclared columns get no suggestion (a header of 100,000 unknown
  * names must not cost 10^10 comparisons). */
@@ -61,11 +59,13 @@ void kn_dx_note_sample(kn_dx *x, kn_diag *d)
 {
     if (x->t.weight) {
         /* a database: groups over every row, unless the engine sampled */
-        if (x->sampled_of > x->t.rows) {
+        uint64_t n = x->sample_rows ? x->sample_rows : x->t.rows;
+        if (x->sampled_of > n) {
             kn_diag_note(x->sink, d, NULL,
-                         "computed on a random sample of %llu of the %llu rows, drawn by the engine (--max-rows %lld); "
-                         "counts refer to the sample",
-                         (unsigned long long)x->t.rows, (unsigned long long)x->sampled_of, x->max_rows);
+                         "computed on a random sample of %llu of the %llu rows, drawn by the engine the same way "
+                         "every run (--max-rows %lld, seed %llu); counts refer to the sample",
+                         (unsigned long long)n, (unsigned long long)x->sampled_of, x->max_rows,
+                         (unsigned long long)x->seed);
         }
         return;
     }
@@ -233,7 +233,7 @@ void kn_check_data(kn_ctx *c, const kn_schema *s, const char *csv_path, long lon
     x.path = csv_path;
     x.a = c->arena;
     x.sink = c->sink;
-    x.max_rows = max_rows > 0 ? max_rows : DEFAULT_MAX_ROWS;
+    x.max_rows = max_rows > 0 ? max_rows : KN_DATA_MAX_ROWS;
     x.seed = seed;
     x.t.a = x.a;
     x.t.max_rows = (size_t)x.max_rows;

@@ -19,6 +19,11 @@
  *     a value of another type), and an identifier of a table larger than
  *     that is read from a random sample of about as many rows, drawn by
  *     the engine;
+ *   - on a table of more rows than --max-rows (default 1,000,000, as for a
+ *     file) the statistics read a sample of about --max-rows rows, drawn
+ *     by the engine the same way every run (kn_sql_sample_query), as the
+ *     CSV path computes them on a sample of as many; the value checks
+ *     and the counted rules below still count every row;
  *   - timestamp-after-moment, rows-shared-across-split,
  *     entity-in-both-splits and small-quasi-identifier-groups are counted
  *     by the engine over every row and finished by data_values.c and
@@ -35,12 +40,23 @@
 #include "../util/regex.h"
 #include "data_rules.h"
 
+/* Where a query reads its rows: the table (or --query), or a sample of
+ * it; seed_sql, when set, runs before each query on it. */
+typedef struct source {
+    const char *table, *query_sql, *seed_sql;
+} source;
+
 typedef struct db_run {
     kn_dx x; /* the whole table: header, roles, counted rules */
     kn_db *db;
     kn_sql_dialect d;
     const char *table, *query_sql, *shown;
     unsigned long long cap; /* groups read per query */
+    source all;             /* every row */
+    source stats;           /* the statistics' rows: all, or a sample of about max_rows */
+    bool sampled;           /* stats is a sample */
+    uint64_t sample_rows;   /* its rows */
+    int tablesample;        /* PostgreSQL's TABLESAMPLE works on the table: 1, not: -1, not tried: 0 */
     bool target_wide;       /* the target has more values than cap */
     const char *key;        /* the key column's name, or NULL */
     /* a binary target of two raw values, for the engine's rank sum */
@@ -111,6 +127,37 @@ static kn_db_rows *query(db_run *r, const char *sql, const char *what)
         failed(r);
     }
     return q;
+}
+
+/* A query on the rows of src: its seed first, where it has one. */
+static kn_db_rows *query_on(db_run *r, const source *src, const char *sql, const char *what)
+{
+    if (src->seed_sql) {
+        kn_db_rows *q = query(r, src->seed_sql, "cannot seed the engine's random numbers");
+        if (!q) {
+            return NULL;
+        }
+        while (kn_db_next(q)) {
+        }
+        kn_db_done(q);
+    }
+    return query(r, sql, what);
+}
+
+/* A sample of the table, each row kept with probability p, the same rows
+ * every run: on PostgreSQL by TABLESAMPLE where the table takes it (not a
+ * view), else by the seeded random(). */
+static void sample_of(db_run *r, double p, source *out)
+{
+    kn_arena *a = r->x.a;
+    if (r->d == KN_SQL_POSTGRESQL && r->table && !r->tablesample) {
+        const char *probe =
+            kn_sql_columns_query(a, r->d, NULL, kn_sql_sample_query(a, r->d, r->table, NULL, p, r->x.seed, true));
+        r->tablesample = kn_db_try(r->db, probe) ? 1 : -1;
+    }
+    out->table = NULL;
+    out->query_sql = kn_sql_sample_query(a, r->d, r->all.table, r->all.query_sql, p, r->x.seed, r->tablesample > 0);
+    out->seed_sql = r->tablesample > 0 ? NULL : kn_sql_seed_query(a, r->d, r->x.seed);
 }
 
 /* ---- one column's tables ------------------------------------------------------ */
@@ -348,7 +395,7 @@ static bool stream_values(db_run *r, size_t i)
     kn_defer *rel;
     kn_arena *ca = kn_arena_child(r->x.a, &rel);
     column_table(r, &vx, ca, dst, r->x.decl[i], false, true);
-    kn_db_rows *q = query(r, kn_sql_groups_query(ca, r->d, r->table, r->query_sql, dst->name, NULL, 0, 0, 0),
+    kn_db_rows *q = query(r, kn_sql_groups_query(ca, r->d, r->table, r->query_sql, dst->name, NULL, 0),
                           kn_printf(ca, "cannot read the values of '%s'", dst->name));
     firsts f = {0};
     bool wide;
@@ -366,7 +413,7 @@ static bool stream_values(db_run *r, size_t i)
  * counted (an engine that compares the target's text otherwise than it
  * sent it gives no AUC, and the statistic is skipped); *done says whether
  * the missing rows were read. */
-static bool rank_sum(db_run *r, kn_dx *cx, kn_db_type kind, bool *done)
+static bool rank_sum(db_run *r, const source *src, kn_dx *cx, kn_db_type kind, bool *done)
 {
     kn_tcol *c = &cx->t.cols[0];
     int p = r->raw_positive[0] ? 0 : 1;
@@ -375,10 +422,10 @@ static bool rank_sum(db_run *r, kn_dx *cx, kn_db_type kind, bool *done)
         (null_only(r, r->target_kind) && r->target_kind != KN_DB_NUMBER ? KN_SQL_TARGET_NULL_ONLY : 0) |
         (c->type == KN_TYPE_NUMBER ? KN_SQL_COL_FLOAT : 0);
     kn_db_rows *q =
-        query(r,
-              kn_sql_rank_sum_query(cx->a, r->d, r->x.ctx->rulebook, r->table, r->query_sql, c->name,
-                                    r->x.t.target->name, r->raw[p], r->raw[1 - p], nulls),
-              kn_printf(cx->a, "cannot rank the values of '%s'", c->name));
+        query_on(r, src,
+                 kn_sql_rank_sum_query(cx->a, r->d, r->x.ctx->rulebook, src->table, src->query_sql, c->name,
+                                       r->x.t.target->name, r->raw[p], r->raw[1 - p], nulls),
+                 kn_printf(cx->a, "cannot rank the values of '%s'", c->name));
     *done = false;
     if (!q) {
         return false;
@@ -421,12 +468,12 @@ static bool rank_sum(db_run *r, kn_dx *cx, kn_db_type kind, bool *done)
 
 /* A wide feature's missing rows per target value, as two groups per
  * class (missing, present) for missingness-predicts. */
-static bool missing_groups(db_run *r, kn_dx *cx, const kn_tcol *c, kn_db_type kind)
+static bool missing_groups(db_run *r, const source *src, kn_dx *cx, const kn_tcol *c, kn_db_type kind)
 {
-    kn_db_rows *q = query(r,
-                          kn_sql_missing_query(cx->a, r->d, r->x.ctx->rulebook, r->table, r->query_sql,
-                                               c->name, r->x.t.target->name, null_only(r, kind)),
-                          kn_printf(cx->a, "cannot count the missing values of '%s'", c->name));
+    kn_db_rows *q = query_on(r, src,
+                             kn_sql_missing_query(cx->a, r->d, r->x.ctx->rulebook, src->table, src->query_sql,
+                                                  c->name, r->x.t.target->name, null_only(r, kind)),
+                             kn_printf(cx->a, "cannot count the missing values of '%s'", c->name));
     if (!q) {
         return false;
     }
@@ -458,18 +505,43 @@ static bool missing_groups(db_run *r, kn_dx *cx, const kn_tcol *c, kn_db_type ki
     return !kn_db_failed(r->db);
 }
 
-/* One column: its groups, its value findings into the whole table, its
- * statistics. */
-static bool column_in(db_run *r, size_t i, kn_db_type kind, kn_arena *ca)
+/* Whether a column's values must be read to be checked: a type the
+ * engine's SQL type does not already guarantee, or a format. */
+static bool values_to_check(const db_run *r, const kn_tcol *c, kn_db_type kind)
+{
+    bool typed = c->type != KN_TYPE_UNSET || c->format;
+    return typed && (c->format || !typed_by_engine(r, c->type, kind));
+}
+
+/* A column's values over every row, for value-mismatch: its groups, or
+ * when it has more than the client reads, every distinct value streamed. */
+static bool values_in(db_run *r, size_t i, kn_db_type kind, kn_arena *ca)
+{
+    kn_tcol *c = &r->x.t.cols[i];
+    kn_dx cx;
+    firsts f = {0};
+    bool wide = false;
+    column_table(r, &cx, ca, c, r->x.decl[i], false, true);
+    kn_db_rows *q = query(r, kn_sql_groups_query(ca, r->d, r->table, r->query_sql, c->name, NULL, r->cap + 1),
+                          kn_printf(ca, "cannot read the values of '%s'", c->name));
+    if (!q || !feed(r, &cx, q, false, false, r->cap, &wide, &f)) {
+        return false;
+    }
+    if (!wide) {
+        take_values(r, c, &cx.t.cols[0], &f);
+        return true;
+    }
+    return !values_to_check(r, c, kind) || stream_values(r, i);
+}
+
+/* One column's statistics on the rows of src (every row, or the sample),
+ * with its value findings from the same groups when values (src is then
+ * every row). */
+static bool stats_in(db_run *r, size_t i, kn_db_type kind, kn_arena *ca, const source *src, bool values)
 {
     kn_dx *x = &r->x;
     kn_tcol *c = &x->t.cols[i];
     const kn_column *k = x->decl[i];
-    bool stats = x->t.target && !r->target_wide && (c->feature || c->identifier);
-    bool typed = c->type != KN_TYPE_UNSET || c->format;
-    if (!stats && (!typed || (!c->format && typed_by_engine(r, c->type, kind)))) {
-        return true; /* nothing to read: no statistic, and the engine's type keeps the values in type */
-    }
     kn_dx cx;
     firsts f = {0};
     bool wide = false;
@@ -479,7 +551,8 @@ static bool column_in(db_run *r, size_t i, kn_db_type kind, kn_arena *ca)
     bool engine_ordered =
         typed_by_engine(r, c->type, kind) &&
         (kind == KN_DB_NUMBER || kind == KN_DB_INTEGER || kind == KN_DB_TIMESTAMP || kind == KN_DB_DATE);
-    bool by_rank = stats && c->feature && numeric && engine_ordered && r->rank_ok;
+    bool by_rank = c->feature && numeric && engine_ordered && r->rank_ok;
+    uint64_t of = src == &r->stats && r->sampled ? x->t.rows : 0;
     if (by_rank && !c->format) {
         /* A number or an instant the engine keeps in type, against a
          * binary target: no value can fail its type, and one scan gives
@@ -489,84 +562,98 @@ static bool column_in(db_run *r, size_t i, kn_db_type kind, kn_arena *ca)
          * read as below. */
         column_table(r, &cx, ca, c, k, true, false);
         bool counted = false;
-        if (!rank_sum(r, &cx, kind, &counted)) {
+        if (!rank_sum(r, src, &cx, kind, &counted)) {
             return false;
         }
         if (counted && cx.t.cols[0].has_auc) {
+            cx.sampled_of = of;
+            cx.sample_rows = of ? r->sample_rows : 0;
             cx.target_said = x->target_said;
             kn_data_statistics(&cx);
             x->target_said = cx.target_said;
             return true;
         }
     }
-    if (stats && c->identifier && x->t.rows > r->cap) {
-        /* An identifier of a large table: a random sample of about cap
-         * rows (its segments are statistics); its values, when typed, are
-         * streamed for value-mismatch. */
-        column_table(r, &cx, ca, c, k, true, true);
-        cx.sampled_of = x->t.rows;
-        double p = (double)r->cap / (double)x->t.rows;
-        const char *seed = kn_sql_seed_query(x->a, r->d, x->seed);
-        kn_db_rows *q = seed ? query(r, seed, "cannot seed the engine's random numbers") : NULL;
-        if (seed && !q) {
+    column_table(r, &cx, ca, c, k, true, true);
+    kn_db_rows *q = query_on(r, src,
+                             kn_sql_groups_query(ca, r->d, src->table, src->query_sql, c->name,
+                                                 x->t.target->name, r->cap + 1),
+                             kn_printf(ca, "cannot read the values of '%s'", c->name));
+    if (!q || !feed(r, &cx, q, true, true, r->cap, &wide, values ? &f : NULL)) {
+        return false;
+    }
+    if (!wide && values) {
+        take_values(r, c, &cx.t.cols[0], &f);
+    } else if (wide) {
+        /* Too many groups to read: the values are checked by streaming
+         * them when the engine's type does not already guarantee them,
+         * the statistics finished by the engine. */
+        if (values && values_to_check(r, c, kind) && !stream_values(r, i)) {
             return false;
         }
-        if (q) {
-            while (kn_db_next(q)) {
-            }
-            kn_db_done(q);
+        if (c->identifier) {
+            return true; /* an identifier of so few rows has fewer groups (stats_of samples it) */
         }
-        q = query(r,
-                  kn_sql_groups_query(ca, r->d, r->table, r->query_sql, c->name, x->t.target->name,
-                                      2 * r->cap, p, x->seed),
-                  kn_printf(ca, "cannot read a sample of '%s'", c->name));
-        if (!q || !feed(r, &cx, q, true, true, 2 * r->cap, &wide, NULL)) {
+        column_table(r, &cx, ca, c, k, true, false);
+        cx.t.cols[0].wide = true;
+        bool counted = false;
+        if (by_rank && !rank_sum(r, src, &cx, kind, &counted)) {
             return false;
         }
-        if (typed && !stream_values(r, i)) {
+        if (!counted && !missing_groups(r, src, &cx, c, kind)) {
             return false;
-        }
-    } else {
-        column_table(r, &cx, ca, c, k, stats, true);
-        kn_db_rows *q = query(r,
-                              kn_sql_groups_query(ca, r->d, r->table, r->query_sql, c->name,
-                                                  stats ? x->t.target->name : NULL, r->cap + 1, 0, 0),
-                              kn_printf(ca, "cannot read the values of '%s'", c->name));
-        if (!q || !feed(r, &cx, q, stats, stats, r->cap, &wide, &f)) {
-            return false;
-        }
-        if (!wide) {
-            take_values(r, c, &cx.t.cols[0], &f);
-        } else {
-            /* Too many groups to read: the values are checked by
-             * streaming them when the engine's type does not already
-             * guarantee them, the statistics finished by the engine. */
-            if (typed && (c->format || !typed_by_engine(r, c->type, kind)) && !stream_values(r, i)) {
-                return false;
-            }
-            if (!stats) {
-                return true;
-            }
-            column_table(r, &cx, ca, c, k, true, false);
-            cx.t.cols[0].wide = true;
-            bool counted = false;
-            if (by_rank && !rank_sum(r, &cx, kind, &counted)) {
-                return false;
-            }
-            if (c->feature && !counted && !missing_groups(r, &cx, c, kind)) {
-                return false;
-            }
-            if (c->identifier) {
-                return true; /* cannot happen: an identifier of so few rows has fewer groups */
-            }
         }
     }
-    if (stats) {
+    cx.sampled_of = of;
+    cx.sample_rows = of ? r->sample_rows : 0;
+    cx.target_said = x->target_said;
+    kn_data_statistics(&cx);
+    x->target_said = cx.target_said;
+    return true;
+}
+
+/* One column: its value findings into the whole table, counted over every
+ * row, and its statistics, on the statistics' rows. */
+static bool column_in(db_run *r, size_t i, kn_db_type kind, kn_arena *ca)
+{
+    kn_dx *x = &r->x;
+    kn_tcol *c = &x->t.cols[i];
+    bool stats = x->t.target && !r->target_wide && (c->feature || c->identifier);
+    bool check = values_to_check(r, c, kind);
+    if (!stats) {
+        return !check || values_in(r, i, kind, ca);
+    }
+    /* An identifier's values are read group by group: on a table of more
+     * rows than the client reads, from a sample of about as many rows
+     * (its segments are statistics). */
+    unsigned long long id_rows = r->cap < (unsigned long long)x->max_rows ? r->cap : (unsigned long long)x->max_rows;
+    if (c->identifier && x->t.rows > id_rows) {
+        if (check && !values_in(r, i, kind, ca)) {
+            return false;
+        }
+        source sample;
+        sample_of(r, (double)id_rows / (double)x->t.rows, &sample);
+        kn_dx cx;
+        bool wide;
+        column_table(r, &cx, ca, c, x->decl[i], true, true);
+        cx.sampled_of = x->t.rows;
+        kn_db_rows *q = query_on(r, &sample,
+                                 kn_sql_groups_query(ca, r->d, NULL, sample.query_sql, c->name, x->t.target->name,
+                                                     2 * id_rows),
+                                 kn_printf(ca, "cannot read a sample of '%s'", c->name));
+        if (!q || !feed(r, &cx, q, true, true, 2 * id_rows, &wide, NULL)) {
+            return false;
+        }
         cx.target_said = x->target_said;
         kn_data_statistics(&cx);
         x->target_said = cx.target_said;
+        return true;
     }
-    return true;
+    if (r->sampled) {
+        /* the values over every row, the statistics on the sample */
+        return (!check || values_in(r, i, kind, ca)) && stats_in(r, i, kind, ca, &r->stats, false);
+    }
+    return stats_in(r, i, kind, ca, &r->all, true);
 }
 
 /* Each column's tables live in an arena of their own, freed once its
@@ -594,7 +681,7 @@ static bool target(db_run *r, size_t i, kn_db_type kind)
     bool wide;
     column_table(r, &cx, x->a, c, x->decl[i], false, true);
     kn_db_rows *q =
-        query(r, kn_sql_groups_query(x->a, r->d, r->table, r->query_sql, c->name, NULL, r->cap + 1, 0, 0),
+        query(r, kn_sql_groups_query(x->a, r->d, r->table, r->query_sql, c->name, NULL, r->cap + 1),
               kn_printf(x->a, "cannot read the values of the target '%s'", c->name));
     if (!q) {
         return false;
@@ -642,8 +729,8 @@ static bool target(db_run *r, size_t i, kn_db_type kind)
         r->target_wide = true;
         const char *why = kn_printf(x->a,
                                     "the target '%s' has more values than the client reads from the database "
-                                    "(--max-rows %lld)",
-                                    c->name, x->max_rows);
+                                    "(--max-groups %llu)",
+                                    c->name, r->cap);
         kn_sink_data_skip(x->sink, KN_R_LONE_FEATURE_SEPARATES, "", "all", why);
         kn_sink_data_skip(x->sink, KN_R_MISSINGNESS_PREDICTS, "", "all", why);
         kn_sink_data_skip(x->sink, KN_R_IDENTIFIER_SEGMENT_PREDICTS, "", "all", why);
@@ -676,6 +763,47 @@ static bool target(db_run *r, size_t i, kn_db_type kind)
             r->raw_positive[1] = !first_positive;
         }
     }
+    return true;
+}
+
+/* The target's rows per value in the sample: the sample's size, and the
+ * rows of the two raw values there (which the rank sums must add up to). */
+static bool sample_counts(db_run *r)
+{
+    kn_dx *x = &r->x;
+    kn_db_rows *q = query_on(r, &r->stats,
+                             kn_sql_groups_query(x->a, r->d, NULL, r->stats.query_sql, x->t.target->name, NULL,
+                                                 r->cap + 1),
+                             "cannot count the rows of the sample");
+    if (!q) {
+        return false;
+    }
+    uint64_t total = 0, got[2] = {0, 0};
+    while (kn_db_next(q)) {
+        uint64_t n;
+        if (!count_at(r, q, 1, &n) || n > x->t.rows - total) {
+            kn_db_done(q);
+            if (!kn_db_failed(r->db)) {
+                fputs("knowable: the database's sample has more rows than its table\n", r->err);
+            }
+            return false;
+        }
+        total += n;
+        size_t len;
+        const char *v = kn_db_get(q, 0, &len);
+        for (int k = 0; k < 2 && v; k++) {
+            if (r->raw[k] && strlen(r->raw[k]) == len && memcmp(r->raw[k], v, len) == 0) {
+                got[k] = n;
+            }
+        }
+    }
+    kn_db_done(q);
+    if (kn_db_failed(r->db)) {
+        return false;
+    }
+    r->sample_rows = total;
+    r->raw_rows[0] = got[0];
+    r->raw_rows[1] = got[1];
     return true;
 }
 
@@ -725,13 +853,13 @@ static bool late(db_run *r)
 /* One overlap query (kn_sql_overlap_query) into *res; with key (or an
  * entity) its first_key too. */
 static bool overlap_query(db_run *r, const char *const *cols, size_t n, bool entity, const char *key,
-                          kn_overlap_result *res)
+                          bool hash_rows, kn_overlap_result *res)
 {
     kn_dx *x = &r->x;
     kn_db_rows *q = query(r,
                           kn_sql_overlap_query(x->a, r->d, x->ctx->rulebook, r->table, r->query_sql,
                                                x->t.split->name, cols, n, entity, key,
-                                               r->have_sides ? &r->sides : NULL),
+                                               r->have_sides ? &r->sides : NULL, hash_rows),
                           entity ? "cannot count the entities on each side of the split"
                                  : "cannot count the feature rows on each side of the split");
     if (!q) {
@@ -766,12 +894,17 @@ static bool overlap_query(db_run *r, const char *const *cols, size_t n, bool ent
 static bool overlap(db_run *r, kn_overlap *o, const char *const *cols, size_t n, bool entity)
 {
     kn_overlap_result res;
-    if (!overlap_query(r, cols, n, entity, NULL, &res)) {
+    /* PostgreSQL's hash of a row needs version 14 and an extended hash
+     * for every column's type (money, xml and the geometric types have
+     * none): tried on one row first */
+    bool hash_rows = r->d == KN_SQL_POSTGRESQL && n > 1 &&
+                     kn_db_try(r->db, kn_sql_hash_probe(r->x.a, r->d, r->table, r->query_sql, cols, n));
+    if (!overlap_query(r, cols, n, entity, NULL, hash_rows, &res)) {
         return false;
     }
     if (!entity && r->key && res.shared_keys) {
         kn_overlap_result with_key;
-        if (!overlap_query(r, cols, n, false, r->key, &with_key)) {
+        if (!overlap_query(r, cols, n, false, r->key, hash_rows, &with_key)) {
             return false;
         }
         res.first_key = with_key.first_key;
@@ -867,7 +1000,7 @@ static int split_values(db_run *r, uint64_t *rows)
 {
     kn_dx *x = &r->x;
     kn_db_rows *q = query(
-        r, kn_sql_groups_query(x->a, r->d, r->table, r->query_sql, x->t.split->name, NULL, r->cap + 1, 0, 0),
+        r, kn_sql_split_values_query(x->a, r->d, r->table, r->query_sql, x->t.split->name, r->cap + 1),
         "cannot count the rows of each split value");
     if (!q) {
         return -1;
@@ -969,12 +1102,22 @@ static bool run_checks(db_run *r, const char *data)
         return false;
     }
     x->t.rows = rows;
+    r->stats = r->all;
+    r->sample_rows = rows;
 
     if (x->t.target) {
         size_t ti = (size_t)(x->t.target - x->t.cols);
         r->target_kind = kinds[x->t.target->field];
         if (!target(r, ti, kinds[x->t.target->field])) {
             return false;
+        }
+        if (!r->target_wide && rows > (uint64_t)x->max_rows) {
+            /* the statistics on a sample of about --max-rows rows */
+            sample_of(r, (double)x->max_rows / (double)rows, &r->stats);
+            r->sampled = true;
+            if (!sample_counts(r)) {
+                return false;
+            }
         }
     }
     for (size_t i = 0; i < x->t.n_cols; i++) {
@@ -986,8 +1129,8 @@ static bool run_checks(db_run *r, const char *data)
 }
 
 void kn_check_database(kn_ctx *c, const kn_schema *s, const char *data, const char *table,
-                       const char *query_label, const char *query_sql, long long max_rows, uint64_t seed,
-                       FILE *err)
+                       const char *query_label, const char *query_sql, long long max_rows, long long max_groups,
+                       uint64_t seed, FILE *err)
 {
     db_run r;
     memset(&r, 0, sizeof r);
@@ -997,12 +1140,13 @@ void kn_check_database(kn_ctx *c, const kn_schema *s, const char *data, const ch
     x->a = c->arena;
     x->sink = c->sink;
     x->database = true;
-    x->max_rows = max_rows > 0 ? max_rows : KN_SQL_MAX_GROUPS;
+    x->max_rows = max_rows > 0 ? max_rows : KN_DATA_MAX_ROWS;
     x->seed = seed;
-    r.cap = (unsigned long long)x->max_rows;
+    r.cap = max_groups > 0 ? (unsigned long long)max_groups : KN_SQL_MAX_GROUPS;
     r.err = err;
     r.table = table;
     r.query_sql = table ? NULL : query_sql;
+    r.all = (source){r.table, r.query_sql, NULL};
     r.shown = table ? table : query_label;
     x->path = kn_printf(x->a, "%s/%s", kn_odbc_display(x->a, data), table ? table : query_label);
     x->t.a = x->a;
@@ -1019,7 +1163,7 @@ void kn_check_database(kn_ctx *c, const kn_schema *s, const char *data, const ch
     }
     kn_data_values(x);
     kn_data_split(x);
-    kn_sink_set_sample(x->sink, (unsigned long long)x->t.rows, (unsigned long long)x->t.rows);
+    kn_sink_set_sample(x->sink, (unsigned long long)r.sample_rows, (unsigned long long)x->t.rows);
     if (getenv("KNOWABLE_ODBC_TRAFFIC")) {
         uint64_t rows, bytes;
         kn_db_traffic(r.db, &rows, &bytes);

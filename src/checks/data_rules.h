@@ -7,6 +7,10 @@
 #include "../data/table.h"
 #include "checks.h"
 
+/* Rows the statistics read at most (--max-rows), in a file and in a
+ * database alike: beyond that, a sample of as many. */
+#define KN_DATA_MAX_ROWS 1000000LL
+
 typedef struct kn_dx {
     kn_ctx *ctx;
     const kn_schema *s;
@@ -23,6 +27,7 @@ typedef struct kn_dx {
     const char *key_name;   /* the column that names a row (kn_first.key), or NULL */
     bool target_said;       /* a statistic skipped for the target is recorded once */
     uint64_t sampled_of;    /* the table's rows, when this table is a sample of them */
+    uint64_t sample_rows;   /* and the sample's rows (0: this table's rows) */
 } kn_dx;
 
 /* A position in the CSV file.  A line beyond what a position holds

@@ -61,8 +61,12 @@ static const char check_help[] =
     "                         nearest folder upwards with .git, else the schema's folder)\n"
     "  --stdin-name PATH      the path a schema read from - stands for: messages,\n"
     "                         includes, the root and rulebook discovery use it\n"
-    "  --max-rows N           sample at most N data rows (reservoir sampling); in a\n"
-    "                         database, read at most N rows per query (default 20000)\n"
+    "  --max-rows N           statistics on a sample of at most N data rows (default\n"
+    "                         1000000; counted rules count every row); a file by\n"
+    "                         reservoir sampling, a database by a seeded sample the\n"
+    "                         engine draws\n"
+    "  --max-groups N         in a database, read at most N rows per query (default\n"
+    "                         20000); a column with more groups is finished by the engine\n"
     "  -q, --quiet            diagnostics only: no notes, no summary\n"
     "  --today YYYY-MM-DD     the date waivers' expires is compared with (default today,\n"
     "                         UTC, or KNOWABLE_TODAY)\n"
@@ -137,7 +141,7 @@ static const struct {
     const char *option, *commands;
 } own_options[] = {
     {"--data", "check"},          {"--baseline", "check"},   {"--write-baseline", "check"},
-    {"--fail-on", "check"},       {"--show-waived", "check"}, {"--max-rows", "check init"},
+    {"--fail-on", "check"},       {"--show-waived", "check"}, {"--max-rows", "check init"}, {"--max-groups", "check"},
     {"--table", "check sql"},     {"--query", "check sql"},  {"--dialect", "sql"},
     {"--svg", "timeline"},        {"--force", "init"},       {"--stdin-name", "check sources timeline rules"},
 };
@@ -311,7 +315,7 @@ static const char *near_option(const char *word)
         "--help",     "--quiet",          "--show-waived", "--data",    "--rulebook",   "--format",
         "--output",   "--fail-on",        "--baseline",    "--write-baseline", "--color", "--root",
         "--max-rows", "--svg",            "--today",       "--stdin-name",     "--version", "--force",
-        "--table",    "--query",          "--dialect",
+        "--table",    "--query",          "--dialect",     "--max-groups",
     };
     size_t n = strcspn(word, "=");
     if (n < 3 || word[0] != '-') {
@@ -479,6 +483,16 @@ static int parse(int argc, char **argv, int first, args *ar)
                 return bad("--max-rows takes a positive number, not '%s'", v);
             }
             ar->opt.max_rows = n;
+        } else if (is_opt(a, "--max-groups")) {
+            if (!(v = value_of(argc, argv, &i, "--max-groups"))) {
+                return bad("%s needs a number", "--max-groups");
+            }
+            char *end;
+            long long n = strtoll(v, &end, 10);
+            if (*end || n < 1) {
+                return bad("--max-groups takes a positive number, not '%s'", v);
+            }
+            ar->opt.max_groups = n;
         } else if (is_opt(a, "--svg")) {
             if (!(v = value_of(argc, argv, &i, "--svg"))) {
                 return bad("%s needs a file", "--svg");

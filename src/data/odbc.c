@@ -392,6 +392,25 @@ kn_db_rows *kn_db_query(kn_db *db, const char *sql, const char *what)
     return r;
 }
 
+bool kn_db_try(kn_db *db, const char *sql)
+{
+    if (db->failed) {
+        return false;
+    }
+    SQLHSTMT st = NULL;
+    if (!SQL_SUCCEEDED(SQLAllocHandle(SQL_HANDLE_STMT, db->dbc, &st))) {
+        return false;
+    }
+    SQLSetStmtAttr(st, SQL_ATTR_QUERY_TIMEOUT, (SQLPOINTER)(SQLULEN)KN_SQL_TIMEOUT_SECONDS, 0);
+    SQLRETURN rc = SQLExecDirectW(st, to_wide(db->a, sql), SQL_NTS);
+    bool ok = SQL_SUCCEEDED(rc) || rc == SQL_NO_DATA;
+    while (ok && rc != SQL_NO_DATA && (rc = SQLFetch(st)) != SQL_NO_DATA) {
+        ok = SQL_SUCCEEDED(rc);
+    }
+    SQLFreeHandle(SQL_HANDLE_STMT, st);
+    return ok;
+}
+
 size_t kn_db_columns(const kn_db_rows *r)
 {
     return r->n;

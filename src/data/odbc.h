@@ -60,6 +60,11 @@ kn_sql_dialect kn_db_dialect(const kn_db *db);
  * the error stream (the connection is then failed). */
 kn_db_rows *kn_db_query(kn_db *db, const char *sql, const char *what);
 
+/* Runs sql and reads its rows, saying nothing: false when the engine
+ * refuses it (the connection stays usable).  For probing what the
+ * engine can do. */
+bool kn_db_try(kn_db *db, const char *sql);
+
 /* The next row: true, false at the end or on an error (kn_db_failed). */
 bool kn_db_next(kn_db_rows *r);
 

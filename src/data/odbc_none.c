@@ -30,6 +30,13 @@ kn_db_rows *kn_db_query(kn_db *db, const char *sql, const char *what)
     return NULL;
 }
 
+bool kn_db_try(kn_db *db, const char *sql)
+{
+    (void)db;
+    (void)sql;
+    return false;
+}
+
 bool kn_db_next(kn_db_rows *r)
 {
     (void)r;

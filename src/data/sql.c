@@ -161,6 +161,21 @@ static void as_text(sbuf *b, kn_sql_dialect d, const char *col)
     }
 }
 
+/* The split column's value as it is grouped and compared: on MySQL and
+ * MariaDB in a binary collation, so that a collation that ignores case or
+ * accents does not put 'tést' with 'test' (the CSV path tells them
+ * apart); the column itself elsewhere. */
+static void split_value(sbuf *b, kn_sql_dialect d, const char *split)
+{
+    if (d == KN_SQL_MYSQL) {
+        puts_(b, "CONVERT(");
+        ident(b, d, split);
+        puts_(b, " USING utf8mb4) COLLATE utf8mb4_bin");
+    } else {
+        ident(b, d, split);
+    }
+}
+
 /* Whether the split column says side (the words of kn_split_side, any
  * case, spaces around ignored).  With sides (the column's raw values,
  * classified in C), the column is compared with those of the side: no
@@ -173,7 +188,7 @@ static void side_test(sbuf *b, kn_sql_dialect d, const char *split, bool test, c
             puts_(b, "1 = 0");
             return;
         }
-        ident(b, d, split);
+        split_value(b, d, split);
         puts_(b, " IN (");
         for (size_t i = 0; i < sides->n[k]; i++) {
             if (i) {
@@ -189,7 +204,11 @@ static void side_test(sbuf *b, kn_sql_dialect d, const char *split, bool test, c
     const char *const *w = test ? tests : train;
     size_t n = test ? sizeof tests / sizeof *tests : sizeof train / sizeof *train;
     puts_(b, "LOWER(TRIM(");
-    as_text(b, d, split);
+    if (d == KN_SQL_MYSQL) {
+        split_value(b, d, split);
+    } else {
+        as_text(b, d, split);
+    }
     puts_(b, ")) IN (");
     for (size_t i = 0; i < n; i++) {
         if (i) {
@@ -266,7 +285,8 @@ static void limit(sbuf *b, kn_sql_dialect d, unsigned long long n)
 
 /* A uniform number in [0, 1) for each row (MySQL's from a seed, so that
  * the same scan draws the same rows; PostgreSQL's after setseed,
- * kn_sql_seed_query; SQLite's cannot be seeded). */
+ * kn_sql_seed_query; SQLite's sample is drawn otherwise,
+ * kn_sql_sample_query). */
 static void random_unit(sbuf *b, kn_sql_dialect d, uint64_t seed)
 {
     char num[32];
@@ -279,9 +299,6 @@ static void random_unit(sbuf *b, kn_sql_dialect d, uint64_t seed)
         puts_(b, num);
         break;
     case KN_SQL_SQLITE:
-        /* random() is a signed 64-bit integer */
-        puts_(b, "(random() / 18446744073709551616.0 + 0.5)");
-        break;
     case KN_SQL_ANSI:
         puts_(b, "RAND()");
         break;
@@ -329,44 +346,83 @@ static void value_and_target(sbuf *b, kn_sql_dialect d, const char *col, const c
 }
 
 char *kn_sql_groups_query(kn_arena *a, kn_sql_dialect d, const char *table, const char *query_sql, const char *col,
-                          const char *target, unsigned long long max_rows, double sample, uint64_t seed)
+                          const char *target, unsigned long long max_rows)
 {
     sbuf b = {a, NULL, 0, 0};
-    if (sample > 0 && sample < 1) {
-        char p[40];
-        snprintf(p, sizeof p, "%.17g", sample);
-        puts_(&b, "SELECT ");
-        value_and_target(&b, d, "v", target ? "t" : NULL);
-        puts_(&b, ", COUNT(*) AS n\nFROM (SELECT ");
-        value_and_target(&b, d, col, target);
-        puts_(&b, "\n     ");
-        from(&b, d, table, query_sql);
-        puts_(&b, "\n      WHERE ");
-        random_unit(&b, d, seed);
-        puts_(&b, " < ");
-        puts_(&b, p);
-        puts_(&b, ") AS ");
-        ident(&b, d, "sampled");
-        puts_(&b, "\nGROUP BY ");
-        ident(&b, d, "v");
-        if (target) {
-            puts_(&b, ", ");
-            ident(&b, d, "t");
-        }
-    } else {
-        puts_(&b, "SELECT ");
-        value_and_target(&b, d, col, target);
-        puts_(&b, ", COUNT(*) AS n");
-        from(&b, d, table, query_sql);
-        puts_(&b, " GROUP BY ");
-        ident(&b, d, col);
-        if (target) {
-            puts_(&b, ", ");
-            ident(&b, d, target);
-        }
+    puts_(&b, "SELECT ");
+    value_and_target(&b, d, col, target);
+    puts_(&b, ", COUNT(*) AS n");
+    from(&b, d, table, query_sql);
+    puts_(&b, " GROUP BY ");
+    ident(&b, d, col);
+    if (target) {
+        puts_(&b, ", ");
+        ident(&b, d, target);
     }
     if (max_rows) {
         limit(&b, d, max_rows);
+    }
+    return b.p;
+}
+
+char *kn_sql_split_values_query(kn_arena *a, kn_sql_dialect d, const char *table, const char *query_sql,
+                                const char *split, unsigned long long max_rows)
+{
+    if (d != KN_SQL_MYSQL) {
+        return kn_sql_groups_query(a, d, table, query_sql, split, NULL, max_rows);
+    }
+    sbuf b = {a, NULL, 0, 0};
+    puts_(&b, "SELECT ");
+    split_value(&b, d, split);
+    puts_(&b, " AS v, COUNT(*) AS n");
+    from(&b, d, table, query_sql);
+    puts_(&b, " GROUP BY ");
+    split_value(&b, d, split);
+    limit(&b, d, max_rows);
+    return b.p;
+}
+
+char *kn_sql_sample_query(kn_arena *a, kn_sql_dialect d, const char *table, const char *query_sql, double p,
+                          uint64_t seed, bool tablesample)
+{
+    sbuf b = {a, NULL, 0, 0};
+    char num[128];
+    puts_(&b, "SELECT *");
+    if (d == KN_SQL_POSTGRESQL && tablesample && table && !query_sql) {
+        /* each row is kept by a hash of its place and the seed: the same
+         * rows for every query, whatever order the scan takes */
+        from(&b, d, table, NULL);
+        snprintf(num, sizeof num, " TABLESAMPLE BERNOULLI (%.17g) REPEATABLE (%llu)", 100.0 * p,
+                 (unsigned long long)(seed % 1000000007u));
+        puts_(&b, num);
+        return b.p;
+    }
+    if (d == KN_SQL_SQLITE) {
+        /* SQLite's random() takes no seed: each row's number in the scan,
+         * mixed (a multiply, a square, a multiply modulo the prime
+         * 2^31 - 1), compared with p of the range */
+        puts_(&b, " FROM (SELECT *, row_number() OVER () AS knowable_row");
+        from(&b, d, table, query_sql);
+        snprintf(num, sizeof num, "(((knowable_row + %llu) * 48271) %% 2147483647)",
+                 (unsigned long long)(seed % 1000000007u));
+        puts_(&b, ") AS ");
+        ident(&b, d, "knowable_numbered");
+        puts_(&b, " WHERE (((");
+        puts_(&b, num);
+        puts_(&b, " * ");
+        puts_(&b, num);
+        snprintf(num, sizeof num, ") %% 2147483647) * 16807) %% 2147483647 < %.0f", p * 2147483647.0);
+        puts_(&b, num);
+        return b.p;
+    }
+    from(&b, d, table, query_sql);
+    puts_(&b, " WHERE ");
+    random_unit(&b, d, seed);
+    snprintf(num, sizeof num, " < %.17g", p);
+    puts_(&b, num);
+    if (d == KN_SQL_POSTGRESQL) {
+        /* the test runs on every row, in the scan, before any other */
+        puts_(&b, " OFFSET 0");
     }
     return b.p;
 }
@@ -572,7 +628,7 @@ static char *esc(kn_arena *a, const char *s)
  * collation that ignores case or accents could put a missing marker and a
  * value in one group). */
 static char *overlap_sql(plan_ctx *c, const kn_rulebook *rb, const char *split, const char *const *cols, size_t n,
-                         bool skip_missing, const char *key, const kn_sql_sides *sides)
+                         bool skip_missing, const char *key, const kn_sql_sides *sides, bool hash_rows)
 {
     sbuf b = {c->a, NULL, 0, 0};
     bool per_group = skip_missing && c->d == KN_SQL_POSTGRESQL;
@@ -606,7 +662,8 @@ static char *overlap_sql(plan_ctx *c, const kn_rulebook *rb, const char *split, 
         puts_(&b, ")");
     }
     puts_(&b, "\n      GROUP BY ");
-    bool hashed = c->d == KN_SQL_POSTGRESQL && n > 1;
+    bool many = c->d == KN_SQL_POSTGRESQL && n > 1;
+    bool hashed = many && hash_rows;
     if (hashed) {
         /* nearly a group a row: grouped by a 64-bit hash of the row (as
          * the CSV path decides by one, src/data/hash.h), which a sort
@@ -617,7 +674,14 @@ static char *overlap_sql(plan_ctx *c, const kn_rulebook *rb, const char *split, 
         if (i) {
             puts_(&b, ", ");
         }
-        ident(&b, c->d, cols[i]);
+        if (many && !hashed) {
+            /* before PostgreSQL 14, or a type without an extended hash
+             * (money) or without equality (xml, point): the text of each
+             * value, as the CSV path reads it */
+            as_text(&b, c->d, cols[i]);
+        } else {
+            ident(&b, c->d, cols[i]);
+        }
     }
     if (hashed) {
         puts_(&b, "), 0)");
@@ -671,16 +735,22 @@ const char *kn_sql_grouping(kn_sql_dialect d, kn_sql_grouping_mode m)
     if (d != KN_SQL_POSTGRESQL) {
         return NULL;
     }
+    /* The session's own value is kept in a variable of the session
+     * (knowable.*) and put back after, not RESET: a value the user's
+     * connection set stays. */
     switch (m) {
     case KN_SQL_GROUP_BY_SORT:
-        return "SET enable_hashagg = off";
+        return "SELECT set_config('enable_hashagg', 'off', false), saved.was\n"
+               "FROM (SELECT set_config('knowable.enable_hashagg', current_setting('enable_hashagg'), false) AS was) "
+               "AS saved";
     case KN_SQL_GROUP_BY_SORT_END:
-        return "RESET enable_hashagg";
+        return "SELECT set_config('enable_hashagg', current_setting('knowable.enable_hashagg'), false)";
     case KN_SQL_GROUP_IN_MEMORY:
-        return "SELECT set_config('work_mem', '" KN_SQL_GROUP_MEMORY "', false) WHERE pg_size_bytes(current_setting("
-               "'work_mem')) < pg_size_bytes('" KN_SQL_GROUP_MEMORY "')";
+        return "SELECT set_config('work_mem', CASE WHEN pg_size_bytes(saved.was) < pg_size_bytes('" KN_SQL_GROUP_MEMORY
+               "') THEN '" KN_SQL_GROUP_MEMORY "' ELSE saved.was END, false)\n"
+               "FROM (SELECT set_config('knowable.work_mem', current_setting('work_mem'), false) AS was) AS saved";
     case KN_SQL_GROUP_IN_MEMORY_END:
-        return "RESET work_mem";
+        return "SELECT set_config('work_mem', current_setting('knowable.work_mem'), false)";
     }
     return NULL;
 }
@@ -706,10 +776,27 @@ void kn_sql_session(kn_arena *a, kn_sql_dialect d, kn_sql_plan *out)
 
 char *kn_sql_overlap_query(kn_arena *a, kn_sql_dialect d, const kn_rulebook *rb, const char *table,
                            const char *query_sql, const char *split, const char *const *cols, size_t n, bool entity,
-                           const char *key, const kn_sql_sides *sides)
+                           const char *key, const kn_sql_sides *sides, bool hash_rows)
 {
     plan_ctx c = {a, d, table, query_sql, NULL};
-    return overlap_sql(&c, rb, split, cols, n, entity, entity ? NULL : key, sides);
+    return overlap_sql(&c, rb, split, cols, n, entity, entity ? NULL : key, sides, hash_rows);
+}
+
+char *kn_sql_hash_probe(kn_arena *a, kn_sql_dialect d, const char *table, const char *query_sql,
+                        const char *const *cols, size_t n)
+{
+    sbuf b = {a, NULL, 0, 0};
+    puts_(&b, "SELECT hash_record_extended(ROW(");
+    for (size_t i = 0; i < n; i++) {
+        if (i) {
+            puts_(&b, ", ");
+        }
+        ident(&b, d, cols[i]);
+    }
+    puts_(&b, "), 0) AS h");
+    from(&b, d, table, query_sql);
+    limit(&b, d, 1);
+    return b.p;
 }
 
 char *kn_sql_qi_query(kn_arena *a, kn_sql_dialect d, const char *table, const char *query_sql,
@@ -754,7 +841,7 @@ static bool is_temporal_or_number(kn_value_type t)
 }
 
 void kn_sql_make(kn_arena *a, const kn_schema *s, const kn_rulebook *rb, const char *table, const char *query_sql,
-                 kn_sql_dialect d, unsigned long long max_groups, kn_sql_plan *out)
+                 kn_sql_dialect d, unsigned long long max_groups, uint64_t seed, kn_sql_plan *out)
 {
     plan_ctx c = {a, d, table, query_sql, kn_vec_new(a, sizeof(kn_sql_query))};
     kn_vec *skipped = kn_vec_new(a, sizeof(const char *));
@@ -766,6 +853,22 @@ void kn_sql_make(kn_arena *a, const kn_schema *s, const kn_rulebook *rb, const c
         "the table's column names, no rows: compared with the schema's columns",
         kn_sql_columns_query(a, d, table, query_sql));
     add(&c, KN_SQLQ_ROWS, "", NULL, "rows in the table (every rule)", kn_sql_count_query(a, d, table, query_sql));
+
+    /* The statistics' sample, as the CSV path draws one of --max-rows rows. */
+    const char *seed_sql = query_sql || !table ? kn_sql_seed_query(a, d, seed) : NULL;
+    if (seed_sql) {
+        add(&c, KN_SQLQ_SESSION, "", NULL, "the engine's random numbers are seeded before each query on the sample",
+            seed_sql);
+    }
+    sbuf sample = {a, NULL, 0, 0};
+    puts_(&sample, "SELECT COUNT(*) AS n_sample");
+    from(&sample, d, NULL, kn_sql_sample_query(a, d, table, query_sql, 0.5, seed, true));
+    add(&c, KN_SQLQ_ROWS, "lone-feature-separates, missingness-predicts, identifier-segment-predicts", NULL,
+        "on a table of more than --max-rows rows, the statistics read a sample of about --max-rows of them "
+        "(p = max_rows / rows; here 0.5), the same rows every run, in place of the table: the features by "
+        "target class, the rank sums and the missing rows per class below (the values and every other rule "
+        "count every row); the sample's rows",
+        sample.p);
 
     const kn_column *target = usable(KN_REF_COLUMN(s->prediction.target));
     const kn_column *entity = usable(KN_REF_COLUMN(s->prediction.entity));
@@ -790,7 +893,7 @@ void kn_sql_make(kn_arena *a, const kn_schema *s, const kn_rulebook *rb, const c
             kn_printf(a, "the target '%s': rows per value, at most %llu (a binary target gives the positive and "
                          "negative class)",
                       esc(a, target->name), max_groups),
-            kn_sql_groups_query(a, d, table, query_sql, target->name, NULL, max_groups + 1, 0, 0));
+            kn_sql_groups_query(a, d, table, query_sql, target->name, NULL, max_groups + 1));
     }
 
     /* One GROUP BY per column, at most max_groups rows read: its distinct
@@ -821,7 +924,7 @@ void kn_sql_make(kn_arena *a, const kn_schema *s, const kn_rulebook *rb, const c
                           "identifier '%s' by target class, segments cut in C; on a table of more than %llu rows, "
                           "a random sample of about %llu of them (WHERE <random in [0, 1)> < %llu / rows)",
                           esc(a, k->name), max_groups, max_groups, max_groups),
-                kn_sql_groups_query(a, d, table, query_sql, k->name, t_name, max_groups + 1, 0, 0));
+                kn_sql_groups_query(a, d, table, query_sql, k->name, t_name, max_groups + 1));
             continue;
         }
         const char *rules;
@@ -837,7 +940,7 @@ void kn_sql_make(kn_arena *a, const kn_schema *s, const kn_rulebook *rb, const c
                              type_name(k->type), max_groups);
         }
         add(&c, with_target ? KN_SQLQ_CONTINGENCY : KN_SQLQ_VALUES, rules, k, what,
-            kn_sql_groups_query(a, d, table, query_sql, k->name, t_name, max_groups + 1, 0, 0));
+            kn_sql_groups_query(a, d, table, query_sql, k->name, t_name, max_groups + 1));
         if (feature && target) {
             if (is_temporal_or_number(k->type)) {
                 add(&c, KN_SQLQ_RANK_SUM, "lone-feature-separates", k,
@@ -858,7 +961,7 @@ void kn_sql_make(kn_arena *a, const kn_schema *s, const kn_rulebook *rb, const c
                 kn_printf(a, "when '%s' has more than %llu groups and a character SQL type: every distinct value, "
                              "streamed and parsed in C",
                           esc(a, k->name), max_groups),
-                kn_sql_groups_query(a, d, table, query_sql, k->name, NULL, 0, 0, 0));
+                kn_sql_groups_query(a, d, table, query_sql, k->name, NULL, 0));
         }
     }
 
@@ -896,10 +999,10 @@ void kn_sql_make(kn_arena *a, const kn_schema *s, const kn_rulebook *rb, const c
                 kn_printf(a, "identical feature rows (%zu feature%s) on both sides of the split '%s'", nf,
                           nf == 1 ? "" : "s", esc(a, split->name)),
                 kn_sql_overlap_query(a, d, rb, table, query_sql, split->name, feats, nf, false,
-                                     key ? key->name : NULL, NULL));
+                                     key ? key->name : NULL, NULL, true));
         }
         if (nf && by_sort) {
-            add(&c, KN_SQLQ_SESSION, "", NULL, "and the engine chooses again",
+            add(&c, KN_SQLQ_SESSION, "", NULL, "and the session's own setting back",
                 kn_sql_grouping(d, KN_SQL_GROUP_BY_SORT_END));
         }
         const char *in_memory = kn_sql_grouping(d, KN_SQL_GROUP_IN_MEMORY);
@@ -913,9 +1016,10 @@ void kn_sql_make(kn_arena *a, const kn_schema *s, const kn_rulebook *rb, const c
             add(&c, KN_SQLQ_OVERLAP, "entity-in-both-splits", entity,
                 kn_printf(a, "entities '%s' with rows on both sides of the split '%s'", esc(a, entity->name),
                           esc(a, split->name)),
-                kn_sql_overlap_query(a, d, rb, table, query_sql, split->name, &entity->name, 1, true, NULL, NULL));
+                kn_sql_overlap_query(a, d, rb, table, query_sql, split->name, &entity->name, 1, true, NULL, NULL, true));
             if (in_memory) {
-                add(&c, KN_SQLQ_SESSION, "", NULL, "and back", kn_sql_grouping(d, KN_SQL_GROUP_IN_MEMORY_END));
+                add(&c, KN_SQLQ_SESSION, "", NULL, "and the session's own setting back",
+                    kn_sql_grouping(d, KN_SQL_GROUP_IN_MEMORY_END));
             }
         }
     }

@@ -86,7 +86,7 @@ typedef struct kn_sql_plan {
  * (the text of --query FILE.sql) the rows are those of that query, used as
  * a derived table. */
 void kn_sql_make(kn_arena *a, const kn_schema *s, const kn_rulebook *rb, const char *table, const char *query_sql,
-                 kn_sql_dialect d, unsigned long long max_groups, kn_sql_plan *out);
+                 kn_sql_dialect d, unsigned long long max_groups, uint64_t seed, kn_sql_plan *out);
 
 /* The queries one by one (the plan above is made of them; the ODBC path
  * runs them on the columns the table has).  Every column name is quoted;
@@ -96,15 +96,31 @@ void kn_sql_make(kn_arena *a, const kn_schema *s, const kn_rulebook *rb, const c
 char *kn_sql_count_query(kn_arena *a, kn_sql_dialect d, const char *table, const char *query_sql);
 
 /* Rows (v[, t], n): the distinct values of col (with target: of col and
- * the target) and their rows, at most max_rows of them (0: all).  With
- * 0 < sample < 1, of the rows the engine keeps with that probability,
- * drawn from seed where the dialect allows. */
+ * the target) and their rows, at most max_rows of them (0: all). */
 char *kn_sql_groups_query(kn_arena *a, kn_sql_dialect d, const char *table, const char *query_sql, const char *col,
-                          const char *target, unsigned long long max_rows, double sample, uint64_t seed);
+                          const char *target, unsigned long long max_rows);
 
-/* The statement that seeds the engine's random() before a sample
- * (PostgreSQL's setseed), or NULL when the dialect seeds in the query or
- * cannot. */
+/* Rows (v, n): the split column's distinct values, as kn_sql_groups_query,
+ * but on MySQL and MariaDB grouped in a binary collation (a collation that
+ * ignores case or accents would put values the CSV path tells apart into
+ * one group); the overlap queries compare the column in the same way. */
+char *kn_sql_split_values_query(kn_arena *a, kn_sql_dialect d, const char *table, const char *query_sql,
+                                const char *split, unsigned long long max_rows);
+
+/* A SELECT of a uniform sample of the rows, each kept with probability p,
+ * the same rows on every run (SPEC §4.7: the statistics' sample of
+ * --max-rows rows), for use as query_sql: PostgreSQL's TABLESAMPLE
+ * BERNOULLI ... REPEATABLE (seed) on a table when tablesample (a hash of
+ * each row's place: the same rows whatever the scan's order), else
+ * random() after kn_sql_seed_query; MySQL's RAND(seed); on SQLite the
+ * row's number in the scan, mixed with the seed (its random() takes no
+ * seed). */
+char *kn_sql_sample_query(kn_arena *a, kn_sql_dialect d, const char *table, const char *query_sql, double p,
+                          uint64_t seed, bool tablesample);
+
+/* The statement that seeds the engine's random() before a sample that
+ * uses it (PostgreSQL's setseed), or NULL when the dialect seeds in the
+ * query. */
 char *kn_sql_seed_query(kn_arena *a, kn_sql_dialect d, uint64_t seed);
 
 /* One row (two_u, n_pos, n_neg, missing_pos, missing_neg): twice the
@@ -147,12 +163,19 @@ typedef struct kn_sql_sides {
  * missing are left out and the least shared entity comes back too;
  * otherwise, with key, the least key of a test row in a shared group.
  * On PostgreSQL several columns are grouped by hash_record_extended of
- * the row (64 bits, as the CSV path compares rows; PostgreSQL 14 or
- * later).
+ * the row when hash_rows (64 bits, as the CSV path compares rows;
+ * PostgreSQL 14 or later, and types with an extended hash), else by the
+ * text of each column.
  * sides NULL: the split column's text is tested on every row. */
 char *kn_sql_overlap_query(kn_arena *a, kn_sql_dialect d, const kn_rulebook *rb, const char *table,
                            const char *query_sql, const char *split, const char *const *cols, size_t n, bool entity,
-                           const char *key, const kn_sql_sides *sides);
+                           const char *key, const kn_sql_sides *sides, bool hash_rows);
+
+/* A query that fails where kn_sql_overlap_query's hash of the rows of
+ * cols[0..n) cannot run (PostgreSQL before 14, a type without an extended
+ * hash): the hash of the first row. */
+char *kn_sql_hash_probe(kn_arena *a, kn_sql_dialect d, const char *table, const char *query_sql,
+                        const char *const *cols, size_t n);
 
 /* Rows (group_size, n_groups): how many groups of each size cols[0..n)
  * form. */
@@ -164,7 +187,8 @@ char *kn_sql_qi_query(kn_arena *a, kn_sql_dialect d, const char *table, const ch
 const kn_column *kn_sql_key_column(const kn_schema *s, bool (*present)(void *ctx, const kn_column *k), void *ctx);
 
 /* How the engine groups the rows of the overlap queries, each set before
- * and undone after its query (PostgreSQL; the others need nothing): the
+ * its query and the session's own value put back after (PostgreSQL,
+ * through the session variables knowable.*; the others need nothing): the
  * feature rows, nearly a group a row, by sorting their hashes (a hash
  * table of them spills to disk and is slower, and more memory made it
  * slower still); the entities, far fewer, in a hash table of up to

@@ -163,6 +163,16 @@ for c, s, res in results:
         check("the column names query returns no rows", res, [])
     elif s.startswith("SELECT COUNT(*) AS n_rows"):
         check("rows", res, [(len(rows),)])
+    elif s.startswith("SELECT COUNT(*) AS n_sample"):
+        # the statistics' sample (printed for p = 0.5): the same rows every
+        # time, about half of them (binomial: 3 standard deviations of 240
+        # draws are 23 rows), spread over the whole table
+        again = db.execute(s).fetchall()
+        check("the sample is the same rows when drawn again", again, res)
+        n = res[0][0]
+        check("the sample holds about half the rows", 0.4 * len(rows) <= n <= 0.6 * len(rows), True)
+        spread = db.execute(s.replace("COUNT(*) AS n_sample", "MIN(knowable_row), MAX(knowable_row)", 1)).fetchall()
+        check("the sample reaches both ends of the table", spread[0][0] <= 10 and spread[0][1] > len(rows) - 10, True)
     elif "[rows-shared-across-split]" in tag:
         # and the least entity of a test row in a group with both sides
         groups = collections.defaultdict(lambda: [set(), []])
