@@ -383,16 +383,18 @@ char *kn_sql_split_values_query(kn_arena *a, kn_sql_dialect d, const char *table
 }
 
 char *kn_sql_sample_query(kn_arena *a, kn_sql_dialect d, const char *table, const char *query_sql, double p,
-                          uint64_t seed, bool tablesample)
+                          uint64_t seed, kn_sql_sampling how)
 {
     sbuf b = {a, NULL, 0, 0};
     char num[128];
     puts_(&b, "SELECT *");
-    if (d == KN_SQL_POSTGRESQL && tablesample && table && !query_sql) {
-        /* each row is kept by a hash of its place and the seed: the same
-         * rows for every query, whatever order the scan takes */
+    if (d == KN_SQL_POSTGRESQL && how != KN_SQL_SAMPLE_SCAN && table && !query_sql) {
+        /* each row (or each page) is kept by a hash of its place and the
+         * seed: the same rows for every query, whatever order the scan
+         * takes */
         from(&b, d, table, NULL);
-        snprintf(num, sizeof num, " TABLESAMPLE BERNOULLI (%.17g) REPEATABLE (%llu)", 100.0 * p,
+        snprintf(num, sizeof num, " TABLESAMPLE %s (%.17g) REPEATABLE (%llu)",
+                 how == KN_SQL_SAMPLE_PAGES ? "SYSTEM" : "BERNOULLI", 100.0 * p,
                  (unsigned long long)(seed % 1000000007u));
         puts_(&b, num);
         return b.p;
@@ -862,7 +864,7 @@ void kn_sql_make(kn_arena *a, const kn_schema *s, const kn_rulebook *rb, const c
     }
     sbuf sample = {a, NULL, 0, 0};
     puts_(&sample, "SELECT COUNT(*) AS n_sample");
-    from(&sample, d, NULL, kn_sql_sample_query(a, d, table, query_sql, 0.5, seed, true));
+    from(&sample, d, NULL, kn_sql_sample_query(a, d, table, query_sql, 0.5, seed, KN_SQL_SAMPLE_ROWS));
     add(&c, KN_SQLQ_ROWS, "lone-feature-separates, missingness-predicts, identifier-segment-predicts", NULL,
         "on a table of more than --max-rows rows, the statistics read a sample of about --max-rows of them "
         "(p = max_rows / rows; here 0.5), the same rows every run, in place of the table: the features by "

@@ -107,16 +107,22 @@ char *kn_sql_groups_query(kn_arena *a, kn_sql_dialect d, const char *table, cons
 char *kn_sql_split_values_query(kn_arena *a, kn_sql_dialect d, const char *table, const char *query_sql,
                                 const char *split, unsigned long long max_rows);
 
-/* A SELECT of a uniform sample of the rows, each kept with probability p,
- * the same rows on every run (SPEC §4.7: the statistics' sample of
- * --max-rows rows), for use as query_sql: PostgreSQL's TABLESAMPLE
- * BERNOULLI ... REPEATABLE (seed) on a table when tablesample (a hash of
- * each row's place: the same rows whatever the scan's order), else
- * random() after kn_sql_seed_query; MySQL's RAND(seed); on SQLite the
- * row's number in the scan, mixed with the seed (its random() takes no
- * seed). */
+/* How PostgreSQL draws a sample of a table (the other engines draw in
+ * the scan). */
+typedef enum kn_sql_sampling {
+    KN_SQL_SAMPLE_SCAN,  /* random() in the scan, after kn_sql_seed_query (a view, --query) */
+    KN_SQL_SAMPLE_ROWS,  /* TABLESAMPLE BERNOULLI: each row by a hash of its place */
+    KN_SQL_SAMPLE_PAGES, /* TABLESAMPLE SYSTEM: each page by a hash of its place, all its rows */
+} kn_sql_sampling;
+
+/* A SELECT of a sample of the rows, each kept with probability p, the
+ * same rows on every run (SPEC §4.7: the statistics' sample of
+ * --max-rows rows), for use as query_sql: on PostgreSQL as how says
+ * (TABLESAMPLE ... REPEATABLE (seed) needs a table: the same rows
+ * whatever the scan's order), MySQL's RAND(seed), on SQLite the row's
+ * number in the scan, mixed with the seed (its random() takes no seed). */
 char *kn_sql_sample_query(kn_arena *a, kn_sql_dialect d, const char *table, const char *query_sql, double p,
-                          uint64_t seed, bool tablesample);
+                          uint64_t seed, kn_sql_sampling how);
 
 /* The statement that seeds the engine's random() before a sample that
  * uses it (PostgreSQL's setseed), or NULL when the dialect seeds in the

@@ -855,7 +855,10 @@ static const kn_explain_text texts[] = {
         "in the data sample. For a numeric feature and a binary target the "
         "measure is the ROC AUC, against the rulebook's separation_auc; for a "
         "categorical feature it is the uncertainty coefficient U(target given "
-        "feature), against uncertainty.",
+        "feature), against uncertainty. Like missingness-predicts and "
+        "identifier-segment-predicts it is computed on at most --max-rows rows "
+        "(default 1,000,000): on a larger table a seeded sample of about as "
+        "many, the same rows every run, in a CSV file and in a database alike.",
         "Genuine predictors are rarely that strong alone; a feature that is "
         "usually is the outcome in disguise, recorded after it or computed from "
         "it. The AUC is the Mann-Whitney U statistic divided by the product of "

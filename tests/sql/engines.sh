@@ -168,6 +168,71 @@ YAML
         grep -q "2 of 3 test rows repeat the feature values of a training row.*rows-shared-across-split" "$tmp/t.out" ||
             { fail "the rows shared across the split of till_days are not counted"; cat "$tmp/t.out"; }
     fi
+    if [ "$engine" = postgresql ] && ! grep -q "built without" "$tmp/c.err"; then
+        # A sample of 100,000 rows or more is drawn by whole pages
+        # (TABLESAMPLE SYSTEM): of 300,000 invented loaves, --max-rows
+        # 100000 gives about 100,000 rows (pages of about 150 rows: the
+        # count varies by a few thousand), the same report twice, the
+        # counted findings of the whole table, statistics near its own.
+        owner -c "DROP TABLE IF EXISTS loaf_days;
+            CREATE TABLE loaf_days AS SELECT i AS loaf_id, CASE WHEN i % 4 = 0 THEN 'test' ELSE 'train' END AS fold,
+                (i * 37 % 1000) / 10.0 AS proof_minutes, (i * 7 % 13) AS oven, (i * 37 % 1000) > 700 AS burnt
+            FROM generate_series(1, 300000) AS i;
+            GRANT SELECT ON loaf_days TO knowable_reader" >/dev/null || fail "cannot make loaf_days"
+        cat >"$tmp/loaf.knowable.yaml" <<'YAML'
+knowable: 1
+dataset: loaf_days
+prediction: {moment: bake, target: burnt}
+events:
+  bake: {}
+  cool: {after: {bake: [PT1H, PT2H]}}
+split: {method: random, column: fold}
+columns:
+  loaf_id: {role: identifier}
+  fold: {role: split}
+  burnt: {role: target, type: boolean, known: cool}
+  proof_minutes: {type: number, known: bake}
+  oven: {type: number, known: bake}
+YAML
+        for run in all one two; do
+            opt="--max-rows 100000"
+            [ $run = all ] && opt=""
+            # shellcheck disable=SC2086
+            KNOWABLE_TRACE_STATS=1 "$knowable" check --format json $opt --data "odbc:$conn" --table loaf_days \
+                -- "$tmp/loaf.knowable.yaml" >"$tmp/loaf-$run.json" 2>"$tmp/loaf-$run.stats"
+            rc=$?
+            [ "$rc" -le 1 ] || { fail "check of loaf_days ($run): exit $rc"; cat "$tmp/loaf-$run.stats"; }
+        done
+        cmp -s "$tmp/loaf-one.json" "$tmp/loaf-two.json" || fail "two runs on the page sample report otherwise"
+        /usr/bin/python3 - "$tmp" <<'PY' || fail "the page sample of loaf_days"
+import json, sys
+tmp = sys.argv[1]
+rep = {r: json.load(open("%s/loaf-%s.json" % (tmp, r))) for r in ("all", "one")}
+stats = {}
+for r in ("all", "one"):
+    stats[r] = {tuple(l.split("\t")[1:4]): float(l.split("\t")[4])
+                for l in open("%s/loaf-%s.stats" % (tmp, r)) if l.startswith("knowable-stat\t")}
+data = rep["one"]["summary"]["data"]
+bad = []
+if data["rows"] != 300000 or not 85000 <= data.get("sample_rows", 0) <= 115000:
+    bad.append("rows %s, sample_rows %s" % (data["rows"], data.get("sample_rows")))
+if rep["all"]["summary"]["data"].get("sample_rows") != 300000:
+    bad.append("the whole table was sampled: %s" % rep["all"]["summary"]["data"])
+counted = lambda r: sorted((d["rule"], d["message"]) for d in rep[r]["diagnostics"]
+                           if d["file"].startswith("odbc:") and d["rule"] not in ("lone-feature-separates", "missingness-predicts"))
+if counted("all") != counted("one"):
+    bad.append("counted findings differ: %s / %s" % (counted("all"), counted("one")))
+if not stats["one"] or set(stats["one"]) != set(stats["all"]):
+    bad.append("statistics: %s / %s" % (stats["all"], stats["one"]))
+for k, v in stats["one"].items():
+    if abs(v - stats["all"].get(k, -9)) > 0.02:
+        bad.append("%s: %.4f on the sample, %.4f on every row" % (k, v, stats["all"].get(k, -9)))
+for b in bad:
+    print("FAIL:", b)
+print("page sample: %s of %s rows, %d statistics near the whole table's" % (data.get("sample_rows"), data["rows"], len(stats["one"])))
+sys.exit(1 if bad else 0)
+PY
+    fi
 else
     echo "no ODBC driver '$driver': the ODBC session is not tried"
 fi
