@@ -1082,6 +1082,27 @@ static bool prefix_leaves_root(ld *l, const char *joined)
 
 static void load_file(ld *l, const char *real, const char *display, bool main_file, kn_node *via);
 
+/* For an included path that does not resolve: the real path an editor's
+ * buffer of a file not yet saved stands under (its folder's real path and
+ * its name, as for a schema given with --stdin-name), when the overlay has
+ * a buffer there; else NULL.  Without an overlay (knowable check) a missing
+ * file stays missing. */
+static char *unsaved_buffer(ld *l, const char *joined)
+{
+    const char *slash = strrchr(joined, '/');
+    const char *base = slash ? slash + 1 : joined;
+    if (!l->opt->overlay || !slash || !*base || strcmp(base, ".") == 0 || strcmp(base, "..") == 0) {
+        return NULL;
+    }
+    char *dir = real_path(l, slash == joined ? "/" : kn_strndup(l->a, joined, (size_t)(slash - joined)));
+    if (!dir) {
+        return NULL;
+    }
+    char *real = kn_printf(l->a, "%s%s%s", dir, strcmp(dir, "/") == 0 ? "" : "/", base);
+    size_t len = 0;
+    return l->opt->overlay(l->opt->overlay_ctx, real, &len) ? real : NULL;
+}
+
 /* The printed path of an included file: tidied ("teams/a/../shared/r.yaml"
  * -> "teams/shared/r.yaml") when the tidy spelling names the same file. */
 static const char *display_of(ld *l, const char *joined, const char *real)
@@ -1111,6 +1132,7 @@ static void load_includes(ld *l, const file_ctx *fc, kn_node *list)
         }
         char *joined = join_path(l, dir_of(l, fc->real), path);
         char *real = real_path(l, joined);
+        bool unsaved = !real && (real = unsaved_buffer(l, joined)) != NULL;
         if (!real && !prefix_leaves_root(l, joined)) {
             refuse(l, item, "no such file", path, NULL);
             continue;
@@ -1129,7 +1151,7 @@ static void load_includes(ld *l, const file_ctx *fc, kn_node *list)
         }
         /* A folder, a FIFO or a device would fail or block when read. */
         struct stat st = {0};
-        if (stat(real, &st) != 0 || !S_ISREG(st.st_mode)) {
+        if (!unsaved && (stat(real, &st) != 0 || !S_ISREG(st.st_mode))) {
             refuse(l, item, S_ISDIR(st.st_mode) ? "it is a folder, not a file" : "it is not a regular file", path,
                    NULL);
             continue;
