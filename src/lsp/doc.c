@@ -266,6 +266,45 @@ void kn_lsp_drop_analysis(kn_doc *d)
     d->deps = NULL;
 }
 
+void kn_lsp_drop_kept(kn_doc *d)
+{
+    free(d->kept);
+    d->kept = NULL;
+    memset(d->n_kept, 0, sizeof d->n_kept);
+}
+
+void kn_lsp_keep_names(kn_doc *d, const kn_schema *sc)
+{
+    kn_lsp_drop_kept(d);
+    size_t n = sc->n_events + sc->n_sources + sc->n_columns, bytes = 0;
+    for (size_t i = 0; i < sc->n_events; i++) {
+        bytes += strlen(sc->events[i]->name) + 1;
+    }
+    for (size_t i = 0; i < sc->n_sources; i++) {
+        bytes += strlen(sc->sources[i]->name) + 1;
+    }
+    for (size_t i = 0; i < sc->n_columns; i++) {
+        bytes += strlen(sc->columns[i]->name) + 1;
+    }
+    char **p = kn_lsp_xmalloc(n * sizeof *p + bytes + 1);
+    char *b = (char *)(p + n);
+    size_t k = 0;
+    for (int kind = 0; kind < 3; kind++) {
+        size_t count = kind == 0 ? sc->n_events : kind == 1 ? sc->n_sources : sc->n_columns;
+        for (size_t i = 0; i < count; i++) {
+            const char *name = kind == 0   ? sc->events[i]->name
+                               : kind == 1 ? sc->sources[i]->name
+                                           : sc->columns[i]->name;
+            size_t len = strlen(name) + 1;
+            memcpy(b, name, len);
+            p[k++] = b;
+            b += len;
+        }
+        d->n_kept[kind] = count;
+    }
+    d->kept = p;
+}
+
 void kn_lsp_drop_rulebook(kn_doc *d)
 {
     if (d->rb_arena) {
@@ -280,6 +319,7 @@ void kn_lsp_drop_rulebook(kn_doc *d)
 static void free_doc(kn_doc *d)
 {
     kn_lsp_drop_analysis(d);
+    kn_lsp_drop_kept(d);
     kn_lsp_drop_rulebook(d);
     free(d->uri);
     free(d->path);

@@ -324,9 +324,29 @@ static void add_item(json_t *items, const char *label, int kind, const char *ins
     json_array_append_new(items, it);
 }
 
-static void add_names(json_t *items, const kn_schema *sc, kn_ref_kind k)
+/* The names kept from the last analysis that loaded d as a schema. */
+static void add_kept_names(json_t *items, const kn_doc *d, kn_ref_kind k)
 {
-    if (!sc) {
+    int kind = k == KN_REF_EVENT_K ? 0 : k == KN_REF_SOURCE_K ? 1 : k == KN_REF_COLUMN_K ? 2 : -1;
+    if (!d->kept || kind < 0) {
+        return;
+    }
+    static const int item_kind[] = {ITEM_EVENT, ITEM_REFERENCE, ITEM_FIELD};
+    static const char *const detail[] = {"event", "source", "column"};
+    size_t from = 0;
+    for (int i = 0; i < kind; i++) {
+        from += d->n_kept[i];
+    }
+    for (size_t i = 0; i < d->n_kept[kind]; i++) {
+        add_item(items, d->kept[from + i], item_kind[kind], NULL, detail[kind]);
+    }
+}
+
+/* The names of kind k: of sc, else those kept for d. */
+static void add_names(json_t *items, const kn_schema *sc, const kn_doc *d, kn_ref_kind k)
+{
+    if (!sc && k != KN_REF_RULE_K) {
+        add_kept_names(items, d, k);
         return;
     }
     if (k == KN_REF_EVENT_K) {
@@ -435,9 +455,9 @@ json_t *kn_lsp_completion(kn_server *s, kn_doc *d, long line, long character)
     json_t *items = json_array();
     if (value_pos && spec) {
         if (spec->ref != KN_REF_NONE) {
-            add_names(items, sc, spec->ref);
+            add_names(items, sc, d, spec->ref);
         } else if (spec->kind == KN_V_RELATION) {
-            add_names(items, sc, KN_REF_EVENT_K);
+            add_names(items, sc, d, KN_REF_EVENT_K);
         } else if (spec->kind == KN_V_ENUM && spec->values) {
             for (const char *const *v = spec->values; *v; v++) {
                 add_item(items, *v, ITEM_VALUE, NULL, NULL);
@@ -447,9 +467,9 @@ json_t *kn_lsp_completion(kn_server *s, kn_doc *d, long line, long character)
             add_item(items, "false", ITEM_VALUE, NULL, NULL);
         }
     } else if (names_of_event_keys) {
-        add_names(items, sc, KN_REF_EVENT_K);
+        add_names(items, sc, d, KN_REF_EVENT_K);
     } else if (list_item && spec && spec->ref != KN_REF_NONE && i == n) {
-        add_names(items, sc, spec->ref); /* - name, in a block list of names */
+        add_names(items, sc, d, spec->ref); /* - name, in a block list of names */
     } else if (sh) {
         for (size_t k = 0; k < sh->n_keys; k++) {
             const kn_key_spec *ks = &sh->keys[k];

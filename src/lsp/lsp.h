@@ -35,6 +35,13 @@ typedef struct kn_doc {
     /* The real paths of the other files the loader asked for (its
      * includes, also those it could not read), in the run's arena. */
     struct kn_dep *deps;
+    /* The names of the events, sources and columns of the last analysis
+     * that loaded a schema, kept while the text does not parse (someone is
+     * typing "derived_from: [" and the list is not closed yet): completion
+     * offers them.  One malloc block, the pointers then the bytes; NULL
+     * while the current analysis has a schema of its own. */
+    char **kept;
+    size_t n_kept[3]; /* events, sources, columns */
     /* The rulebook it was last judged under, kept from one change to the
      * next in an arena of its own while its files stay as they were
      * (NULL: none kept). */
@@ -79,6 +86,9 @@ void kn_doc_set_text(kn_doc *d, const char *text, size_t len);
 void kn_doc_close(kn_server *s, kn_doc *d);
 /* Frees the last analysis of d. */
 void kn_lsp_drop_analysis(kn_doc *d);
+/* Keeps the names of sc in d->kept (for completion), or drops them. */
+void kn_lsp_keep_names(kn_doc *d, const kn_schema *sc);
+void kn_lsp_drop_kept(kn_doc *d);
 /* Frees the rulebook kept for d. */
 void kn_lsp_drop_rulebook(kn_doc *d);
 /* The document whose real path is real, or NULL. */

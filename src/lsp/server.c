@@ -223,8 +223,12 @@ static kn_rulebook *rulebook_for(kn_server *s, kn_doc *d, kn_arena *ra)
  * document; keeps the run (model, timeline, findings) until the next one. */
 static void analyse(kn_server *s, kn_doc *d)
 {
+    if (d->arena && d->unit && d->unit->schema) {
+        kn_lsp_keep_names(d, d->unit->schema);
+    }
     kn_lsp_drop_analysis(d);
     if (!d->path || !is_schema(d)) {
+        kn_lsp_drop_kept(d);
         kn_lsp_drop_rulebook(d);
         return;
     }
@@ -259,6 +263,9 @@ static void analyse(kn_server *s, kn_doc *d)
     d->view = kn_sink_view(r->sink, a, &d->n_view);
     d->run = r;
     kn_arena_set_oom(a, NULL);
+    if (d->unit && d->unit->schema) {
+        kn_lsp_drop_kept(d);
+    }
 }
 
 kn_doc *kn_model_for(kn_server *s, kn_doc *doc)
