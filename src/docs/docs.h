@@ -65,6 +65,12 @@ const kn_doc_findings *kn_doc_findings_make(kn_arena *a, const kn_sink *sink, si
 const char *kn_row_class_heading(kn_row_class c);
 /* "maybe after the moment", "no timing declared", ... */
 const char *kn_row_class_words(kn_row_class c);
+/* A column's verdict in the words of the documents and the editor's hover:
+ * its group's words, "the target: not a feature", or "not placed: WHY"
+ * (raw, arena memory). */
+const char *kn_row_verdict_words(kn_arena *a, const kn_timeline *t, const kn_column *c, kn_row_class cls);
+/* "after-moment, join-latest-value (waived)", or "-" (arena memory). */
+const char *kn_row_rules_words(kn_arena *a, const kn_doc_row *row);
 /* "after-moment (error)", "join-latest-value (warning, waived)" (arena memory). */
 const char *kn_row_finding_words(kn_arena *a, const kn_row_finding *f);
 /* Where a column's timing and value come from, every name in full (raw:

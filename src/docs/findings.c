@@ -46,6 +46,30 @@ const char *kn_row_class_words(kn_row_class c)
     return c < KN_ROW_CLASS_COUNT ? class_words[c] : "";
 }
 
+const char *kn_row_verdict_words(kn_arena *a, const kn_timeline *t, const kn_column *c, kn_row_class cls)
+{
+    if (cls == KN_ROW_NOT_PLACED) {
+        return kn_printf(a, "not placed: %s", kn_column_not_placed_words(a, t, c));
+    }
+    if (cls == KN_ROW_NOT_FEATURE && (c->role == KN_ROLE_FEATURE || c->role == KN_ROLE_TARGET)) {
+        return "the target: not a feature";
+    }
+    return kn_row_class_words(cls);
+}
+
+const char *kn_row_rules_words(kn_arena *a, const kn_doc_row *row)
+{
+    if (!row->n_findings) {
+        return "-";
+    }
+    const char **parts = kn_alloc_array(a, row->n_findings, sizeof *parts);
+    for (size_t i = 0; i < row->n_findings; i++) {
+        const kn_row_finding *f = &row->findings[i];
+        parts[i] = f->waived ? kn_printf(a, "%s (waived)", kn_rule_get(f->rule)->id) : kn_rule_get(f->rule)->id;
+    }
+    return kn_doc_join(a, parts, row->n_findings, ", ");
+}
+
 bool kn_rule_about_column(kn_rule r)
 {
     /* The families whose subject is a column name; the preparation family

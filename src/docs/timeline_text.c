@@ -109,33 +109,6 @@ static const char *offset(kn_arena *a, int64_t v)
     return kn_printf(a, "%s%s", v > 0 ? "+" : "", b);
 }
 
-static const char *verdict_words(kn_arena *a, const kn_timeline *t, const kn_column *c,
-                                 const kn_column_timing *T, kn_row_class cls)
-{
-    if (cls == KN_ROW_NOT_PLACED) {
-        (void)T;
-        return kn_printf(a, "not placed: %s", esc(a, kn_column_not_placed_words(a, t, c)));
-    }
-    if (cls == KN_ROW_NOT_FEATURE && (c->role == KN_ROLE_FEATURE || c->role == KN_ROLE_TARGET)) {
-        return "the target: not a feature";
-    }
-    return kn_row_class_words(cls);
-}
-
-/* "after-moment, join-latest-value (waived)" */
-static const char *rules_words(kn_arena *a, const kn_doc_row *row)
-{
-    if (!row->n_findings) {
-        return "-";
-    }
-    const char **parts = kn_alloc_array(a, row->n_findings, sizeof *parts);
-    for (size_t i = 0; i < row->n_findings; i++) {
-        const kn_row_finding *f = &row->findings[i];
-        parts[i] = f->waived ? kn_printf(a, "%s (waived)", kn_rule_get(f->rule)->id) : kn_rule_get(f->rule)->id;
-    }
-    return kn_doc_join(a, parts, row->n_findings, ", ");
-}
-
 static void write_contradictions(FILE *out, kn_arena *a, const kn_timeline *t)
 {
     const kn_contradiction *cy;
@@ -247,7 +220,7 @@ void kn_timeline_write_text(FILE *out, const kn_schema *s, const kn_timeline *t,
                 hi = offset(a, T->range.hi);
             }
             const char *cells[] = {esc(a, c->name), kn_role_name(c->role), lo, hi,
-                                   verdict_words(a, t, c, T, row->cls), rules_words(a, row),
+                                   esc(a, kn_row_verdict_words(a, t, c, row->cls)), kn_row_rules_words(a, row),
                                    esc(a, kn_column_timing_words(a, c))};
             add_row(&co, cells);
         }

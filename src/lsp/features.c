@@ -8,6 +8,7 @@
 #include <stdlib.h>
 #include <string.h>
 
+#include "../docs/docs.h"
 #include "../schema/shape.h"
 #include "../time/timeline.h"
 #include "../util/text.h"
@@ -71,16 +72,31 @@ static const char *moment_name(const kn_timeline *t)
     return m ? m->name : "?";
 }
 
-static void hover_column(FILE *f, kn_arena *a, const kn_timeline *t, const kn_column *c)
+/* A column's range, verdict and rules as `check` and the documents give
+ * them (docs/findings.c: the groups come from the findings, so a column
+ * with an as_of join alone is "no timing declared" here as `check` calls it
+ * missing-known, and a column that is no feature is never late). */
+static void hover_column(FILE *f, kn_arena *a, const kn_schema *sc, const kn_timeline *t, const kn_sink *sink,
+                         const kn_column *c)
 {
     fprintf(f, "**column `%s`** (%s)\n\n", c->name, kn_role_name(c->role));
     const kn_column_timing *T = kn_timeline_column_timing(t, c);
-    if (T && T->computed) {
+    const kn_doc_findings *df = kn_doc_findings_make(a, sink, 0, sc, t);
+    const kn_doc_row *row = c->index < df->n_rows ? &df->rows[c->index] : NULL;
+    kn_row_class cls = row ? row->cls : KN_ROW_NOT_PLACED;
+    if (cls == KN_ROW_NO_TIMING) {
+        fprintf(f, "- no timing: none of known, window, derived_from%s\n",
+                c->join.present && c->join.as_of.name
+                    ? " (the as_of join says when the join reads, not when the value exists)"
+                    : "");
+    } else if (T && T->computed && cls != KN_ROW_NOT_PLACED) {
         fprintf(f, "- available %s\n", kn_timeline_range_words(a, T->range, moment_name(t)));
     }
-    fprintf(f, "- verdict: %s\n",
-            T && T->ordered ? verdict_name(T->verdict) : "not placed: on or behind a derivation cycle");
-    if (T && T->from_target) {
+    fprintf(f, "- verdict: %s\n", kn_row_verdict_words(a, t, c, cls));
+    if (row && row->n_findings) {
+        fprintf(f, "- rules: %s\n", kn_row_rules_words(a, row));
+    }
+    if (T && T->from_target && kn_column_is_feature(sc, c)) {
         fprintf(f, "- built from the target%s%s\n", T->target_via ? " via " : "",
                 T->target_via ? T->target_via->name : "");
     }
@@ -139,7 +155,11 @@ static void hover_source(FILE *f, const kn_schema *sc, const kn_source *src)
                                               : "kind unset");
     kn_duration_format(src->latency.lo, lo, sizeof lo);
     kn_duration_format(src->latency.hi, hi, sizeof hi);
-    fprintf(f, "- queryable between %s and %s after its event", lo, hi);
+    if (src->latency.lo == src->latency.hi) {
+        fprintf(f, "- queryable %s after its event", lo);
+    } else {
+        fprintf(f, "- queryable between %s and %s after its event", lo, hi);
+    }
     if (src->has_refresh) {
         kn_duration_format(src->refresh, hi, sizeof hi);
         fprintf(f, ", plus up to %s of refresh", hi);
@@ -164,6 +184,7 @@ json_t *kn_lsp_hover(kn_server *s, kn_doc *d, long line, long character)
         return NULL;
     }
     const kn_schema *sc = u->schema;
+    const kn_sink *sink = kn_model_for(s, d)->run->sink;
     const kn_column *c = kn_schema_column(sc, name);
     const kn_event *e = kn_schema_event(sc, name);
     const kn_source *src = kn_schema_source(sc, name);
@@ -178,7 +199,7 @@ json_t *kn_lsp_hover(kn_server *s, kn_doc *d, long line, long character)
             kn_arena_set_oom(a, &oom);
             const char *sep = "";
             if (c) {
-                hover_column(f, a, u->timeline, c);
+                hover_column(f, a, sc, u->timeline, sink, c);
                 sep = "\n---\n\n";
             }
             if (e) {
