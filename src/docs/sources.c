@@ -408,6 +408,9 @@ static void md_use_cells(FILE *out, const reg *r, const use *u)
     if (u->via == VIA_DERIVED) {
         fputs("derived, through ", out);
         md(out, u->input->name);
+    } else if (c->n_one_of) {
+        fputs("one of ", out);
+        md(out, kn_doc_names(r->a, c->one_of, c->n_one_of, " | "));
     } else if (c->known.name) {
         md(out, c->known.name);
     } else if (c->window.present && c->window.anchor.name) {
@@ -438,6 +441,11 @@ static void md_use_cells(FILE *out, const reg *r, const use *u)
     fputs(" | ", out);
     if (c->join.as_of.name) {
         md(out, c->join.as_of.name);
+        if (c->join.has_offset) {
+            char b[48];
+            int64_t v = c->join.offset.lo < 0 ? c->join.offset.lo : c->join.offset.hi;
+            fprintf(out, " %s%s", v > 0 ? "+" : "", kn_duration_format(v, b, sizeof b));
+        }
     } else {
         fputs("**latest value**", out);
     }
