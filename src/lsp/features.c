@@ -562,11 +562,49 @@ static json_t *waiver_action(kn_server *s, const kn_view *v, kn_node *key, kn_no
     char *title = NULL;
     json_t *range = NULL;
     char *text = NULL;
-    if (value && value->kind == KN_NODE_MAP && kn_map_get(value, "waive")) {
-        return NULL; /* a waive list exists: the user adds to it */
-    }
     long line, character;
-    if (value && value->kind == KN_NODE_MAP && value->raw && value->raw[0] == '{') {
+    kn_node *list = value && value->kind == KN_NODE_MAP ? kn_map_get(value, "waive") : NULL;
+    char item[160];
+    snprintf(item, sizeof item, "{rule: %s, reason: \"TODO: why this does not apply\"}", id);
+    if (list) {
+        /* A waive list exists: the skeleton becomes its first item. */
+        if (list->kind != KN_NODE_SEQ || !list->raw) {
+            return NULL;
+        }
+        if (list->raw[0] == '[') {
+            lsp_pos(s, &list->pos, 1, &line, &character);
+            range = point_range(line, character);
+            size_t n = strlen(item) + 3;
+            text = kn_lsp_xmalloc(n);
+            snprintf(text, n, "%s%s", item, list->u.seq.n ? ", " : "");
+        } else {
+            /* A block list: a line like its first item's, before it. */
+            kn_doc *d = kn_doc_by_file(s, key->pos.file);
+            const kn_node *first = list->u.seq.n ? list->u.seq.items[0] : NULL;
+            if (!d || !first || first->pos.offset > d->len) {
+                return NULL;
+            }
+            size_t b = first->pos.offset;
+            while (b > 0 && d->text[b - 1] != '\n' && d->text[b - 1] != '\r') {
+                b--;
+            }
+            size_t plen = first->pos.offset - b;
+            for (size_t k = 0; k < plen; k++) {
+                if (d->text[b + k] != ' ' && d->text[b + k] != '-') {
+                    return NULL;
+                }
+            }
+            if (!memchr(d->text + b, '-', plen)) {
+                return NULL;
+            }
+            kn_doc_position(d, b, &line, &character);
+            range = point_range(line, character);
+            size_t n = plen + strlen(item) + 2;
+            text = kn_lsp_xmalloc(n);
+            memcpy(text, d->text + b, plen);
+            snprintf(text + plen, n - plen, "%s\n", item);
+        }
+    } else if (value && value->kind == KN_NODE_MAP && value->raw && value->raw[0] == '{') {
         lsp_pos(s, &value->pos, 1, &line, &character);
         range = point_range(line, character);
         size_t n = strlen(waiver) + 3;
