@@ -34,7 +34,8 @@
 #define ROW_HEAD 22.0 /* a row's first line: name, bar, verdict */
 #define ROW_PAD 7.0
 #define MIN_TICK_GAP 40.0
-#define NAME_CHARS 56 /* code points of a name shown before it is cut */
+#define NAME_CHARS 56 /* code points of a name on one line (longer ones wrap) */
+#define NAME_LINE 14.0 /* a further line of a wrapped 12px name */
 
 /* Average advance of a character, for laying out and wrapping (generous, so
  * that a wrapped line never runs into the next column). */
@@ -508,6 +509,38 @@ static double lines_h(size_t n)
     return n ? LINE * (double)n : 0;
 }
 
+/* A row's name in full, wrapped at NAME_CHARS code points a line (a name
+ * cut short could leave two rows that read the same). */
+static lines name_lines(kn_arena *a, const char *name)
+{
+    lines l = {0};
+    wrap(a, &l, name, NAME_CHARS, -1);
+    if (!l.n) {
+        lines_add(a, &l, "", -1);
+    }
+    return l;
+}
+
+/* How far a wrapped name pushes the lines under it down. */
+static double name_extra(const lines *name)
+{
+    return NAME_LINE * (double)(name->n - 1);
+}
+
+/* The name's lines, the first on the row's first line; each is class
+ * "name", so that a reader can put the name together again. */
+static void draw_name(FILE *f, double cy, const lines *name)
+{
+    for (size_t i = 0; i < name->n; i++) {
+        text(f, NAME_X, cy + 4 + NAME_LINE * (double)i, 12, "class=\"name\"", name->text[i]);
+    }
+}
+
+static double max_h(double a, double b)
+{
+    return a > b ? a : b;
+}
+
 /* ---- rows --------------------------------------------------------------- */
 
 /* A group's heading; fill/stroke, when given, draw its swatch first. */
@@ -566,7 +599,8 @@ static double event_height(svg *g, const kn_timeline *t, const kn_event *e, bool
     } else {
         wrap(g->a, &right, "a schema error or a contradiction", NOTE_CHARS, -1);
     }
-    return right.n ? ROW_HEAD + lines_h(right.n) + ROW_PAD : 24.0;
+    lines name = name_lines(g->a, e->name);
+    return right.n || name.n > 1 ? ROW_HEAD + max_h(name_extra(&name), lines_h(right.n)) + ROW_PAD : 24.0;
 }
 
 /* An event's row; placed false: it has no range (set aside). */
@@ -593,7 +627,8 @@ static void event_row(svg *g, const kn_timeline *t, const kn_event *e, const kn_
     fputs("<g class=\"event\"><title>", f);
     put_str(f, tip);
     fputs("</title>\n", f);
-    text(f, NAME_X, cy + 4, 12, NULL, cut(g->a, e->name, NAME_CHARS));
+    lines name = name_lines(g->a, e->name);
+    draw_name(f, cy, &name);
     if (none) {
         fprintf(f,
                 "<line x1=\"%.1f\" y1=\"%.1f\" x2=\"%.1f\" y2=\"%.1f\" stroke=\"%s\" "
@@ -606,7 +641,7 @@ static void event_row(svg *g, const kn_timeline *t, const kn_event *e, const kn_
     text(f, NOTE_X, cy + 4, 11, e == m ? "font-weight=\"bold\"" : "fill=\"#333333\"", words);
     detail(g, NOTE_X, g->y, &right, "fill=\"" C_MUTED "\"");
     fputs("</g>\n", f);
-    g->y += right.n ? ROW_HEAD + lines_h(right.n) + ROW_PAD : 24.0;
+    g->y += right.n || name.n > 1 ? ROW_HEAD + max_h(name_extra(&name), lines_h(right.n)) + ROW_PAD : 24.0;
 }
 
 /* The words under a column's verdict: its range, or why it has none. */
@@ -641,7 +676,8 @@ static double column_height(svg *g, const kn_timeline *t, const kn_column *c, co
 {
     lines left = {0}, right = {0};
     column_lines(g, t, c, row, &left, &right);
-    return ROW_HEAD + lines_h(left.n > right.n ? left.n : right.n) + ROW_PAD;
+    lines name = name_lines(g->a, c->name);
+    return ROW_HEAD + max_h(name_extra(&name) + lines_h(left.n), lines_h(right.n)) + ROW_PAD;
 }
 
 /* One finding as the hover text says it. */
@@ -678,8 +714,9 @@ static void column_row(svg *g, const kn_timeline *t, const kn_column *c, const k
     fputs("<g class=\"column\"><title>", f);
     put_str(f, tip);
     fputs("</title>\n", f);
-    text(f, NAME_X, cy + 4, 12, NULL, cut(g->a, c->name, NAME_CHARS));
-    detail(g, NAME_X + 10, g->y, &left, "fill=\"" C_MUTED "\"");
+    lines name = name_lines(g->a, c->name);
+    draw_name(f, cy, &name);
+    detail(g, NAME_X + 10, g->y + name_extra(&name), &left, "fill=\"" C_MUTED "\"");
     if (!group_has_bar(gr)) {
         fprintf(f,
                 "<line x1=\"%.1f\" y1=\"%.1f\" x2=\"%.1f\" y2=\"%.1f\" stroke=\"#bfbfbf\" "
@@ -714,7 +751,7 @@ static void column_row(svg *g, const kn_timeline *t, const kn_column *c, const k
         fputs("</g>\n", f);
     }
     fputs("</g>\n", f);
-    g->y += ROW_HEAD + lines_h(left.n > right.n ? left.n : right.n) + ROW_PAD;
+    g->y += ROW_HEAD + max_h(name_extra(&name) + lines_h(left.n), lines_h(right.n)) + ROW_PAD;
 }
 
 /* ---- the label horizon against the split's gap -------------------------- */
@@ -996,7 +1033,8 @@ static const char *summary(svg *g, const kn_schema *s, const size_t *n_group)
     const char *sep = " ";
     for (int k = 0; k < KN_ROW_CLASS_COUNT; k++) {
         if (n_group[k]) {
-            out = kn_printf(g->a, "%s%s%zu %s", out, sep, n_group[k], words[k]);
+            out = kn_printf(g->a, "%s%s%zu %s", out, sep, n_group[k],
+                            k == KN_ROW_NOT_FEATURE && n_group[k] == 1 ? "not a feature" : words[k]);
             sep = ", ";
         }
     }
@@ -1102,7 +1140,7 @@ void kn_timeline_write_svg(FILE *out, const kn_schema *s, const kn_timeline *t, 
     const char *sub = kn_printf(g.a,
                                 "When each event happens and when each column's value is available, "
                                 "relative to the prediction moment '%s'.",
-                                cut(g.a, m->name, 40));
+                                cut(g.a, m->name, 96));
     text(out, NAME_X, 50, 12, "fill=\"#333333\"", sub);
     text(out, NAME_X, 66, 12, "fill=\"#333333\"",
          kn_timeline_strict(t)
