@@ -517,6 +517,17 @@ static bool missing_groups(db_run *r, const source *src, kn_dx *cx, const kn_tco
     return !kn_db_failed(r->db);
 }
 
+/* The statistics of a column's table cx, which is a sample of `of` rows
+ * of the table (0: every row), of n rows (0: its own count). */
+static void statistics(db_run *r, kn_dx *cx, uint64_t of, uint64_t n)
+{
+    cx->sampled_of = of;
+    cx->sample_rows = n;
+    cx->target_said = r->x.target_said;
+    kn_data_statistics(cx);
+    r->x.target_said = cx->target_said;
+}
+
 /* Whether a column's values must be read to be checked: a type the
  * engine's SQL type does not already guarantee, or a format. */
 static bool values_to_check(const db_run *r, const kn_tcol *c, kn_db_type kind)
@@ -578,11 +589,7 @@ static bool stats_in(db_run *r, size_t i, kn_db_type kind, kn_arena *ca, const s
             return false;
         }
         if (counted && cx.t.cols[0].has_auc) {
-            cx.sampled_of = of;
-            cx.sample_rows = of ? r->sample_rows : 0;
-            cx.target_said = x->target_said;
-            kn_data_statistics(&cx);
-            x->target_said = cx.target_said;
+            statistics(r, &cx, of, of ? r->sample_rows : 0);
             return true;
         }
     }
@@ -616,11 +623,7 @@ static bool stats_in(db_run *r, size_t i, kn_db_type kind, kn_arena *ca, const s
             return false;
         }
     }
-    cx.sampled_of = of;
-    cx.sample_rows = of ? r->sample_rows : 0;
-    cx.target_said = x->target_said;
-    kn_data_statistics(&cx);
-    x->target_said = cx.target_said;
+    statistics(r, &cx, of, of ? r->sample_rows : 0);
     return true;
 }
 
@@ -648,7 +651,6 @@ static bool column_in(db_run *r, size_t i, kn_db_type kind, kn_arena *ca)
         kn_dx cx;
         bool wide;
         column_table(r, &cx, ca, c, x->decl[i], true, true);
-        cx.sampled_of = x->t.rows;
         kn_db_rows *q = query_on(r, &sample,
                                  kn_sql_groups_query(ca, r->d, NULL, sample.query_sql, c->name, x->t.target->name,
                                                      2 * id_rows),
@@ -656,9 +658,7 @@ static bool column_in(db_run *r, size_t i, kn_db_type kind, kn_arena *ca)
         if (!q || !feed(r, &cx, q, true, true, 2 * id_rows, &wide, NULL)) {
             return false;
         }
-        cx.target_said = x->target_said;
-        kn_data_statistics(&cx);
-        x->target_said = cx.target_said;
+        statistics(r, &cx, x->t.rows, 0);
         return true;
     }
     if (r->sampled) {

@@ -473,26 +473,18 @@ static int parse(int argc, char **argv, int first, args *ar)
                 return bad("%s needs a folder", "--root");
             }
             ar->opt.root = v;
-        } else if (is_opt(a, "--max-rows")) {
-            if (!(v = value_of(argc, argv, &i, "--max-rows"))) {
-                return bad("%s needs a number", "--max-rows");
+        } else if (is_opt(a, "--max-rows") || is_opt(a, "--max-groups")) {
+            bool rows = is_opt(a, "--max-rows");
+            const char *name = rows ? "--max-rows" : "--max-groups";
+            if (!(v = value_of(argc, argv, &i, name))) {
+                return bad("%s needs a number", name);
             }
             char *end;
             long long n = strtoll(v, &end, 10);
             if (*end || n < 1) {
-                return bad("--max-rows takes a positive number, not '%s'", v);
+                return bad("%s takes a positive number, not '%s'", name, v);
             }
-            ar->opt.max_rows = n;
-        } else if (is_opt(a, "--max-groups")) {
-            if (!(v = value_of(argc, argv, &i, "--max-groups"))) {
-                return bad("%s needs a number", "--max-groups");
-            }
-            char *end;
-            long long n = strtoll(v, &end, 10);
-            if (*end || n < 1) {
-                return bad("--max-groups takes a positive number, not '%s'", v);
-            }
-            ar->opt.max_groups = n;
+            *(rows ? &ar->opt.max_rows : &ar->opt.max_groups) = n;
         } else if (is_opt(a, "--svg")) {
             if (!(v = value_of(argc, argv, &i, "--svg"))) {
                 return bad("%s needs a file", "--svg");

@@ -784,17 +784,23 @@ char *kn_sql_overlap_query(kn_arena *a, kn_sql_dialect d, const kn_rulebook *rb,
     return overlap_sql(&c, rb, split, cols, n, entity, entity ? NULL : key, sides, hash_rows);
 }
 
+/* cols[0..n) as quoted identifiers, separated by commas. */
+static void ident_list(sbuf *b, kn_sql_dialect d, const char *const *cols, size_t n)
+{
+    for (size_t i = 0; i < n; i++) {
+        if (i) {
+            puts_(b, ", ");
+        }
+        ident(b, d, cols[i]);
+    }
+}
+
 char *kn_sql_hash_probe(kn_arena *a, kn_sql_dialect d, const char *table, const char *query_sql,
                         const char *const *cols, size_t n)
 {
     sbuf b = {a, NULL, 0, 0};
     puts_(&b, "SELECT hash_record_extended(ROW(");
-    for (size_t i = 0; i < n; i++) {
-        if (i) {
-            puts_(&b, ", ");
-        }
-        ident(&b, d, cols[i]);
-    }
+    ident_list(&b, d, cols, n);
     puts_(&b, "), 0) AS h");
     from(&b, d, table, query_sql);
     limit(&b, d, 1);
@@ -808,12 +814,7 @@ char *kn_sql_qi_query(kn_arena *a, kn_sql_dialect d, const char *table, const ch
     puts_(&q, "SELECT group_size, COUNT(*) AS n_groups\nFROM (SELECT COUNT(*) AS group_size\n     ");
     from(&q, d, table, query_sql);
     puts_(&q, "\n      GROUP BY ");
-    for (size_t i = 0; i < n; i++) {
-        if (i) {
-            puts_(&q, ", ");
-        }
-        ident(&q, d, cols[i]);
-    }
+    ident_list(&q, d, cols, n);
     puts_(&q, ") AS ");
     ident(&q, d, "qi_groups");
     puts_(&q, "\nGROUP BY group_size ORDER BY group_size");
