@@ -472,8 +472,24 @@ static void lines_add(kn_arena *a, lines *l, const char *s, int tag)
     l->tag[l->n++] = tag;
 }
 
-/* Appends s wrapped at max code points a line: at the last space that fits,
- * or after max code points inside a longer word.  Nothing is cut off. */
+/* Whether the space at s[j] holds a duration together ("2h 15min",
+ * "-4d 23h"): the word before it starts with a digit (after a sign) and the
+ * word after it too.  A line is not broken there. */
+static bool duration_space(const char *s, size_t from, size_t j, size_t len)
+{
+    size_t t = j;
+    while (t > from && s[t - 1] != ' ') {
+        t--;
+    }
+    if (t < j && (s[t] == '+' || s[t] == '-')) {
+        t++;
+    }
+    return t < j && s[t] >= '0' && s[t] <= '9' && j + 1 < len && s[j + 1] >= '0' && s[j + 1] <= '9';
+}
+
+/* Appends s wrapped at max code points a line: at the last space that fits
+ * (not inside a duration), or after max code points inside a longer word.
+ * Nothing is cut off. */
 static void wrap(kn_arena *a, lines *l, const char *s, size_t max, int tag)
 {
     size_t len = strlen(s), i = 0;
@@ -487,14 +503,14 @@ static void wrap(kn_arena *a, lines *l, const char *s, size_t max, int tag)
         }
         size_t j = i, n = 0, space = 0;
         while (j < len && n < max) {
-            if (s[j] == ' ') {
+            if (s[j] == ' ' && !duration_space(s, i, j, len)) {
                 space = j;
             }
             size_t k = kn_utf8_valid_seq((const unsigned char *)s + j, len - j);
             j += k ? k : 1;
             n++;
         }
-        size_t end = j >= len || s[j] == ' ' ? j : space > i ? space : j;
+        size_t end = j >= len || (s[j] == ' ' && !duration_space(s, i, j, len)) ? j : space > i ? space : j;
         lines_add(a, l, kn_strndup(a, s + i, end - i), first ? tag : (tag >= 0 ? -2 : tag));
         first = false;
         i = end;
@@ -510,11 +526,36 @@ static double lines_h(size_t n)
 }
 
 /* A row's name in full, wrapped at NAME_CHARS code points a line (a name
- * cut short could leave two rows that read the same). */
+ * cut short could leave two rows that read the same): after the last '_',
+ * '-', '.' or space that fits, else after NAME_CHARS code points.  Nothing
+ * is dropped: the lines put together are the name. */
 static lines name_lines(kn_arena *a, const char *name)
 {
     lines l = {0};
-    wrap(a, &l, name, NAME_CHARS, -1);
+    size_t len = strlen(name), i = 0;
+    while (i < len) {
+        size_t j = i, n = 0, brk = 0, before = 0, n_brk = 0, n_before = 0;
+        while (j < len && n < NAME_CHARS) {
+            char c = name[j];
+            size_t k = kn_utf8_valid_seq((const unsigned char *)name + j, len - j);
+            j += k ? k : 1;
+            n++;
+            if (c == '_' || c == '-' || c == '.' || c == ' ') {
+                before = brk;
+                n_before = n_brk;
+                brk = j;
+                n_brk = n;
+            }
+        }
+        /* A last line of a few characters ("bakery_" / "0") reads badly:
+         * then the separator before, when the line keeps half its width. */
+        if (j < len && brk > i && len - brk < 8 && before > i && n_before >= NAME_CHARS / 2) {
+            brk = before;
+        }
+        size_t end = j >= len || brk <= i ? j : brk;
+        lines_add(a, &l, kn_strndup(a, name + i, end - i), -1);
+        i = end;
+    }
     if (!l.n) {
         lines_add(a, &l, "", -1);
     }

@@ -17,6 +17,7 @@ For each schema the picture is drawn twice and checked:
     full name, on one <text class="name"> line or wrapped over several, so
     that long names that differ only at their ends stay apart (names read
     with PyYAML, so escaping is checked against an independent YAML reader);
+  - a wrapped text is not broken inside a duration ("+2h" / "15min");
   - the moment line is present, vertical, spans every row, and stands at
     the x of the "0" tick label;
   - a contradictory timeline is stated, its set-aside events drawn without
@@ -141,11 +142,8 @@ def check_schema(exe, schema, tmp):
         want = "%s %s: " % (kind, shown(name))
         for title, texts in rows.get(kind, []):
             if title.startswith(want):
-                # the name in full, on one line or wrapped over several (a
-                # line break at a space drops that space)
-                label = "".join(texts)
-                if label.replace(" ", "") == shown(name).replace(" ", "") and texts and \
-                        shown(name).startswith(texts[0]):
+                # the name in full, on one line or wrapped over several
+                if "".join(texts) == shown(name):
                     return True
                 check(False, "%s: %s label %r does not match %r" % (schema, kind, texts, name))
                 return True
@@ -156,13 +154,26 @@ def check_schema(exe, schema, tmp):
     for c in columns:
         check(has_row("column", c), "%s: no row for column %r" % (schema, c))
 
+    # A wrapped text is not broken inside a duration ("+2h" / "15min"): two
+    # lines one under the other (same x and size, one line apart) where the
+    # first ends in a word that starts with a digit and the second starts
+    # with a digit.
+    texts = [t for t in root.iter(Q + "text")]
+    for a, b in zip(texts, texts[1:]):
+        if a.get("x") != b.get("x") or a.get("font-size") != b.get("font-size"):
+            continue
+        dy = float(b.get("y")) - float(a.get("y"))
+        last = (a.text or "").rsplit(" ", 1)[-1]
+        if 0 < dy <= 14 and re.match(r"[+-]?[0-9]", last) and re.match(r"[0-9]", b.text or ""):
+            check(False, "%s: a duration broken over two lines: %r / %r" % (schema, a.text, b.text))
+
     # The moment line: vertical, at the x of the bold "0" tick label, spanning the rows.
     moment = [el for el in root.iter(Q + "line") if el.get("class") == "moment"]
     check(len(moment) == 1, "%s: %d moment lines" % (schema, len(moment)))
     if moment:
         m = moment[0]
         check(m.get("x1") == m.get("x2"), "%s: moment line is not vertical" % schema)
-        zero = [t for t in root.iter(Q + "text") if t.text == "0"]
+        zero = [t for t in root.iter(Q + "text") if t.text == "0" and t.get("class") != "name"]
         check(zero and all(t.get("x") == m.get("x1") for t in zero),
               "%s: moment line not at the 0 tick" % schema)
         ys = [float(t.get("y")) for g in root.iter(Q + "g") if g.get("class") in ("event", "column")
