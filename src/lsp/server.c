@@ -601,6 +601,14 @@ static bool position_of(json_t *pos, long *line, long *character)
     return true;
 }
 
+/* The bytes a list of range changes may copy in all: each change rebuilds
+ * the text, so a list of many small changes to a large text costs their
+ * number times its length (a 32 MiB text and a 32 MiB list of 300,000
+ * one-character changes would take hours).  Editors send the full text,
+ * the sync we ask for; a list over the budget (64 MiB: some 30 ms) is
+ * refused whole. */
+#define KN_LSP_EDIT_BUDGET ((size_t)64 << 20)
+
 /* didChange: full text (the sync we ask for), or ranges applied in order.
  * A list with a malformed change is refused whole, before any change of it
  * is applied: the text stays the one the last analysis saw. */
@@ -625,7 +633,7 @@ static bool apply_changes(kn_doc *d, json_t *changes)
      * then the document goes back to its text before the list, so that it
      * never holds part of an edit the client made whole. */
     char *before = kn_lsp_xstrndup(d->text, d->len);
-    size_t before_len = d->len;
+    size_t before_len = d->len, work = 0;
     bool ok = true;
     json_array_foreach(changes, i, ch)
     {
@@ -645,7 +653,8 @@ static bool apply_changes(kn_doc *d, json_t *changes)
             b = t;
         }
         size_t tl = json_string_length(text), n = d->len - (b - a) + tl;
-        if (n > KN_RPC_MAX_BODY) {
+        work += n;
+        if (n > KN_RPC_MAX_BODY || work > KN_LSP_EDIT_BUDGET) {
             ok = false;
             break;
         }

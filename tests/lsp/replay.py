@@ -22,7 +22,8 @@ A sequence has one step a line ('#' starts a comment):
   remove NAME        removes NAME from the scratch folder
 In JSON, ${ROOT} is this folder, ${URI} its file: URI and ${TEXT:PATH} the
 text of PATH (under this folder) as the inside of a JSON string; ${SCRATCH}
-and ${SCRATCH_URI} are the scratch folder and its URI.
+and ${SCRATCH_URI} are the scratch folder and its URI; ${REPEAT:N:TEXT:REPEAT}
+is TEXT written N times (large texts and long lists in one line).
 """
 import json
 import os
@@ -41,6 +42,11 @@ def substitute(s):
     out = s.replace("${ROOT}", ROOT).replace("${URI}", "file://" + ROOT)
     if SCRATCH:
         out = out.replace("${SCRATCH_URI}", "file://" + SCRATCH).replace("${SCRATCH}", SCRATCH)
+    while "${REPEAT:" in out:
+        a = out.index("${REPEAT:")
+        b = out.index(":REPEAT}", a)
+        count, _, text = out[a + 9:b].partition(":")
+        out = out[:a] + text * int(count) + out[b + 8:]
     while "${TEXT:" in out:
         a = out.index("${TEXT:")
         b = out.index("}", a)
