@@ -675,6 +675,16 @@ static void js_use(FILE *out, const reg *r, const use *u)
     js_str_or_null(out, u->input ? u->input->name : NULL);
     fputs(", \"known\": ", out);
     js_str_or_null(out, c->known.name);
+    fputs(", \"known_one_of\": ", out);
+    if (c->n_one_of) {
+        for (size_t k = 0; k < c->n_one_of; k++) {
+            fputs(k ? ", " : "[", out);
+            kn_fput_json_str(out, c->one_of[k].name);
+        }
+        fputs("]", out);
+    } else {
+        fputs("null", out);
+    }
     fputs(", \"window\": ", out);
     if (c->window.present && c->window.anchor.name) {
         fputs("{\"anchor\": ", out);
@@ -696,6 +706,12 @@ static void js_use(FILE *out, const reg *r, const use *u)
         }
         fputs("], \"as_of\": ", out);
         js_str_or_null(out, c->join.as_of.name);
+        fputs(", \"as_of_offset_seconds\": ", out);
+        if (c->join.as_of.name && c->join.has_offset) {
+            js_seconds(out, c->join.offset.lo < 0 ? c->join.offset.lo : c->join.offset.hi);
+        } else {
+            fputs("null", out);
+        }
         fprintf(out, ", \"latest_value\": %s}", c->join.as_of.name ? "false" : "true");
     } else {
         fputs("null", out);
