@@ -36,6 +36,18 @@ fi
 run check --data 'odbc:DSN=x' -- parcels.knowable.yaml
 [ "$rc" = 2 ] || fail "a database --data without --table: exit $rc"
 
+# The driver manager is loaded when a database is opened, not linked: a run
+# without one maps nothing of it, and a driver manager that cannot be
+# loaded is exit 2 with the loader's reason.
+if [ "$built" = yes ]; then
+    if command -v readelf >/dev/null 2>&1 && readelf -d "$knowable" | grep -q 'NEEDED.*libodbc'; then
+        fail "knowable is linked with libodbc (it should load it on demand)"
+    fi
+    KNOWABLE_ODBC_LIBRARY=$tmp/no-such-libodbc.so run check --data 'odbc:DSN=x' --table parcels -- parcels.knowable.yaml
+    [ "$rc" = 2 ] || fail "a driver manager that cannot be loaded: exit $rc"
+    grep -q "cannot load unixODBC's driver manager .*no-such-libodbc.so" err || fail "no reason when the driver manager cannot be loaded"
+fi
+
 if [ "$built" = yes ] && odbcinst -q -d -n SQLite3 >/dev/null 2>&1 && [ -x /usr/bin/python3 ]; then
     /usr/bin/python3 -c "
 import sqlite3
