@@ -224,8 +224,40 @@ json_t *kn_lsp_hover(kn_server *s, kn_doc *d, long line, long character)
 
 /* --- Definition ---------------------------------------------------------- */
 
+/* The file an include item at offset names, when the cursor is on one: the
+ * first item that read each included file is kept by the loader. */
+static const kn_schema_file *included_at(const kn_schema *sc, const kn_doc *d, size_t offset)
+{
+    const char *display = NULL;
+    for (size_t k = 0; d->real && k < sc->n_files; k++) {
+        if (strcmp(sc->files[k].path, d->real) == 0) {
+            display = sc->files[k].display;
+        }
+    }
+    for (size_t j = 0; display && j < sc->n_files; j++) {
+        const kn_node *via = sc->files[j].via;
+        if (!via || strcmp(via->pos.file, display) != 0 || via->pos.offset > offset || via->pos.offset > d->len) {
+            continue;
+        }
+        if (offset <= via->pos.offset + kn_token_len(d->text, d->len, via->pos.offset)) {
+            return &sc->files[j];
+        }
+    }
+    return NULL;
+}
+
 json_t *kn_lsp_definition(kn_server *s, kn_doc *d, long line, long character)
 {
+    kn_doc *m = kn_model_for(s, d);
+    if (m && m->unit && m->unit->schema) {
+        const kn_schema_file *f = included_at(m->unit->schema, d, kn_doc_offset(d, line, character));
+        if (f) {
+            kn_pos start = {f->display, 1, 1, 0};
+            json_t *out = json_array();
+            json_array_append_new(out, kn_location_at(s, &start));
+            return out;
+        }
+    }
     char *name;
     const kn_unit *u = lookup(s, d, line, character, &name);
     if (!u) {

@@ -1206,7 +1206,7 @@ static void load_file(ld *l, const char *real, const char *display, bool main_fi
     if (l->s->n_files) {
         memcpy(files, l->s->files, l->s->n_files * sizeof *files);
     }
-    files[l->s->n_files++] = (kn_schema_file){real, display, root};
+    files[l->s->n_files++] = (kn_schema_file){real, display, root, via};
     l->s->files = files;
 
     file_ctx fc = {real, display, via};

@@ -314,6 +314,7 @@ typedef struct kn_schema_file {
     const char *path;    /* as opened */
     const char *display; /* as printed */
     kn_node *root;
+    const kn_node *via; /* the include item that read it first; NULL: the schema */
 } kn_schema_file;
 
 typedef struct kn_name_map kn_name_map; /* string -> pointer (names.c) */
