@@ -71,6 +71,12 @@ const char *kn_row_class_words(kn_row_class c);
 const char *kn_row_verdict_words(kn_arena *a, const kn_timeline *t, const kn_column *c, kn_row_class cls);
 /* "after-moment, join-latest-value (waived)", or "-" (arena memory). */
 const char *kn_row_rules_words(kn_arena *a, const kn_doc_row *row);
+/* The source of schema s a finding is against, or NULL: a source's own
+ * finding (its provenance, that nothing uses it), or a column's that names
+ * the source it reads (a latest-value join, a join that cannot go back in
+ * time, unsettled values): the join's source, else the column's own, as
+ * the checks read it.  *column is that column, or NULL. */
+const kn_source *kn_doc_finding_source(const kn_schema *s, const kn_view *v, const kn_column **column);
 /* "after-moment (error)", "join-latest-value (warning, waived)" (arena memory). */
 const char *kn_row_finding_words(kn_arena *a, const kn_row_finding *f);
 /* Where a column's timing and value come from, every name in full (raw:

@@ -345,6 +345,24 @@ const char *kn_column_not_placed_words(kn_arena *a, const kn_timeline *t, const 
     return "a reference or duration is in error";
 }
 
+const kn_source *kn_doc_finding_source(const kn_schema *s, const kn_view *v, const kn_column **column)
+{
+    *column = NULL;
+    if (v->rule == KN_R_EXTERNAL_WITHOUT_PROVENANCE || v->rule == KN_R_UNUSED_SOURCE) {
+        return kn_schema_source(s, v->subject);
+    }
+    if (v->rule != KN_R_JOIN_LATEST_VALUE && v->rule != KN_R_NO_POINT_IN_TIME_HISTORY &&
+        v->rule != KN_R_READS_UNSETTLED_VALUES) {
+        return NULL;
+    }
+    const kn_column *c = kn_schema_column(s, v->subject);
+    if (!c) {
+        return NULL;
+    }
+    *column = c;
+    return c->join.source.name ? KN_REF_SOURCE(c->join.source) : KN_REF_SOURCE(c->source);
+}
+
 const char *kn_row_finding_words(kn_arena *a, const kn_row_finding *f)
 {
     const char *id = kn_rule_get(f->rule)->id;

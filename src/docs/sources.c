@@ -162,11 +162,7 @@ static void derived_uses(reg *r, size_t si, const kn_column *c, size_t *seen, co
     }
 }
 
-/* The findings of schema si against its sources: those about a source
- * (its provenance, that nothing uses it) and those about a column that name
- * the source it reads (a latest-value join, a join that cannot go back in
- * time, unsettled values): the join's source, else the column's own, as the
- * checks read it. */
+/* The findings of schema si against its sources (kn_doc_finding_source). */
 static void gather_findings(reg *r, size_t si)
 {
     const kn_schema *s = r->schemas[si];
@@ -174,30 +170,12 @@ static void gather_findings(reg *r, size_t si)
     if (!f) {
         return;
     }
-    kn_name_map *sources = kn_names_new(r->a), *columns = kn_names_new(r->a);
-    for (size_t i = 0; i < s->n_sources; i++) {
-        kn_names_put(sources, s->sources[i]->name, r->of_source[i]);
-    }
-    for (size_t i = 0; i < s->n_columns; i++) {
-        kn_names_put(columns, s->columns[i]->name, s->columns[i]);
-    }
     for (size_t i = 0; i < f->n_all; i++) {
         const kn_view *v = &f->all[i];
-        entry *e = NULL;
-        const char *column = NULL;
-        if (v->rule == KN_R_EXTERNAL_WITHOUT_PROVENANCE || v->rule == KN_R_UNUSED_SOURCE) {
-            e = kn_names_get(sources, v->subject);
-        } else if (v->rule == KN_R_JOIN_LATEST_VALUE || v->rule == KN_R_NO_POINT_IN_TIME_HISTORY ||
-                   v->rule == KN_R_READS_UNSETTLED_VALUES) {
-            const kn_column *c = kn_names_get(columns, v->subject);
-            const kn_source *src = !c                   ? NULL
-                                   : c->join.source.name ? KN_REF_SOURCE(c->join.source)
-                                                         : KN_REF_SOURCE(c->source);
-            e = src ? r->of_source[src->index] : NULL;
-            column = c ? c->name : NULL;
-        }
-        if (e) {
-            kn_vec_push(e->findings, &(against){si, v, column});
+        const kn_column *c;
+        const kn_source *src = kn_doc_finding_source(s, v, &c);
+        if (src) {
+            kn_vec_push(r->of_source[src->index]->findings, &(against){si, v, c ? c->name : NULL});
         }
     }
 }

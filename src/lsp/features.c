@@ -146,7 +146,8 @@ static void hover_event(FILE *f, kn_arena *a, const kn_timeline *t, const kn_eve
     }
 }
 
-static void hover_source(FILE *f, const kn_schema *sc, const kn_source *src)
+static void hover_source(FILE *f, kn_arena *a, const kn_schema *sc, const kn_timeline *t, const kn_sink *sink,
+                         const kn_source *src)
 {
     char lo[48], hi[48];
     fprintf(f, "**source `%s`** (%s)\n\n", src->name,
@@ -170,6 +171,16 @@ static void hover_source(FILE *f, const kn_schema *sc, const kn_source *src)
         used += KN_REF_SOURCE(sc->columns[i]->source) == src;
     }
     fprintf(f, "- %zu column%s read from it\n", used, used == 1 ? "" : "s");
+    /* The findings against it, as the register of sources lists them. */
+    const kn_doc_findings *df = kn_doc_findings_make(a, sink, 0, sc, t);
+    for (size_t i = 0; i < df->n_all; i++) {
+        const kn_column *c;
+        const kn_view *v = &df->all[i];
+        if (kn_doc_finding_source(sc, v, &c) == src) {
+            fprintf(f, "- %s%s%s%s: %s%s\n", kn_rule_get(v->rule)->id, c ? " on `" : "", c ? c->name : "",
+                    c ? "`" : "", v->waived ? "waived, " : "", kn_severity_name(v->severity));
+        }
+    }
     if (src->description) {
         fprintf(f, "\n%s\n", src->description);
     }
@@ -209,7 +220,7 @@ json_t *kn_lsp_hover(kn_server *s, kn_doc *d, long line, long character)
             }
             if (src) {
                 fputs(sep, f);
-                hover_source(f, sc, src);
+                hover_source(f, a, sc, u->timeline, sink, src);
             }
         }
         if (f && fclose(f) == 0 && buf) {
